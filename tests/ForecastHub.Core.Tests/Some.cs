@@ -1,0 +1,38 @@
+using ForecastHub.Core.Grid;
+
+namespace ForecastHub.Core.Tests;
+
+/// <summary>Test-data factories for the season/grid/model tests.</summary>
+internal static class Some
+{
+    public static readonly DateTimeOffset Start = new(2024, 1, 1, 0, 0, 0, TimeSpan.Zero);
+
+    /// <summary>One reading per hour from <paramref name="start"/>, value given by the hour index.</summary>
+    public static List<GridReading> HourlyReadings(DateTimeOffset start, int hours, Func<int, double> value) =>
+        Enumerable.Range(0, hours).Select(i => new GridReading(start.AddHours(i), value(i))).ToList();
+
+    public static GridOptions Hourly(string zone = "UTC", int maxGap = 3) => new(GridCadence.Hourly, zone, MaxInterpolatedGap: maxGap);
+
+    public static GridOptions Daily(DailyStatistic statistic, string zone = "Europe/Berlin") => new(GridCadence.Daily, zone, statistic);
+
+    /// <summary>An hourly grid in UTC built from values (NaN = missing) starting at <see cref="Start"/>.</summary>
+    public static TimeGrid HourlyGrid(double[] values, string zone = "UTC", int maxGap = 3) =>
+        GridBuilder.Build(
+            values.Select((v, i) => new GridReading(Start.AddHours(i), v)),
+            Hourly(zone, maxGap),
+            Start,
+            Start.AddHours(values.Length));
+
+    /// <summary>A daily grid (one reading at local noon per day) starting on 2012-01-01.</summary>
+    public static TimeGrid DailyGrid(double[] values, string zone = "UTC", DateOnly? first = null)
+    {
+        var zoneInfo = GridBuilder.FindZone(zone);
+        var day0 = first ?? new DateOnly(2012, 1, 1);
+        var readings = values.Select((v, i) => new GridReading(GridBuilder.LocalDayStart(day0.AddDays(i), zoneInfo).AddHours(12), v));
+        return GridBuilder.Build(
+            readings,
+            new GridOptions(GridCadence.Daily, zone, DailyStatistic.Max),
+            GridBuilder.LocalDayStart(day0, zoneInfo),
+            GridBuilder.LocalDayStart(day0.AddDays(values.Length), zoneInfo));
+    }
+}
