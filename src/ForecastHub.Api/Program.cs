@@ -1,5 +1,11 @@
+using ForecastHub.Api.Hosting;
 using Serilog;
 using Serilog.Formatting.Compact;
+
+if (HealthProbe.IsRequested(args))
+{
+    return await HealthProbe.RunAsync(args, Console.Out);
+}
 
 var builder = WebApplication.CreateBuilder(args);
 
@@ -20,3 +26,4 @@ app.MapGet("/health/live", () => TypedResults.Ok(new { status = "live" }))
     .WithSummary("The process is up.");
 
 app.Run();
+return 0;
