@@ -23,7 +23,7 @@ public sealed class EdgeCaseTests
     [MemberData(nameof(Methods))]
     public void SeriesWithNaNIsRefusedAsNonFinite(ArMethod method)
     {
-        var series = Some.ArSeries(50, [0.5]);
+        var series = SomeAr.ArSeries(50, [0.5]);
         series[17] = double.NaN;
         var error = Assert.Throws<SeriesException>(() => ArFit.Fit(series, 1, method));
         Assert.Equal(SeriesProblem.NonFinite, error.Problem);
@@ -33,7 +33,7 @@ public sealed class EdgeCaseTests
     [MemberData(nameof(Methods))]
     public void ConstantSeriesIsRefusedAsConstant(ArMethod method)
     {
-        var error = Assert.Throws<SeriesException>(() => ArFit.Fit(Some.Constant(30), 1, method));
+        var error = Assert.Throws<SeriesException>(() => ArFit.Fit(SomeAr.Constant(30), 1, method));
         Assert.Equal(SeriesProblem.Constant, error.Problem);
     }
 
@@ -55,24 +55,24 @@ public sealed class EdgeCaseTests
     [Fact]
     public void AcfOfConstantSeriesIsRefusedAsConstant()
     {
-        var error = Assert.Throws<SeriesException>(() => Autocorrelation.Acf(Some.Constant(10), 3));
+        var error = Assert.Throws<SeriesException>(() => Autocorrelation.Acf(SomeAr.Constant(10), 3));
         Assert.Equal(SeriesProblem.Constant, error.Problem);
     }
 
     [Fact]
     public void RandomWalkIsFittedAndReportedNearUnitRoot()
     {
-        var model = ArFit.Fit(Some.RandomWalk(3000), 1, ArMethod.Burg);
+        var model = ArFit.Fit(SomeAr.RandomWalk(3000), 1, ArMethod.Burg);
         Assert.Equal(StationarityStatus.NearUnitRoot, model.Stationarity);
         Assert.True(model.Stationary);
-        var path = ArForecast.Forecast(model, Some.RandomWalk(3000), 24);
+        var path = ArForecast.Forecast(model, SomeAr.RandomWalk(3000), 24);
         Assert.All(path.Sd, sd => Assert.True(double.IsFinite(sd) && sd > 0));
     }
 
     [Fact]
     public void ForecastNeedsAtLeastOrderHistoryPoints()
     {
-        var model = ArFit.Fit(Some.ArSeries(200, [0.5, 0.2]), 2, ArMethod.YuleWalker);
+        var model = ArFit.Fit(SomeAr.ArSeries(200, [0.5, 0.2]), 2, ArMethod.YuleWalker);
         var error = Assert.Throws<SeriesException>(() => ArForecast.Forecast(model, new[] { 1.0 }, 3));
         Assert.Equal(SeriesProblem.TooShort, error.Problem);
     }

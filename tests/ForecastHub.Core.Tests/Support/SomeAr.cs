@@ -1,7 +1,7 @@
 namespace ForecastHub.Core.Tests.Support;
 
 /// <summary>Seeded test series.</summary>
-public static class Some
+public static class SomeAr
 {
     /// <summary>A Gaussian AR(p) with mean <paramref name="mean"/>, after a burn-in of 500 steps.</summary>
     public static double[] ArSeries(int length, double[] phi, double sigma = 1, double mean = 0, int seed = 1)
