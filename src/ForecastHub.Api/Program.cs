@@ -1,6 +1,8 @@
+using ForecastHub.Api.Auth;
+using ForecastHub.Api.Health;
 using ForecastHub.Api.Hosting;
-using Serilog;
-using Serilog.Formatting.Compact;
+using ForecastHub.Api.Problems;
+using ForecastHub.Api.Sites;
 
 if (HealthProbe.IsRequested(args))
 {
@@ -9,21 +11,18 @@ if (HealthProbe.IsRequested(args))
 
 var builder = WebApplication.CreateBuilder(args);
 
-builder.Services.AddSerilog(config => config
-    .ReadFrom.Configuration(builder.Configuration)
-    .Enrich.FromLogContext()
-    .WriteTo.Console(new RenderedCompactJsonFormatter()));
-builder.Services.AddProblemDetails();
+builder.AddForecastHubLogging();
+builder.Services.AddForecastHubProblems();
+builder.Services.AddForecastHubStorage();
+builder.Services.AddForecastHubAuth();
 
 var app = builder.Build();
 
-app.UseSerilogRequestLogging();
-app.UseExceptionHandler();
-app.UseStatusCodePages();
+app.UseForecastHubPipeline();
 
-app.MapGet("/health/live", () => TypedResults.Ok(new { status = "live" }))
-    .WithName("Live")
-    .WithSummary("The process is up.");
+app.MapHealth();
+var api = app.MapGroup("/api/v1");
+api.MapSites();
 
 app.Run();
 return 0;

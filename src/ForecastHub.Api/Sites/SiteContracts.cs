@@ -1,0 +1,67 @@
+using ForecastHub.Core.Quality;
+using ForecastHub.Storage.Sites;
+
+namespace ForecastHub.Api.Sites;
+
+/// <summary>Body of <c>POST /api/v1/sites</c> and <c>PATCH /api/v1/sites/{siteId}</c>. On PATCH an
+/// absent field keeps its value; <c>null</c> clears <c>latitude</c>, <c>longitude</c> and
+/// <c>elevationM</c>.</summary>
+public sealed record SiteBody(
+    string? Id,
+    string? Name,
+    string? TimeZone,
+    string? Cadence,
+    string? DailyStatistic,
+    double? Latitude,
+    double? Longitude,
+    double? ElevationM,
+    QualityBody? Quality,
+    ModelBody? Model);
+
+public sealed record QualityBody(double? MinC, double? MaxC, double? MaxStepCPerHour, double? FlatlineHours);
+
+public sealed record ModelBody(string? Seasonality, string? Method, string? OrderPolicy, int? MaxOrder, int? FitWindowDays, string? IntervalMethod);
+
+/// <summary>A site as the API shows it.</summary>
+public sealed record SiteResponse(
+    string Id,
+    string Name,
+    string TimeZone,
+    string Cadence,
+    string? DailyStatistic,
+    double? Latitude,
+    double? Longitude,
+    double? ElevationM,
+    QualityResponse Quality,
+    ModelResponse Model,
+    DateTimeOffset CreatedAt,
+    DateTimeOffset UpdatedAt,
+    long SettingsVersion)
+{
+    public static SiteResponse From(SiteRecord site)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        return new SiteResponse(site.Id, site.Name, site.TimeZone, site.Cadence, site.DailyStatistic,
+            site.Latitude, site.Longitude, site.ElevationM,
+            new QualityResponse(site.Quality.MinC, site.Quality.MaxC, site.Quality.MaxStepCPerHour, site.Quality.FlatlineHours),
+            new ModelResponse(site.Model.Seasonality, site.Model.Method, site.Model.OrderPolicy, site.Model.MaxOrder,
+                site.Model.FitWindowDays, site.Model.IntervalMethod),
+            site.CreatedAt, site.UpdatedAt, site.SettingsVersion);
+    }
+}
+
+public sealed record QualityResponse(double MinC, double MaxC, double MaxStepCPerHour, double FlatlineHours);
+
+public sealed record ModelResponse(string Seasonality, string Method, string OrderPolicy, int MaxOrder, int FitWindowDays, string IntervalMethod);
+
+/// <summary>One page of sites; <c>next</c> is the link to the following page, null on the last.</summary>
+public sealed record SiteList(IReadOnlyList<SiteResponse> Sites, string? Next);
+
+internal static class QualityDefaults
+{
+    public static QualityLimits For(QualityBody? body) => new(
+        body?.MinC ?? QualityLimits.DefaultMinC,
+        body?.MaxC ?? QualityLimits.DefaultMaxC,
+        body?.MaxStepCPerHour ?? QualityLimits.DefaultMaxStepCPerHour,
+        body?.FlatlineHours ?? QualityLimits.DefaultFlatlineHours);
+}

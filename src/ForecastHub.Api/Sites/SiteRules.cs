@@ -1,0 +1,185 @@
+using System.Text.Json;
+using System.Text.RegularExpressions;
+using ForecastHub.Core.Quality;
+using ForecastHub.Storage.Sites;
+
+namespace ForecastHub.Api.Sites;
+
+/// <summary>The site rules of DESIGN section 3: what a valid site is, and the defaults.</summary>
+public static partial class SiteRules
+{
+    public static readonly string[] Cadences = ["hourly", "daily"];
+    public static readonly string[] DailyStatistics = ["mean", "min", "max"];
+    public static readonly string[] Seasonalities = ["auto", "none", "annual", "annual-diurnal"];
+    public static readonly string[] Methods = ["burg", "yule-walker", "least-squares", "max-likelihood"];
+    public static readonly string[] OrderPolicies = ["pacf-aic", "aic", "aicc", "bic", "pacf"];
+    public static readonly string[] IntervalMethods = ["calibrated", "gaussian"];
+
+    public const int DefaultMaxOrder = 48;
+    public const int MaxMaxOrder = 200;
+    public const int DefaultFitWindowDaysHourly = 400;
+    public const int DefaultFitWindowDaysDaily = 1461;
+    public const int MinFitWindowDays = 7;
+    public const int MaxFitWindowDays = 7305;
+    public const int MaxNameLength = 200;
+
+    /// <summary>DESIGN section 5: readings outside this range after conversion are impossible.</summary>
+    public const double PhysicalMinC = -95;
+    public const double PhysicalMaxC = 65;
+
+    [GeneratedRegex("^[a-z0-9][a-z0-9-]{0,62}$")]
+    public static partial Regex SiteId();
+
+    [GeneratedRegex(@"^[A-Za-z0-9_+\-]+(/[A-Za-z0-9_+\-]+){0,3}$")]
+    private static partial Regex TimeZoneShape();
+
+    public static bool IsValidSiteId(string? id) => id is not null && SiteId().IsMatch(id);
+
+    /// <summary>An IANA zone known to this machine's time-zone database (Windows names are refused).</summary>
+    public static bool IsIanaTimeZone(string zone) =>
+        TimeZoneShape().IsMatch(zone)
+        && TimeZoneInfo.TryFindSystemTimeZoneById(zone, out var info)
+        && info.HasIanaId;
+
+    public static ModelSettings DefaultModel(string cadence) => new("auto", "burg", "pacf-aic", DefaultMaxOrder,
+        cadence == "daily" ? DefaultFitWindowDaysDaily : DefaultFitWindowDaysHourly, "calibrated");
+
+    /// <summary>
+    /// The site that <paramref name="body"/> describes: a new one when <paramref name="current"/> is
+    /// null, else <paramref name="current"/> changed by the fields present in <paramref name="raw"/>.
+    /// Errors go into <paramref name="errors"/> keyed by field path; the answer is null if any.
+    /// </summary>
+    public static SiteRecord? Build(SiteBody body, JsonElement raw, SiteRecord? current, DateTimeOffset now,
+        Dictionary<string, string[]> errors)
+    {
+        ArgumentNullException.ThrowIfNull(body);
+        ArgumentNullException.ThrowIfNull(errors);
+        var creating = current is null;
+        void Error(string field, string message) => errors[field] = [message];
+        bool Present(string name) => raw.TryGetProperty(name, out _);
+
+        var id = current?.Id ?? body.Id;
+        if (creating && !IsValidSiteId(body.Id))
+        {
+            Error("id", body.Id is null
+                ? "id is required: a slug of lower-case letters, digits and '-', at most 63 characters, starting with a letter or digit."
+                : "id must be a slug of lower-case letters, digits and '-', at most 63 characters, starting with a letter or digit.");
+        }
+        else if (!creating && body.Id is not null && body.Id != current!.Id)
+        {
+            Error("id", "id cannot be changed; create a new site instead.");
+        }
+
+        var name = body.Name ?? current?.Name;
+        if (name is null && creating)
+        {
+            Error("name", "name is required.");
+        }
+        else if (name is not null && (name.Trim().Length == 0 || name.Length > MaxNameLength || name.Any(char.IsControl)))
+        {
+            Error("name", $"name must be 1 to {MaxNameLength} characters without control characters.");
+        }
+
+        var timeZone = body.TimeZone ?? current?.TimeZone;
+        if (timeZone is null)
+        {
+            Error("timeZone", "timeZone is required: an IANA time zone such as 'Europe/Berlin' or 'UTC'.");
+        }
+        else if (body.TimeZone is not null && !IsIanaTimeZone(body.TimeZone))
+        {
+            Error("timeZone", "timeZone must be an IANA time zone such as 'Europe/Berlin' or 'UTC'.");
+        }
+
+        var cadence = body.Cadence ?? current?.Cadence;
+        if (cadence is null)
+        {
+            Error("cadence", "cadence is required: 'hourly' or 'daily'.");
+        }
+        else if (!Cadences.Contains(cadence))
+        {
+            Error("cadence", "cadence must be 'hourly' or 'daily'.");
+        }
+
+        string? dailyStatistic = null;
+        if (cadence == "daily")
+        {
+            dailyStatistic = body.DailyStatistic ?? current?.DailyStatistic ?? "mean";
+            if (!DailyStatistics.Contains(dailyStatistic))
+            {
+                Error("dailyStatistic", "dailyStatistic must be 'mean', 'min' or 'max'.");
+            }
+        }
+        else if (body.DailyStatistic is not null)
+        {
+            Error("dailyStatistic", "dailyStatistic applies to daily sites only.");
+        }
+
+        var latitude = Present("latitude") ? body.Latitude : current?.Latitude;
+        var longitude = Present("longitude") ? body.Longitude : current?.Longitude;
+        var elevation = Present("elevationM") ? body.ElevationM : current?.ElevationM;
+        CheckRange(latitude, -90, 90, "latitude", errors);
+        CheckRange(longitude, -180, 180, "longitude", errors);
+        CheckRange(elevation, -500, 9000, "elevationM", errors);
+
+        var quality = MergeQuality(body.Quality, current?.Quality, errors);
+        var model = MergeModel(body.Model, current?.Model ?? DefaultModel(cadence ?? "hourly"), errors);
+
+        if (errors.Count > 0)
+        {
+            return null;
+        }
+        return new SiteRecord(id!, name!.Trim(), timeZone!, cadence!, dailyStatistic, latitude, longitude, elevation,
+            quality, model, current?.CreatedAt ?? now, now, current?.SettingsVersion ?? 1);
+    }
+
+    private static QualityLimits MergeQuality(QualityBody? body, QualityLimits? current, Dictionary<string, string[]> errors)
+    {
+        var limits = current is null
+            ? QualityDefaults.For(body)
+            : new QualityLimits(body?.MinC ?? current.MinC, body?.MaxC ?? current.MaxC,
+                body?.MaxStepCPerHour ?? current.MaxStepCPerHour, body?.FlatlineHours ?? current.FlatlineHours);
+        CheckRange(limits.MinC, PhysicalMinC, PhysicalMaxC, "quality.minC", errors);
+        CheckRange(limits.MaxC, PhysicalMinC, PhysicalMaxC, "quality.maxC", errors);
+        if (limits.MinC >= limits.MaxC)
+        {
+            errors["quality.maxC"] = [$"quality.maxC ({limits.MaxC}) must be above quality.minC ({limits.MinC})."];
+        }
+        CheckRange(limits.MaxStepCPerHour, 0.1, 160, "quality.maxStepCPerHour", errors);
+        CheckRange(limits.FlatlineHours, 1, 24 * 31, "quality.flatlineHours", errors);
+        return limits;
+    }
+
+    private static ModelSettings MergeModel(ModelBody? body, ModelSettings current, Dictionary<string, string[]> errors)
+    {
+        var model = new ModelSettings(
+            body?.Seasonality ?? current.Seasonality,
+            body?.Method ?? current.Method,
+            body?.OrderPolicy ?? current.OrderPolicy,
+            body?.MaxOrder ?? current.MaxOrder,
+            body?.FitWindowDays ?? current.FitWindowDays,
+            body?.IntervalMethod ?? current.IntervalMethod);
+        CheckChoice(model.Seasonality, Seasonalities, "model.seasonality", errors);
+        CheckChoice(model.Method, Methods, "model.method", errors);
+        CheckChoice(model.OrderPolicy, OrderPolicies, "model.orderPolicy", errors);
+        CheckChoice(model.IntervalMethod, IntervalMethods, "model.intervalMethod", errors);
+        CheckRange(model.MaxOrder, 1, MaxMaxOrder, "model.maxOrder", errors);
+        CheckRange(model.FitWindowDays, MinFitWindowDays, MaxFitWindowDays, "model.fitWindowDays", errors);
+        return model;
+    }
+
+    private static void CheckChoice(string value, string[] allowed, string field, Dictionary<string, string[]> errors)
+    {
+        if (!allowed.Contains(value))
+        {
+            errors[field] = [$"{field} must be one of {string.Join(", ", allowed.Select(a => $"'{a}'"))}."];
+        }
+    }
+
+    private static void CheckRange(double? value, double min, double max, string field, Dictionary<string, string[]> errors)
+    {
+        if (value is { } v && (!double.IsFinite(v) || v < min || v > max))
+        {
+            errors[field] = [$"{field} must be between {min} and {max}."];
+        }
+    }
+}

@@ -1,0 +1,17 @@
+namespace ForecastHub.Storage.Readings;
+
+/// <summary>Raw readings of a site.</summary>
+public interface IReadingStore
+{
+    /// <summary>Stores what is new in one transaction and sets QC flags on the new readings and their
+    /// stored neighbours. Null when the site does not exist. When this returns, the readings are
+    /// durable.</summary>
+    Task<IngestResult?> IngestAsync(string siteId, IReadOnlyList<IncomingReading> readings, ConflictPolicy policy,
+        DateTimeOffset receivedAt, CancellationToken cancellationToken = default);
+
+    /// <summary>Readings in [<paramref name="fromMs"/>, <paramref name="toMs"/>) in time order,
+    /// starting after <paramref name="afterMs"/> (exclusive), at most <paramref name="limit"/>.
+    /// Null when the site does not exist.</summary>
+    Task<IReadOnlyList<StoredReading>?> ReadAsync(string siteId, long fromMs, long toMs, long? afterMs, int limit,
+        CancellationToken cancellationToken = default);
+}

@@ -1,0 +1,99 @@
+using ForecastHub.Core.Quality;
+
+namespace ForecastHub.Storage.Readings;
+
+/// <summary>
+/// Decides, without touching the database, what an ingest does: which readings are new, duplicates,
+/// conflicts or replacements, and the QC flags of the new readings and their stored neighbours.
+/// Stored readings only ever gain spike and flat-line flags from their new neighbours (a later
+/// reading can reveal that an earlier one was a spike or part of a flat line); flags are never
+/// taken away here, except that a replaced value is judged afresh.
+/// </summary>
+public static class IngestPlanner
+{
+    /// <summary>How far around the new readings stored neighbours are needed: the flat-line span,
+    /// and at least this many readings on each side.</summary>
+    public const int NeighbourCount = QualityLimits.FlatlineMinReadings;
+
+    /// <summary>Two values this close in degrees C are the same value (unit conversion rounding).</summary>
+    public const double SameValueTolerance = 1e-9;
+
+    public static IngestPlan Plan(IReadOnlyList<StoredReading> stored, IReadOnlyList<IncomingReading> incoming,
+        ConflictPolicy policy, QualityLimits limits)
+    {
+        ArgumentNullException.ThrowIfNull(stored);
+        ArgumentNullException.ThrowIfNull(incoming);
+        ArgumentNullException.ThrowIfNull(limits);
+
+        var byTime = new SortedDictionary<long, Slot>();
+        foreach (var s in stored)
+        {
+            byTime[s.TimeMs] = new Slot(s, IsStored: true, Changed: false);
+        }
+        var kinds = new ReadingOutcomeKind[incoming.Count];
+        var storedValues = new double?[incoming.Count];
+        for (var i = 0; i < incoming.Count; i++)
+        {
+            var r = incoming[i];
+            var reading = new StoredReading(r.TimeMs, r.ValueC, r.OriginalValue, r.OriginalUnit, QualityFlags.None);
+            if (!byTime.TryGetValue(r.TimeMs, out var slot))
+            {
+                byTime[r.TimeMs] = new Slot(reading, IsStored: false, Changed: true);
+                kinds[i] = ReadingOutcomeKind.Accepted;
+                continue;
+            }
+            storedValues[i] = slot.Reading.ValueC;
+            if (Math.Abs(slot.Reading.ValueC - r.ValueC) <= SameValueTolerance)
+            {
+                kinds[i] = ReadingOutcomeKind.Duplicate;
+            }
+            else if (policy == ConflictPolicy.Replace)
+            {
+                byTime[r.TimeMs] = slot with { Reading = reading, Changed = true };
+                kinds[i] = ReadingOutcomeKind.Replaced;
+            }
+            else
+            {
+                kinds[i] = ReadingOutcomeKind.Conflict;
+            }
+        }
+
+        var series = byTime.Values.ToArray();
+        var points = series.Select(s => new QualityPoint(s.Reading.Time, s.Reading.ValueC)).ToArray();
+        var computed = QualityChecks.Evaluate(points, limits);
+        var inserts = new List<StoredReading>();
+        var updates = new List<StoredReading>();
+        var flagsByTime = new Dictionary<long, QualityFlags>(series.Length);
+        for (var j = 0; j < series.Length; j++)
+        {
+            var slot = series[j];
+            var flags = slot.Changed
+                ? computed[j]
+                : slot.Reading.Flags | (computed[j] & (QualityFlags.Spike | QualityFlags.FlatLine));
+            flagsByTime[slot.Reading.TimeMs] = flags;
+            var reading = slot.Reading with { Flags = flags };
+            if (!slot.IsStored)
+            {
+                inserts.Add(reading);
+            }
+            else if (slot.Changed || flags != slot.Reading.Flags)
+            {
+                updates.Add(reading);
+            }
+        }
+
+        var outcomes = new ReadingOutcome[incoming.Count];
+        for (var i = 0; i < incoming.Count; i++)
+        {
+            outcomes[i] = new ReadingOutcome(kinds[i], flagsByTime[incoming[i].TimeMs], storedValues[i]);
+        }
+        return new IngestPlan(inserts, updates, outcomes);
+    }
+
+    private readonly record struct Slot(StoredReading Reading, bool IsStored, bool Changed);
+}
+
+/// <summary>Rows to insert, stored rows to rewrite (new value or new flags), and the outcome of each
+/// incoming reading.</summary>
+public sealed record IngestPlan(IReadOnlyList<StoredReading> Inserts, IReadOnlyList<StoredReading> Updates,
+    IReadOnlyList<ReadingOutcome> Outcomes);

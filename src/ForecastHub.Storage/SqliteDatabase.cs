@@ -1,0 +1,84 @@
+using Microsoft.Data.Sqlite;
+
+namespace ForecastHub.Storage;
+
+/// <summary>
+/// The SQLite file: pooled connections for reads, and the one writer path. Every write runs under
+/// one in-process lock inside <c>BEGIN IMMEDIATE</c>, so concurrent requests queue instead of
+/// failing with "database is locked", and the busy timeout covers other processes on the file.
+/// Connections use <c>synchronous=FULL</c>: in WAL mode each commit is fsynced before it returns,
+/// so an acknowledged write survives a killed process and a power cut.
+/// </summary>
+public sealed class SqliteDatabase : IDisposable
+{
+    private readonly SemaphoreSlim _writeLock = new(1, 1);
+    private readonly int _busyTimeoutMs;
+
+    public SqliteDatabase(StorageOptions options)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        FilePath = System.IO.Path.GetFullPath(options.Path);
+        _busyTimeoutMs = options.BusyTimeoutMs;
+        ConnectionString = new SqliteConnectionStringBuilder
+        {
+            DataSource = FilePath,
+            Mode = SqliteOpenMode.ReadWriteCreate,
+            Cache = SqliteCacheMode.Private,
+            Pooling = true,
+            ForeignKeys = true,
+            DefaultTimeout = Math.Max(1, options.BusyTimeoutMs / 1000),
+        }.ToString();
+    }
+
+    public string FilePath { get; }
+
+    public string ConnectionString { get; }
+
+    /// <summary>A pooled connection for reading; dispose it after the unit of work.</summary>
+    public SqliteConnection Open()
+    {
+        var folder = System.IO.Path.GetDirectoryName(FilePath);
+        if (!string.IsNullOrEmpty(folder))
+        {
+            Directory.CreateDirectory(folder);
+        }
+        var connection = new SqliteConnection(ConnectionString);
+        connection.Open();
+        using var pragma = connection.CreateCommand();
+        pragma.CommandText = $"PRAGMA busy_timeout = {_busyTimeoutMs}; PRAGMA synchronous = FULL;";
+        pragma.ExecuteNonQuery();
+        return connection;
+    }
+
+    /// <summary>Runs <paramref name="work"/> as the only writer, in one IMMEDIATE transaction that
+    /// commits when it returns and rolls back when it throws.</summary>
+    public async Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(work);
+        await _writeLock.WaitAsync(cancellationToken).ConfigureAwait(false);
+        try
+        {
+            using var connection = Open();
+            using var transaction = connection.BeginTransaction(deferred: false);
+            var result = work(connection, transaction);
+            transaction.Commit();
+            return result;
+        }
+        finally
+        {
+            _writeLock.Release();
+        }
+    }
+
+    /// <summary>Runs <paramref name="read"/> on a pooled connection inside one read transaction, so
+    /// it sees one consistent snapshot while writers go on.</summary>
+    public T Read<T>(Func<SqliteConnection, SqliteTransaction, T> read)
+    {
+        ArgumentNullException.ThrowIfNull(read);
+        using var connection = Open();
+        using var transaction = connection.BeginTransaction(deferred: true);
+        return read(connection, transaction);
+    }
+
+    public void Dispose() => _writeLock.Dispose();
+}

@@ -1,0 +1,13 @@
+namespace ForecastHub.Storage;
+
+/// <summary>Configuration section <c>Storage</c>.</summary>
+public sealed class StorageOptions
+{
+    public const string SectionName = "Storage";
+
+    /// <summary>The SQLite file; its folder is created when missing.</summary>
+    public string Path { get; set; } = "data/forecasthub.db";
+
+    /// <summary>How long a connection waits for a lock held by another process before failing.</summary>
+    public int BusyTimeoutMs { get; set; } = 30_000;
+}

@@ -1,0 +1,65 @@
+using System.Net.Http.Headers;
+using Microsoft.AspNetCore.Hosting;
+using Microsoft.AspNetCore.Mvc.Testing;
+using Microsoft.Data.Sqlite;
+using Microsoft.Extensions.DependencyInjection;
+using Microsoft.Extensions.Time.Testing;
+
+namespace ForecastHub.Api.Tests.Infrastructure;
+
+/// <summary>The real pipeline on its own SQLite file, with a fake clock and a known admin key.</summary>
+public sealed class ApiFactory : WebApplicationFactory<Program>
+{
+    public const string AdminKey = "test-admin-key-7f3a9c";
+
+    public static readonly DateTimeOffset Now = new(2025, 6, 1, 12, 0, 0, TimeSpan.Zero);
+
+    public string DatabasePath { get; } = TestFiles.NewDatabasePath();
+
+    public FakeTimeProvider Clock { get; } = new(Now);
+
+    public bool AllowAnonymousRead { get; init; }
+
+    protected override void ConfigureWebHost(IWebHostBuilder builder)
+    {
+        builder.UseSetting("Storage:Path", DatabasePath);
+        builder.UseSetting("Auth:AdminKey", AdminKey);
+        builder.UseSetting("Auth:AllowAnonymousRead", AllowAnonymousRead ? "true" : "false");
+        builder.UseSetting("Serilog:MinimumLevel:Default", "Warning");
+        builder.ConfigureServices(services => services.AddSingleton<TimeProvider>(Clock));
+    }
+
+    /// <summary>A client that sends the admin key.</summary>
+    public HttpClient CreateAdminClient()
+    {
+        var client = CreateClient();
+        client.DefaultRequestHeaders.Authorization = new AuthenticationHeaderValue("Bearer", AdminKey);
+        return client;
+    }
+
+    public override async ValueTask DisposeAsync()
+    {
+        await base.DisposeAsync();
+        TestFiles.DeleteDatabase(DatabasePath);
+    }
+}
+
+public static class TestFiles
+{
+    public static string NewDatabasePath()
+    {
+        var folder = Path.Combine(Path.GetTempPath(), "forecasthub-tests");
+        Directory.CreateDirectory(folder);
+        return Path.Combine(folder, $"{Guid.NewGuid():N}.db");
+    }
+
+    /// <summary>Pooled connections keep the file open, so pools are cleared first.</summary>
+    public static void DeleteDatabase(string path)
+    {
+        SqliteConnection.ClearAllPools();
+        foreach (var file in new[] { path, path + "-wal", path + "-shm" })
+        {
+            File.Delete(file);
+        }
+    }
+}
