@@ -96,3 +96,18 @@ write_fixture("crps-gaussian.json", obj(
   source = str(paste("R stats::integrate,", r_version)),
   mu = arr(cases[, 1]), sigma = arr(cases[, 2]), y = arr(cases[, 3]),
   crps = arr(apply(cases, 1, function(r) crps_num(r[1], r[2], r[3])))))
+
+# 4. Plain demeaned AR(p) (seasonality none, Gaussian intervals): R ar() with AIC order choice
+#    (order.max = floor(10 log10 n)) and predict() up to 24 steps, for Yule-Walker, Burg and OLS.
+set.seed(7)
+x <- round(as.numeric(arima.sim(list(ar = c(0.6, -0.25, 0.15)), n = 400)) + 12, 4)
+pred_json <- function(fit) {
+  pr <- predict(fit, n.ahead = 24)
+  obj(order = num(fit$order), mean = arr(as.numeric(pr$pred)), se = arr(as.numeric(pr$se)))
+}
+write_fixture("plain-ar-predict.json", obj(
+  source = str(paste("R stats::ar and predict.ar,", r_version, "; series simulated in R, seed 7")),
+  values = arr(x),
+  yuleWalker = pred_json(ar(x, method = "yule-walker")),
+  burg = pred_json(ar(x, method = "burg")),
+  leastSquares = pred_json(ar(x, method = "ols"))))

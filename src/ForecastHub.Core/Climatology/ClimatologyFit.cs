@@ -10,7 +10,6 @@ public sealed record HarmonicTerm(string Name, double Coefficient, double StdErr
 /// </summary>
 public sealed record ClimatologyFit(
     Seasonality Requested,
-    Seasonality Applied,
     HarmonicDesign Design,
     IReadOnlyList<HarmonicTerm> Terms,
     string Estimation,

@@ -58,6 +58,38 @@ public sealed record TimeGrid(
     /// <summary>Index of the newest step with a value, or -1 when there is none.</summary>
     public int LastValueIndex => Array.FindLastIndex(Values, v => !double.IsNaN(v));
 
+    /// <summary>
+    /// The grid as it was known at step <paramref name="lastIndex"/>: later steps dropped, and
+    /// interpolated steps after the last observed one set back to missing (they used later data).
+    /// </summary>
+    public TimeGrid Until(int lastIndex)
+    {
+        ArgumentOutOfRangeException.ThrowIfNegative(lastIndex);
+        ArgumentOutOfRangeException.ThrowIfGreaterThanOrEqual(lastIndex, Count);
+        var n = lastIndex + 1;
+        var values = Values[..n];
+        var interpolated = Interpolated[..n];
+        for (var i = n - 1; i >= 0 && (interpolated[i] || double.IsNaN(values[i])); i--)
+        {
+            values[i] = double.NaN;
+            interpolated[i] = false;
+        }
+
+        var segments = Segments.Where(s => s.Start < n && !double.IsNaN(values[s.Start]))
+            .Select(s =>
+            {
+                var end = Math.Min(s.Start + s.Length, n);
+                while (double.IsNaN(values[end - 1]))
+                {
+                    end--;
+                }
+
+                return s with { Length = end - s.Start, To = Times[end - 1] };
+            })
+            .ToArray();
+        return this with { Times = Times[..n], Values = values, Interpolated = interpolated, Segments = segments, Gaps = [.. Gaps.Where(g => g.Start < n).Select(g => g with { Length = Math.Min(g.Length, n - g.Start) })] };
+    }
+
     /// <summary>The values of each segment, in time order (what the model fit uses).</summary>
     public IReadOnlyList<double[]> SegmentValues() =>
         Segments.Select(s => Values.AsSpan(s.Start, s.Length).ToArray()).ToArray();

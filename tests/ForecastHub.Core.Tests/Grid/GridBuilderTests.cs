@@ -1,4 +1,5 @@
 using ForecastHub.Core.Grid;
+using ForecastHub.Core.Tests.Support;
 
 namespace ForecastHub.Core.Tests.Grid;
 
@@ -15,7 +16,7 @@ public sealed class GridBuilderTests
             new(T0.AddHours(1), 10.0),
         ];
 
-        var grid = GridBuilder.Build(readings, Some.Hourly());
+        var grid = GridBuilder.Build(readings, SomeGrid.Hourly());
 
         Assert.Equal(2, grid.Count);
         Assert.Equal(3.0, grid.Values[0], 12);
@@ -28,7 +29,7 @@ public sealed class GridBuilderTests
     {
         GridReading[] readings = [new(new DateTimeOffset(2024, 5, 1, 12, 15, 0, TimeSpan.FromHours(2)), 4.0), new(T0.AddMinutes(45), 8.0)];
 
-        var grid = GridBuilder.Build(readings, Some.Hourly("Europe/Berlin"));
+        var grid = GridBuilder.Build(readings, SomeGrid.Hourly("Europe/Berlin"));
 
         Assert.Equal(1, grid.Count);
         Assert.Equal(6.0, grid.Values[0], 12);
@@ -44,7 +45,7 @@ public sealed class GridBuilderTests
             new(T0.AddMinutes(30), double.PositiveInfinity), new(T0.AddMinutes(40), 3.0),
         ];
 
-        var grid = GridBuilder.Build(readings, Some.Hourly());
+        var grid = GridBuilder.Build(readings, SomeGrid.Hourly());
 
         Assert.Equal(2.0, Assert.Single(grid.Values), 12);
     }
@@ -52,12 +53,12 @@ public sealed class GridBuilderTests
     [Fact]
     public void UnsortedReadingsGiveTheSameGridAsSortedOnes()
     {
-        var readings = Some.HourlyReadings(T0, 30, i => Math.Sin(i));
+        var readings = SomeGrid.HourlyReadings(T0, 30, i => Math.Sin(i));
         readings.RemoveRange(10, 5);
         var shuffled = readings.OrderBy(r => (r.Time.Ticks * 7919) % 1000).ToArray();
 
-        var a = GridBuilder.Build(readings, Some.Hourly());
-        var b = GridBuilder.Build(shuffled, Some.Hourly());
+        var a = GridBuilder.Build(readings, SomeGrid.Hourly());
+        var b = GridBuilder.Build(shuffled, SomeGrid.Hourly());
 
         Assert.Equal(a.Values, b.Values);
         Assert.Equal(a.Segments, b.Segments);
@@ -66,10 +67,10 @@ public sealed class GridBuilderTests
     [Fact]
     public void GapOfThreeStepsIsInterpolatedLinearlyAndReported()
     {
-        var readings = Some.HourlyReadings(T0, 10, i => i * 2.0);
+        var readings = SomeGrid.HourlyReadings(T0, 10, i => i * 2.0);
         readings.RemoveRange(3, 3);
 
-        var grid = GridBuilder.Build(readings, Some.Hourly());
+        var grid = GridBuilder.Build(readings, SomeGrid.Hourly());
 
         Assert.Equal(10, grid.Count);
         Assert.Equal([6.0, 8.0, 10.0], grid.Values[3..6]);
@@ -84,10 +85,10 @@ public sealed class GridBuilderTests
     [Fact]
     public void GapLongerThanTheLimitSplitsTheSeriesIntoSegments()
     {
-        var readings = Some.HourlyReadings(T0, 12, i => i);
+        var readings = SomeGrid.HourlyReadings(T0, 12, i => i);
         readings.RemoveRange(3, 4);
 
-        var grid = GridBuilder.Build(readings, Some.Hourly());
+        var grid = GridBuilder.Build(readings, SomeGrid.Hourly());
 
         Assert.Equal(12, grid.Count);
         Assert.All(grid.Values[3..7], v => Assert.True(double.IsNaN(v)));
@@ -100,10 +101,10 @@ public sealed class GridBuilderTests
     [Fact]
     public void GapLimitOfZeroNeverInterpolates()
     {
-        var readings = Some.HourlyReadings(T0, 5, i => i);
+        var readings = SomeGrid.HourlyReadings(T0, 5, i => i);
         readings.RemoveAt(2);
 
-        var grid = GridBuilder.Build(readings, Some.Hourly(maxGap: 0));
+        var grid = GridBuilder.Build(readings, SomeGrid.Hourly(maxGap: 0));
 
         Assert.Equal(2, grid.Segments.Length);
     }
@@ -111,9 +112,9 @@ public sealed class GridBuilderTests
     [Fact]
     public void MissingNewestStepsUpToTheRequestedEndAreReportedAndNotInterpolated()
     {
-        var readings = Some.HourlyReadings(T0, 6, i => i);
+        var readings = SomeGrid.HourlyReadings(T0, 6, i => i);
 
-        var grid = GridBuilder.Build(readings, Some.Hourly(), T0, T0.AddHours(8));
+        var grid = GridBuilder.Build(readings, SomeGrid.Hourly(), T0, T0.AddHours(8));
 
         Assert.Equal(8, grid.Count);
         Assert.Equal(5, grid.LastValueIndex);
@@ -125,10 +126,10 @@ public sealed class GridBuilderTests
     {
         // 2024-03-31 in Europe/Berlin runs from 2024-03-30T23:00Z to 2024-03-31T22:00Z (23 hours).
         var start = new DateTimeOffset(2024, 3, 29, 23, 0, 0, TimeSpan.Zero);
-        var readings = Some.HourlyReadings(start, 24 + 23 + 24, i => i);
+        var readings = SomeGrid.HourlyReadings(start, 24 + 23 + 24, i => i);
 
-        var min = GridBuilder.Build(readings, Some.Daily(DailyStatistic.Min));
-        var max = GridBuilder.Build(readings, Some.Daily(DailyStatistic.Max));
+        var min = GridBuilder.Build(readings, SomeGrid.Daily(DailyStatistic.Min));
+        var max = GridBuilder.Build(readings, SomeGrid.Daily(DailyStatistic.Max));
 
         Assert.Equal(3, min.Count);
         Assert.Equal([0.0, 24, 47], min.Values);
@@ -143,10 +144,10 @@ public sealed class GridBuilderTests
     {
         // 2024-10-27 in Europe/Berlin runs from 2024-10-26T22:00Z to 2024-10-27T23:00Z (25 hours).
         var start = new DateTimeOffset(2024, 10, 25, 22, 0, 0, TimeSpan.Zero);
-        var readings = Some.HourlyReadings(start, 24 * 3 + 1, i => i);
+        var readings = SomeGrid.HourlyReadings(start, 24 * 3 + 1, i => i);
 
-        var max = GridBuilder.Build(readings, Some.Daily(DailyStatistic.Max));
-        var min = GridBuilder.Build(readings, Some.Daily(DailyStatistic.Min));
+        var max = GridBuilder.Build(readings, SomeGrid.Daily(DailyStatistic.Max));
+        var min = GridBuilder.Build(readings, SomeGrid.Daily(DailyStatistic.Min));
 
         Assert.Equal([23.0, 48, 72], max.Values);
         Assert.Equal([0.0, 24, 49], min.Values);
@@ -163,7 +164,7 @@ public sealed class GridBuilderTests
             new(midnight.AddHours(5), 12.0),
         ];
 
-        var grid = GridBuilder.Build(readings, Some.Daily(DailyStatistic.Mean));
+        var grid = GridBuilder.Build(readings, SomeGrid.Daily(DailyStatistic.Mean));
 
         Assert.Equal(6.0, Assert.Single(grid.Values), 12);
     }
@@ -171,7 +172,7 @@ public sealed class GridBuilderTests
     [Fact]
     public void NoReadingsGiveAnEmptyGrid()
     {
-        var grid = GridBuilder.Build([], Some.Hourly());
+        var grid = GridBuilder.Build([], SomeGrid.Hourly());
 
         Assert.Equal(0, grid.Count);
         Assert.Empty(grid.Segments);
@@ -183,7 +184,7 @@ public sealed class GridBuilderTests
     {
         GridReading[] readings = [new(T0, 1.0, Flagged: true), new(T0.AddHours(2), 2.0, Flagged: true)];
 
-        var grid = GridBuilder.Build(readings, Some.Hourly(), T0, T0.AddHours(4));
+        var grid = GridBuilder.Build(readings, SomeGrid.Hourly(), T0, T0.AddHours(4));
 
         Assert.Equal(4, grid.Count);
         Assert.All(grid.Values, v => Assert.True(double.IsNaN(v)));
@@ -194,7 +195,7 @@ public sealed class GridBuilderTests
     [Fact]
     public void UnknownTimeZoneIsAnArgumentError()
     {
-        var e = Assert.Throws<ArgumentException>(() => GridBuilder.Build([new(T0, 1.0)], Some.Hourly("Mars/Olympus")));
+        var e = Assert.Throws<ArgumentException>(() => GridBuilder.Build([new(T0, 1.0)], SomeGrid.Hourly("Mars/Olympus")));
 
         Assert.Contains("Mars/Olympus", e.Message, StringComparison.Ordinal);
     }
@@ -202,9 +203,9 @@ public sealed class GridBuilderTests
     [Fact]
     public void GridRoundTripsThroughJson()
     {
-        var readings = Some.HourlyReadings(T0, 12, i => i);
+        var readings = SomeGrid.HourlyReadings(T0, 12, i => i);
         readings.RemoveRange(3, 4);
-        var grid = GridBuilder.Build(readings, Some.Hourly("Europe/Berlin"));
+        var grid = GridBuilder.Build(readings, SomeGrid.Hourly("Europe/Berlin"));
 
         var copy = System.Text.Json.JsonSerializer.Deserialize<TimeGrid>(
             System.Text.Json.JsonSerializer.Serialize(grid, JsonNaN.Options), JsonNaN.Options)!;

@@ -1,9 +1,9 @@
 using ForecastHub.Core.Grid;
 
-namespace ForecastHub.Core.Tests;
+namespace ForecastHub.Core.Tests.Support;
 
-/// <summary>Test-data factories for the season/grid/model tests.</summary>
-internal static class Some
+/// <summary>Grid and model test-data factories.</summary>
+internal static class SomeGrid
 {
     public static readonly DateTimeOffset Start = new(2024, 1, 1, 0, 0, 0, TimeSpan.Zero);
 

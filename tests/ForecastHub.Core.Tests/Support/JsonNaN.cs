@@ -1,7 +1,7 @@
 using System.Text.Json;
 using System.Text.Json.Serialization;
 
-namespace ForecastHub.Core.Tests;
+namespace ForecastHub.Core.Tests.Support;
 
 internal static class JsonNaN
 {

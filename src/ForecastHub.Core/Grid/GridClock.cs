@@ -1,0 +1,26 @@
+namespace ForecastHub.Core.Grid;
+
+/// <summary>Step arithmetic on a site's grid: hourly steps are UTC hours, daily steps local calendar days.</summary>
+public static class GridClock
+{
+    /// <summary>The start of the step <paramref name="steps"/> after the step starting at <paramref name="stepStart"/>, in the zone's offset.</summary>
+    public static DateTimeOffset StepAfter(GridCadence cadence, TimeZoneInfo zone, DateTimeOffset stepStart, int steps)
+    {
+        ArgumentNullException.ThrowIfNull(zone);
+        return cadence == GridCadence.Hourly
+            ? TimeZoneInfo.ConvertTime(stepStart.AddHours(steps), zone)
+            : GridBuilder.LocalDayStart(GridBuilder.LocalDate(stepStart, zone).AddDays(steps), zone);
+    }
+
+    /// <summary>Start times of the <paramref name="count"/> steps following <paramref name="stepStart"/>.</summary>
+    public static DateTimeOffset[] Following(GridCadence cadence, TimeZoneInfo zone, DateTimeOffset stepStart, int count)
+    {
+        var times = new DateTimeOffset[count];
+        for (var k = 0; k < count; k++)
+        {
+            times[k] = StepAfter(cadence, zone, stepStart, k + 1);
+        }
+
+        return times;
+    }
+}

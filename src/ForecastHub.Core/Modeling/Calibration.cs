@@ -1,0 +1,167 @@
+using ForecastHub.Core.Forecasting;
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Series;
+using MathNet.Numerics.Distributions;
+
+namespace ForecastHub.Core.Modeling;
+
+/// <summary>
+/// Calibrated intervals from rolling-origin out-of-sample errors. The fit window is split at 70%
+/// and 85% of its points: a model fitted (same design and settings) on the points before each
+/// split forecasts from every origin in the next 15% (at most <see cref="MaxOriginsPerFold"/>,
+/// evenly spaced) up to <see cref="Horizons"/> steps ahead. Errors on observed (not interpolated)
+/// steps are standardised by that model's sd, and their empirical quantiles (R type 7) per horizon
+/// form the table, pooling neighbouring horizons until each row rests on at least
+/// <see cref="MinErrorsPerRow"/> errors. The errors thus include parameter and seasonal-fit uncertainty.
+/// </summary>
+public static class Calibration
+{
+    public const int MaxOriginsPerFold = 1500;
+    public const int MinErrorsPerRow = 1000;
+    public const int MinErrors = 100;
+
+    public static readonly IReadOnlyList<double> Probabilities =
+    [
+        0.005, 0.01, 0.025, 0.05, 0.1, 0.15, 0.2, 0.25, 0.3, 0.35, 0.4, 0.45, 0.5,
+        0.55, 0.6, 0.65, 0.7, 0.75, 0.8, 0.85, 0.9, 0.95, 0.975, 0.99, 0.995,
+    ];
+
+    private static readonly double[] Scores = Probabilities.Select(p => Normal.InvCDF(0, 1, p)).ToArray();
+
+    public static int Horizons(GridCadence cadence) => cadence == GridCadence.Hourly ? 48 : 7;
+
+    /// <summary>The interval at a level for horizon h: mean + sd x quantile of the standardised errors.</summary>
+    public static PredictionInterval Interval(CalibrationTable table, int horizon, double mean, double sd, double level)
+    {
+        ArgumentNullException.ThrowIfNull(table);
+        GaussianInterval.Multiplier(level);
+        var row = table.Quantiles[Math.Clamp(horizon, 1, table.Quantiles.Count) - 1];
+        return new PredictionInterval(level, mean + sd * Quantile(row, (1 - level) / 2), mean + sd * Quantile(row, (1 + level) / 2));
+    }
+
+    /// <summary>Quantile of the standardised error at probability p: linear in the normal score between table points, extrapolated beyond them.</summary>
+    public static double Quantile(IReadOnlyList<double> row, double p)
+    {
+        ArgumentNullException.ThrowIfNull(row);
+        var z = Normal.InvCDF(0, 1, p);
+        var i = 1;
+        while (i < Scores.Length - 1 && Scores[i] < z)
+        {
+            i++;
+        }
+
+        var w = (z - Scores[i - 1]) / (Scores[i] - Scores[i - 1]);
+        return row[i - 1] + w * (row[i] - row[i - 1]);
+    }
+
+    internal static CalibrationTable? Build(SeriesWindow window, SiteModel model, ModelSettings settings, List<string> notes)
+    {
+        var horizons = Horizons(model.Cadence);
+        var errors = Enumerable.Range(0, horizons).Select(_ => new List<double>()).ToArray();
+        var n = window.Count;
+        var folds = 0;
+        var origins = 0;
+        foreach (var (from, to) in new[] { (0.70, 0.85), (0.85, 1.0) })
+        {
+            var trainCount = (int)(n * from);
+            var testEnd = (int)(n * to);
+            SiteModel fold;
+            try
+            {
+                fold = SiteModelFitter.FitCore(window.Prefix(trainCount), model.Cadence, model.TimeZone, settings, model.Climatology.Design, [], diagnostics: false);
+            }
+            catch (SeriesException)
+            {
+                continue;
+            }
+
+            folds++;
+            origins += CollectErrors(window, fold, trainCount - 1, testEnd - 1, errors);
+        }
+
+        var total = errors.Sum(e => e.Count);
+        if (total < MinErrors)
+        {
+            notes.Add($"Too little data to calibrate intervals ({total} out-of-sample errors); Gaussian intervals are used.");
+            return null;
+        }
+
+        return new CalibrationTable(Probabilities, QuantileRows(errors), total, origins, folds);
+    }
+
+    private static int CollectErrors(SeriesWindow window, SiteModel fold, int firstOrigin, int lastOrigin, List<double>[] errors)
+    {
+        var ar = fold.Ar;
+        var horizons = errors.Length;
+        var climatology = fold.Climatology.Mean(window.Times);
+        var g = fold.VarianceSeason.Factors(window.Times);
+        var anomalies = window.Values.Select((v, i) => v - climatology[i]).ToArray();
+        var psi = ArForecast.PsiWeights(ar.Coefficients, horizons);
+        var mean = new double[horizons];
+        var sd = new double[horizons];
+        var stride = Math.Max(1, (lastOrigin - firstOrigin + 1) / MaxOriginsPerFold);
+        var count = 0;
+        for (var o = firstOrigin; o < lastOrigin; o += stride)
+        {
+            var segment = window.Segments[window.SegmentOf(o)];
+            var segmentEnd = segment.Start + segment.Length;
+            var steps = Math.Min(horizons, segmentEnd - 1 - o);
+            if (o - ar.Order + 1 < segment.Start || steps < 1)
+            {
+                continue;
+            }
+
+            count++;
+            AnomalyPath.Compute(ar, anomalies.AsSpan(o - ar.Order + 1, ar.Order), psi, g.AsSpan(o + 1, steps), mean.AsSpan(0, steps), sd.AsSpan(0, steps));
+            for (var h = 1; h <= steps; h++)
+            {
+                if (!window.Interpolated[o + h])
+                {
+                    errors[h - 1].Add((anomalies[o + h] - mean[h - 1]) / sd[h - 1]);
+                }
+            }
+        }
+
+        return count;
+    }
+
+    private static double[][] QuantileRows(List<double>[] errors)
+    {
+        var rows = new double[errors.Length][];
+        for (var h = 0; h < errors.Length; h++)
+        {
+            var pooled = new List<double>(errors[h]);
+            for (var w = 1; pooled.Count < MinErrorsPerRow && w < errors.Length; w++)
+            {
+                if (h - w >= 0)
+                {
+                    pooled.AddRange(errors[h - w]);
+                }
+
+                if (h + w < errors.Length)
+                {
+                    pooled.AddRange(errors[h + w]);
+                }
+            }
+
+            pooled.Sort();
+            rows[h] = Probabilities.Select(p => SortedQuantile(pooled, p)).ToArray();
+        }
+
+        return rows;
+    }
+
+    /// <summary>R quantile type 7 of sorted values.</summary>
+    internal static double SortedQuantile(IReadOnlyList<double> sorted, double p)
+    {
+        if (sorted.Count == 0)
+        {
+            return double.NaN;
+        }
+
+        var position = (sorted.Count - 1) * p;
+        var lo = (int)Math.Floor(position);
+        var hi = Math.Min(lo + 1, sorted.Count - 1);
+        return sorted[lo] + (position - lo) * (sorted[hi] - sorted[lo]);
+    }
+}

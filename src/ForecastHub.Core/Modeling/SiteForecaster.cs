@@ -1,0 +1,154 @@
+using ForecastHub.Core.Forecasting;
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Series;
+
+namespace ForecastHub.Core.Modeling;
+
+/// <summary>
+/// Forecasts from the newest data in <paramref name="recent"/>, even when the model is older.
+/// When the newest grid steps are missing, the forecast starts from the last step with a value and
+/// counts horizons from there (so intervals widen), and reports the missing steps. Steps returned
+/// are the <c>steps</c> grid steps after the grid's last step. Hourly sites also get the next local
+/// day's summary from seeded Monte Carlo paths. DEVELOPERS.md, Numerics.
+/// Input rules: null throws ArgumentNullException; steps or paths below 1 and levels outside (0, 1)
+/// ArgumentOutOfRangeException; a grid of another cadence or zone ArgumentException; a grid with no
+/// value SeriesException(Empty); an infinite value SeriesException(NonFinite). History steps that are
+/// missing (NaN) or before the grid start count as the anomaly's mean.
+/// </summary>
+public static class SiteForecaster
+{
+    public const int DefaultPaths = 2000;
+
+    public static SiteForecast Forecast(
+        SiteModel model,
+        TimeGrid recent,
+        int steps,
+        IReadOnlyList<double> levels,
+        IReadOnlyList<Threshold> thresholds,
+        int seed,
+        int paths = DefaultPaths)
+    {
+        ArgumentNullException.ThrowIfNull(model);
+        ArgumentNullException.ThrowIfNull(recent);
+        ArgumentNullException.ThrowIfNull(levels);
+        ArgumentNullException.ThrowIfNull(thresholds);
+        ArgumentOutOfRangeException.ThrowIfLessThan(steps, 1);
+        ArgumentOutOfRangeException.ThrowIfLessThan(paths, 1);
+        foreach (var level in levels)
+        {
+            GaussianInterval.Multiplier(level);
+        }
+
+        if (recent.Cadence != model.Cadence || recent.TimeZone != model.TimeZone)
+        {
+            throw new ArgumentException("The grid's cadence or time zone differs from the model's.", nameof(recent));
+        }
+
+        var last = recent.LastValueIndex;
+        if (last < 0)
+        {
+            throw new SeriesException(SeriesProblem.Empty, "The grid has no value to forecast from.");
+        }
+
+        var zone = GridBuilder.FindZone(model.TimeZone);
+        var missing = recent.Count - 1 - last;
+        var horizons = missing + steps;
+        NextDayPlan? plan = model.Cadence == GridCadence.Hourly ? PlanNextDay(recent, last, zone) : null;
+        var total = Math.Max(horizons, plan?.Last ?? 0);
+
+        var ar = model.Ar;
+        var historyTimes = recent.Times.AsSpan(Math.Max(0, last - ar.Order + 1), Math.Min(ar.Order, last + 1)).ToArray();
+        var historyClimatology = model.Climatology.Mean(historyTimes);
+        var anomalies = new double[last + 1];
+        Array.Fill(anomalies, double.NaN);
+        for (var i = 0; i < historyTimes.Length; i++)
+        {
+            var t = last - historyTimes.Length + 1 + i;
+            if (double.IsInfinity(recent.Values[t]))
+            {
+                throw new SeriesException(SeriesProblem.NonFinite, $"Grid value at {recent.Times[t]:O} is not finite.");
+            }
+
+            anomalies[t] = recent.Values[t] - historyClimatology[i];
+        }
+
+        var history = AnomalyPath.History(ar, anomalies, last);
+        var times = GridClock.Following(model.Cadence, zone, recent.Times[last], total);
+        var climatology = model.Climatology.Mean(times);
+        var g = model.VarianceSeason.Factors(times);
+        var psi = ArForecast.PsiWeights(ar.Coefficients, total);
+        var mean = new double[total];
+        var sd = new double[total];
+        AnomalyPath.Compute(ar, history, psi, g, mean, sd);
+        for (var k = 0; k < total; k++)
+        {
+            mean[k] += climatology[k];
+        }
+
+        var table = model.Settings.IntervalMethod == IntervalMethod.Calibrated ? model.Calibration : null;
+        var notes = new List<string>();
+        if (model.Settings.IntervalMethod == IntervalMethod.Calibrated && table is null)
+        {
+            notes.Add("The model has no calibration table; Gaussian intervals are used.");
+        }
+
+        if (missing > 0)
+        {
+            notes.Add($"The newest {missing} grid step(s) are missing; the forecast starts from {recent.Times[last]:O} and its intervals are wider.");
+        }
+
+        var result = new ForecastStep[steps];
+        for (var s = 0; s < steps; s++)
+        {
+            var k = missing + s;
+            var intervals = levels.Select(level => table is null
+                ? GaussianInterval.Of(mean[k], sd[k], level)
+                : Calibration.Interval(table, k + 1, mean[k], sd[k], level)).ToArray();
+            result[s] = new ForecastStep(times[k], k + 1, mean[k], sd[k], intervals);
+        }
+
+        var nextDay = plan is { } p ? Summarise(model, table, p, mean, g, levels, thresholds, paths, seed) : null;
+        return new SiteForecast(recent.Times[last], missing, table is null ? IntervalMethod.Gaussian : IntervalMethod.Calibrated, result, nextDay, notes);
+    }
+
+    private sealed record NextDayPlan(DateOnly Date, DateTimeOffset From, DateTimeOffset To, int First, int Last);
+
+    /// <summary>The local day after the one holding the grid's last step; First/Last are 1-based horizons from the newest value.</summary>
+    private static NextDayPlan PlanNextDay(TimeGrid recent, int last, TimeZoneInfo zone)
+    {
+        var date = GridBuilder.LocalDate(recent.Times[^1], zone).AddDays(1);
+        var from = GridBuilder.LocalDayStart(date, zone);
+        var to = GridBuilder.LocalDayStart(date.AddDays(1), zone);
+        var lastValue = recent.Times[last];
+        var first = (int)Math.Round((from - lastValue).TotalHours);
+        var end = (int)Math.Round((to - lastValue).TotalHours);
+        return new NextDayPlan(date, from, to, first, end - 1);
+    }
+
+    private static NextDaySummary Summarise(SiteModel model, CalibrationTable? table, NextDayPlan plan, double[] mean, double[] g, IReadOnlyList<double> levels, IReadOnlyList<Threshold> thresholds, int paths, int seed)
+    {
+        // Widen the simulated innovations by the calibration's 80% spread ratio over the day's horizons.
+        var inflation = 1.0;
+        if (table is not null)
+        {
+            var z80 = GaussianInterval.Multiplier(0.8);
+            inflation = Enumerable.Range(plan.First, plan.Last - plan.First + 1)
+                .Average(h => (Calibration.Interval(table, h, 0, 1, 0.8).Upper - Calibration.Interval(table, h, 0, 1, 0.8).Lower) / (2 * z80));
+        }
+
+        var (min, max, dayMean) = NextDaySimulation.Run(model.Ar, mean, g, inflation, plan.First, plan.Last, paths, seed);
+        var probabilities = thresholds.Select(t => new ThresholdProbability(
+            t.Value,
+            t.Direction,
+            t.Direction == ThresholdDirection.Below ? min.Count(v => v < t.Value) / (double)paths : max.Count(v => v > t.Value) / (double)paths)).ToArray();
+        return new NextDaySummary(plan.Date, plan.From, plan.To, Describe(min, levels), Describe(max, levels), Describe(dayMean, levels), probabilities, paths, seed);
+    }
+
+    private static DistributionSummary Describe(double[] values, IReadOnlyList<double> levels)
+    {
+        var sorted = values.Order().ToArray();
+        return new DistributionSummary(
+            values.Average(),
+            levels.Select(l => new PredictionInterval(l, Calibration.SortedQuantile(sorted, (1 - l) / 2), Calibration.SortedQuantile(sorted, (1 + l) / 2))).ToArray());
+    }
+}

@@ -1,0 +1,211 @@
+using ForecastHub.Core.Autoregression;
+using ForecastHub.Core.Climatology;
+using ForecastHub.Core.Correlation;
+using ForecastHub.Core.Diagnostics;
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Selection;
+using ForecastHub.Core.Series;
+
+namespace ForecastHub.Core.Modeling;
+
+/// <summary>
+/// Fits a site model from its grid: climatology (harmonic regression), AR order selection and
+/// estimation on the anomalies, GLS refit of the harmonics with the AR errors, seasonal innovation
+/// variance, diagnostics and (by default) the interval calibration table. DEVELOPERS.md, Numerics.
+/// Input rules: null throws ArgumentNullException; bad settings ArgumentOutOfRangeException; a grid
+/// with no steps or no values SeriesException(Empty); fewer than <see cref="MinimumPoints"/> points in
+/// the window SeriesException(TooShort); a constant window SeriesException(Constant); an infinite
+/// value SeriesException(NonFinite). Missing grid steps (NaN) are gaps, never errors.
+/// </summary>
+public static class SiteModelFitter
+{
+    public const int MinimumPoints = 10;
+
+    public static SiteModel Fit(TimeGrid grid, ModelSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(grid);
+        ArgumentNullException.ThrowIfNull(settings);
+        settings.Validate();
+        if (grid.Count == 0)
+        {
+            throw new SeriesException(SeriesProblem.Empty, "The grid has no steps.");
+        }
+
+        if (grid.LastValueIndex < 0)
+        {
+            throw new SeriesException(SeriesProblem.Empty, "Every grid step is missing.");
+        }
+
+        var window = SeriesWindow.FromGrid(grid, settings.FitWindowDays);
+        var notes = new List<string>();
+        var design = ResolveDesign(window, grid.Cadence, grid.TimeZone, settings.Seasonality, notes);
+        var model = FitCore(window, grid.Cadence, grid.TimeZone, settings, design, notes, diagnostics: true);
+        if (settings.IntervalMethod == IntervalMethod.Calibrated)
+        {
+            var table = Calibration.Build(window, model, settings, notes);
+            model = model with { Calibration = table };
+        }
+
+        return model;
+    }
+
+    /// <summary>Annual terms need a year of data; diurnal terms an hourly grid (DESIGN.md section 3).</summary>
+    internal static HarmonicDesign ResolveDesign(SeriesWindow window, GridCadence cadence, string timeZone, Seasonality seasonality, List<string> notes)
+    {
+        var yearOfData = window.Count > 0 && (window.Times[^1] - window.Times[0]).TotalDays >= 365;
+        var hourly = cadence == GridCadence.Hourly;
+        var (annual, diurnal) = seasonality switch
+        {
+            Seasonality.None => (0, 0),
+            Seasonality.Annual => (2, 0),
+            Seasonality.AnnualDiurnal => (2, hourly ? 3 : 0),
+            _ => (yearOfData ? 2 : 0, hourly ? 3 : 0),
+        };
+        if (annual > 0 && !yearOfData)
+        {
+            notes.Add("Annual harmonics need a year of data; fitted without them.");
+            annual = 0;
+        }
+
+        if (seasonality == Seasonality.AnnualDiurnal && !hourly)
+        {
+            notes.Add("Diurnal harmonics apply to hourly sites only; fitted without them.");
+        }
+
+        return new HarmonicDesign(cadence, timeZone, annual, diurnal);
+    }
+
+    internal static SiteModel FitCore(SeriesWindow window, GridCadence cadence, string timeZone, ModelSettings settings, HarmonicDesign design, List<string> notes, bool diagnostics)
+    {
+        var n = window.Count;
+        if (n < Math.Max(MinimumPoints, design.Columns + 2))
+        {
+            throw new SeriesException(SeriesProblem.TooShort, $"{n} grid points are too few to fit a model (at least {Math.Max(MinimumPoints, design.Columns + 2)} needed).");
+        }
+
+        var y = window.Values;
+        for (var i = 0; i < n; i++)
+        {
+            if (!double.IsFinite(y[i]))
+            {
+                throw new SeriesException(SeriesProblem.NonFinite, $"Grid value at {window.Times[i]:O} is not finite.");
+            }
+        }
+
+        if (y.All(v => v == y[0]))
+        {
+            throw new SeriesException(SeriesProblem.Constant, "Every grid value is the same; no anomaly model can be fitted.");
+        }
+
+        var levelOnly = design.Columns == 1;
+        var x = levelOnly ? null : design.Matrix(window.Times);
+        double[] coefficients;
+        double[] stdErrors;
+        double residualSd;
+        string estimation;
+        OrderSelectionResult selection;
+        double[] anomalies;
+        if (levelOnly)
+        {
+            // Seasonality none: the sample mean, so the AR part equals R's ar on the raw series.
+            var mean = y.Average();
+            coefficients = [mean];
+            anomalies = y.Select(v => v - mean).ToArray();
+            selection = Select(window, anomalies, settings);
+            var phiSum = selection.Model.Coefficients.Sum();
+            stdErrors = [Math.Sqrt(selection.Model.InnovationVariance / n) / Math.Abs(1 - phiSum)];
+            residualSd = Math.Sqrt(anomalies.Sum(a => a * a) / (n - 1));
+            estimation = "mean";
+        }
+        else
+        {
+            var ols = HarmonicRegression.Ols(x!, y);
+            anomalies = Residuals(x!, y, ols.Coefficients);
+            selection = Select(window, anomalies, settings);
+            (coefficients, stdErrors, residualSd, estimation) = (ols.Coefficients, ols.StdErrors, ols.Sigma, "ols");
+            if (selection.ChosenOrder > 0)
+            {
+                var gls = HarmonicRegression.Gls(x!, y, window.Segments, selection.Model.Coefficients);
+                anomalies = Residuals(x!, y, gls.Coefficients);
+                selection = Select(window, anomalies, settings);
+                (coefficients, stdErrors, estimation) = (gls.Coefficients, gls.StdErrors, "gls");
+                residualSd = Math.Sqrt(anomalies.Sum(a => a * a) / (n - design.Columns));
+            }
+        }
+
+        var ar = selection.Model;
+        var names = design.TermNames();
+        var climatology = new ClimatologyFit(
+            settings.Seasonality,
+            design,
+            names.Select((name, i) => new HarmonicTerm(name, coefficients[i], stdErrors[i])).ToArray(),
+            estimation,
+            residualSd,
+            n);
+        var anomalySegments = window.Split(anomalies);
+        var residuals = ArFit.Residuals(ar, anomalySegments);
+        var varianceSeason = FitVarianceSeason(window, residuals, ar.Order, design);
+        var residualDiagnostics = diagnostics ? Diagnose(residuals, ar.Order, cadence) : new ResidualDiagnostics(null, null, ResidualSummary.Of(residuals));
+        var acfLags = Math.Min(Math.Max(selection.MaxOrder, 1), n - 1);
+        var acf = diagnostics ? Autocorrelation.Acf(anomalySegments, acfLags).Skip(1).Select((r, k) => new LagValue(k + 1, r)).ToArray() : [];
+        var fitWindow = new FitWindow(window.Times[0], window.Times[^1], n, window.Interpolated.Count(b => b), window.Segments.Length);
+        return new SiteModel(cadence, timeZone, settings, fitWindow, climatology, ar, selection, varianceSeason, null, residualDiagnostics, acf, [.. notes]);
+    }
+
+    private static OrderSelectionResult Select(SeriesWindow window, double[] anomalies, ModelSettings settings) =>
+        OrderSelection.Select(window.Split(anomalies), settings.Method, settings.OrderPolicy, settings.MaxOrder);
+
+    private static double[] Residuals(double[,] x, double[] y, double[] beta)
+    {
+        var r = new double[y.Length];
+        for (var i = 0; i < y.Length; i++)
+        {
+            var fit = 0.0;
+            for (var c = 0; c < beta.Length; c++)
+            {
+                fit += x[i, c] * beta[c];
+            }
+
+            r[i] = y[i] - fit;
+        }
+
+        return r;
+    }
+
+    /// <summary>Harmonics (at most 2 annual, 2 diurnal) on the squared one-step residuals; see <see cref="VarianceSeason"/>.</summary>
+    private static VarianceSeason FitVarianceSeason(SeriesWindow window, IReadOnlyList<double[]> residuals, int order, HarmonicDesign design)
+    {
+        var vDesign = design with { AnnualHarmonics = Math.Min(design.AnnualHarmonics, 2), DiurnalHarmonics = Math.Min(design.DiurnalHarmonics, 2) };
+        const double floor = 0.2;
+        var times = new List<DateTimeOffset>();
+        var squares = new List<double>();
+        for (var s = 0; s < window.Segments.Length; s++)
+        {
+            var (start, _) = window.Segments[s];
+            for (var k = 0; k < residuals[s].Length; k++)
+            {
+                times.Add(window.Times[start + order + k]);
+                squares.Add(residuals[s][k] * residuals[s][k]);
+            }
+        }
+
+        var meanSquare = squares.Count > 0 ? squares.Average() : 0;
+        if (vDesign.Columns == 1 || !(meanSquare > 0) || squares.Count < 10 * vDesign.Columns)
+        {
+            return new VarianceSeason(vDesign with { AnnualHarmonics = 0, DiurnalHarmonics = 0 }, [1.0], floor);
+        }
+
+        var fit = HarmonicRegression.Ols(vDesign.Matrix(times), squares.Select(v => v / meanSquare).ToArray());
+        return new VarianceSeason(vDesign, fit.Coefficients, floor);
+    }
+
+    /// <summary>Ljung-Box on p + 24 lags (hourly) or p + 10 (daily), df = lags - p (common practice, no source).</summary>
+    private static ResidualDiagnostics Diagnose(IReadOnlyList<double[]> residuals, int order, GridCadence cadence)
+    {
+        var summary = ResidualSummary.Of(residuals);
+        var lags = order + (cadence == GridCadence.Hourly ? 24 : 10);
+        var ljungBox = summary.Count > lags + 1 && summary.Sd > 0 ? LjungBox.Test(residuals, lags, order) : null;
+        var jarqueBera = summary.Sd > 0 ? JarqueBera.Test(residuals) : null;
+        return new ResidualDiagnostics(ljungBox, jarqueBera, summary);
+    }
+}
