@@ -1,6 +1,8 @@
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Hosting;
+using ForecastHub.Api.Keys;
+using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
 
@@ -15,6 +17,9 @@ builder.AddForecastHubLogging();
 builder.Services.AddForecastHubProblems();
 builder.Services.AddForecastHubStorage();
 builder.Services.AddForecastHubAuth();
+builder.Services.AddForecastHubRequestLimits();
+builder.Services.AddForecastHubRateLimits();
+builder.Services.AddForecastHubOpenApi();
 
 var app = builder.Build();
 
@@ -23,6 +28,7 @@ app.UseForecastHubPipeline();
 app.MapHealth();
 var api = app.MapGroup("/api/v1");
 api.MapSites();
+api.MapKeys();
 
 app.Run();
 return 0;

@@ -1,10 +1,12 @@
+using ForecastHub.Api.OpenApi;
 using Serilog;
 
 namespace ForecastHub.Api.Hosting;
 
 public static class PipelineSetup
 {
-    /// <summary>Request logging, problem+json for every error, then authentication and
+    /// <summary>Request logging, problem+json for every error, security headers, the OpenAPI
+    /// document, per-endpoint body limits, then authentication, the per-key rate limit and
     /// authorization; features map their endpoints after this.</summary>
     public static WebApplication UseForecastHubPipeline(this WebApplication app)
     {
@@ -13,7 +15,14 @@ public static class PipelineSetup
             options.MessageTemplate = "HTTP {RequestMethod} {RequestPath} responded {StatusCode} in {Elapsed:0.0} ms");
         app.UseExceptionHandler();
         app.UseStatusCodePages();
+        app.UseSecurityHeaders();
+        app.UseForecastHubOpenApi();
+        app.UseRouting();
+        app.UseRequestBodyLimits();
         app.UseAuthentication();
+        // After authentication, so the limit is counted per key; before authorization, so refused
+        // calls count too.
+        app.UseRateLimiter();
         app.UseAuthorization();
         return app;
     }

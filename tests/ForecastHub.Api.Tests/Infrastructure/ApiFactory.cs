@@ -1,5 +1,6 @@
 using System.Net.Http.Headers;
 using Microsoft.AspNetCore.Hosting;
+using Microsoft.AspNetCore.TestHost;
 using Microsoft.AspNetCore.Mvc.Testing;
 using Microsoft.Data.Sqlite;
 using Microsoft.Extensions.DependencyInjection;
@@ -10,15 +11,24 @@ namespace ForecastHub.Api.Tests.Infrastructure;
 /// <summary>The real pipeline on its own SQLite file, with a fake clock and a known admin key.</summary>
 public sealed class ApiFactory : WebApplicationFactory<Program>
 {
-    public const string AdminKey = "test-admin-key-7f3a9c";
+    public const string AdminKey = "test-admin-key-7f3a9c-0123456789abcdef";
 
     public static readonly DateTimeOffset Now = new(2025, 6, 1, 12, 0, 0, TimeSpan.Zero);
 
-    public string DatabasePath { get; } = TestFiles.NewDatabasePath();
+    public string DatabasePath { get; init; } = TestFiles.NewDatabasePath();
+
+    /// <summary>Leaves the database file in place on dispose, for a test that restarts on it.</summary>
+    public bool KeepDatabase { get; init; }
 
     public FakeTimeProvider Clock { get; } = new(Now);
 
     public bool AllowAnonymousRead { get; init; }
+
+    /// <summary>Extra configuration, applied after the defaults above (a null value clears a key).</summary>
+    public IReadOnlyDictionary<string, string?> Settings { get; init; } = new Dictionary<string, string?>();
+
+    /// <summary>Service replacements applied after the app's own registrations.</summary>
+    public Action<IServiceCollection>? TestServices { get; init; }
 
     protected override void ConfigureWebHost(IWebHostBuilder builder)
     {
@@ -26,7 +36,15 @@ public sealed class ApiFactory : WebApplicationFactory<Program>
         builder.UseSetting("Auth:AdminKey", AdminKey);
         builder.UseSetting("Auth:AllowAnonymousRead", AllowAnonymousRead ? "true" : "false");
         builder.UseSetting("Serilog:MinimumLevel:Default", "Warning");
+        foreach (var (key, value) in Settings)
+        {
+            builder.UseSetting(key, value);
+        }
         builder.ConfigureServices(services => services.AddSingleton<TimeProvider>(Clock));
+        if (TestServices is not null)
+        {
+            builder.ConfigureTestServices(TestServices);
+        }
     }
 
     /// <summary>A client that sends the admin key.</summary>
@@ -40,7 +58,10 @@ public sealed class ApiFactory : WebApplicationFactory<Program>
     public override async ValueTask DisposeAsync()
     {
         await base.DisposeAsync();
-        TestFiles.DeleteDatabase(DatabasePath);
+        if (!KeepDatabase)
+        {
+            TestFiles.DeleteDatabase(DatabasePath);
+        }
     }
 }
 

@@ -1,0 +1,174 @@
+using System.Text.Json;
+using System.Text.RegularExpressions;
+using ForecastHub.Api.Auth;
+using ForecastHub.Api.Hosting;
+using ForecastHub.Api.Problems;
+using ForecastHub.Api.Sites;
+using ForecastHub.Storage.Keys;
+using Microsoft.AspNetCore.Http.HttpResults;
+using Microsoft.AspNetCore.Mvc;
+
+namespace ForecastHub.Api.Keys;
+
+public static partial class KeysEndpoints
+{
+    public const int MaxBodyBytes = 4 * 1024;
+    public const int MaxSiteIds = 100;
+    public const int MaxLabelLength = 100;
+    public const int DefaultPageSize = 100;
+    public const int MaxPageSize = 1000;
+
+    private static readonly string[] Scopes = [ApiKeyScopes.Admin, ApiKeyScopes.Ingest, ApiKeyScopes.Read];
+
+    private static readonly JsonSerializerOptions BodyOptions = new(JsonSerializerDefaults.Web)
+    {
+        UnmappedMemberHandling = System.Text.Json.Serialization.JsonUnmappedMemberHandling.Disallow,
+        AllowDuplicateProperties = false,
+    };
+
+    /// <summary>Key management; every call needs an admin key.</summary>
+    public static RouteGroupBuilder MapKeys(this IEndpointRouteBuilder routes)
+    {
+        var group = routes.MapGroup("/keys").WithTags("Keys").RequireAuthorization(AuthPolicies.Admin);
+        group.MapPost("/", Create).WithName("CreateKey")
+            .WithSummary("Create an API key; the answer is the only time its secret is shown.")
+            .Accepts<KeyBody>("application/json")
+            .WithRequestBodyLimit(MaxBodyBytes);
+        group.MapGet("/", List).WithName("ListKeys").WithSummary("List API keys by id, one page at a time, without their secrets.");
+        group.MapGet("/{keyId}", Get).WithName("GetKey").WithSummary("Read one API key without its secret.");
+        group.MapDelete("/{keyId}", Revoke).WithName("RevokeKey")
+            .WithSummary("Revoke an API key; it stops working at once and stays listed with its revocation time.");
+        return group;
+    }
+
+    public static async Task<Results<Created<CreatedKeyResponse>, ValidationProblem, ProblemHttpResult>> Create(
+        HttpRequest request, HttpResponse response, IApiKeyStore keys, TimeProvider clock, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(response);
+        var (body, problem) = await ReadBody(request, cancellationToken).ConfigureAwait(false);
+        if (problem is not null)
+        {
+            return problem;
+        }
+        var errors = Validate(body!);
+        if (errors.Count > 0)
+        {
+            return ApiProblems.Invalid(errors);
+        }
+        var secret = ApiKeySecrets.NewSecret();
+        var siteIds = (body!.SiteIds ?? []).Distinct(StringComparer.Ordinal).Order(StringComparer.Ordinal).ToList();
+        var record = new ApiKeyRecord(ApiKeySecrets.NewId(), ApiKeySecrets.Digest(secret), body.Scope!, siteIds,
+            string.IsNullOrWhiteSpace(body.Label) ? null : body.Label.Trim(), clock.GetUtcNow(), null);
+        if (!await keys.CreateAsync(record, cancellationToken).ConfigureAwait(false))
+        {
+            return ApiProblems.Conflict("A key with the same id was created at the same moment; send the request again.");
+        }
+        // The secret must not linger in any cache between the service and the caller.
+        response.Headers.CacheControl = "no-store";
+        return TypedResults.Created($"/api/v1/keys/{record.Id}",
+            new CreatedKeyResponse(record.Id, secret, record.Scope, record.SiteIds, record.Label, record.CreatedAt));
+    }
+
+    public static async Task<Results<Ok<KeyList>, ProblemHttpResult>> List(
+        IApiKeyStore keys, [FromQuery] string? after, [FromQuery] string? limit, CancellationToken cancellationToken)
+    {
+        var pageSize = DefaultPageSize;
+        if (limit is not null && (!int.TryParse(limit, out pageSize) || pageSize < 1 || pageSize > MaxPageSize))
+        {
+            return ApiProblems.BadRequest("limit", $"limit must be a whole number from 1 to {MaxPageSize}.");
+        }
+        var page = await keys.ListAsync(after, pageSize + 1, cancellationToken).ConfigureAwait(false);
+        var shown = page.Take(pageSize).Select(KeyResponse.From).ToList();
+        var next = page.Count > pageSize ? $"/api/v1/keys?after={Uri.EscapeDataString(shown[^1].Id)}&limit={pageSize}" : null;
+        return TypedResults.Ok(new KeyList(shown, next));
+    }
+
+    public static async Task<Results<Ok<KeyResponse>, ProblemHttpResult>> Get(string keyId, IApiKeyStore keys, CancellationToken cancellationToken)
+    {
+        var key = await keys.GetAsync(keyId, cancellationToken).ConfigureAwait(false);
+        return key is null ? NoSuchKey(keyId) : TypedResults.Ok(KeyResponse.From(key));
+    }
+
+    public static async Task<Results<NoContent, ProblemHttpResult>> Revoke(
+        string keyId, IApiKeyStore keys, ApiKeyCache cache, TimeProvider clock, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(cache);
+        if (keyId == StoredApiKeyVerifier.ConfiguredAdminKeyId)
+        {
+            return ApiProblems.Conflict("The configured admin key cannot be revoked here: remove or change Auth:AdminKey in the configuration and restart.");
+        }
+        if (!KeyIdPattern().IsMatch(keyId))
+        {
+            return NoSuchKey(keyId);
+        }
+        var revoked = await keys.RevokeAsync(keyId, clock.GetUtcNow(), cancellationToken).ConfigureAwait(false);
+        cache.Evict(keyId);
+        return revoked is null ? NoSuchKey(keyId) : TypedResults.NoContent();
+    }
+
+    private static ProblemHttpResult NoSuchKey(string keyId) =>
+        ApiProblems.NotFound(KeyIdPattern().IsMatch(keyId)
+            ? $"There is no key '{keyId}'."
+            : "There is no such key: key ids look like 'key-' followed by 16 hexadecimal digits.");
+
+    [GeneratedRegex("^key-[0-9a-f]{16}$")]
+    private static partial Regex KeyIdPattern();
+
+    private static Dictionary<string, string[]> Validate(KeyBody body)
+    {
+        var errors = new Dictionary<string, string[]>();
+        if (body.Scope is null || !Scopes.Contains(body.Scope, StringComparer.Ordinal))
+        {
+            errors["scope"] = [$"scope must be one of {string.Join(", ", Scopes)}."];
+        }
+        var siteIds = body.SiteIds ?? [];
+        if (siteIds.Count > 0 && body.Scope != ApiKeyScopes.Ingest)
+        {
+            errors["siteIds"] = ["siteIds applies to ingest keys only; admin and read keys cover every site."];
+        }
+        else if (siteIds.Count > MaxSiteIds)
+        {
+            errors["siteIds"] = [$"An ingest key may list at most {MaxSiteIds} sites; leave siteIds out for all sites."];
+        }
+        else if (siteIds.Where(s => s is null || !SiteRules.IsValidSiteId(s)).Select(s => s ?? "null").FirstOrDefault() is { } bad)
+        {
+            errors["siteIds"] = [$"'{bad}' is not a site id: site ids are slugs of lower-case letters, digits and '-', at most 63 characters."];
+        }
+        if (body.Label is { Length: > MaxLabelLength })
+        {
+            errors["label"] = [$"label may be at most {MaxLabelLength} characters."];
+        }
+        return errors;
+    }
+
+    private static async Task<(KeyBody? Body, ProblemHttpResult? Problem)> ReadBody(HttpRequest request, CancellationToken cancellationToken)
+    {
+        if (!RequestBody.IsJson(request))
+        {
+            return (null, ApiProblems.UnsupportedMediaType("Send the key request as JSON with 'Content-Type: application/json'."));
+        }
+        var bytes = await RequestBody.ReadAsync(request, MaxBodyBytes, cancellationToken).ConfigureAwait(false);
+        if (bytes is null)
+        {
+            return (null, ApiProblems.TooLarge($"A key request may be at most {MaxBodyBytes / 1024} KiB."));
+        }
+        using var document = RequestBody.ParseJson(bytes, out var error);
+        if (document is null)
+        {
+            return (null, ApiProblems.BadRequest("body", error!));
+        }
+        if (document.RootElement.ValueKind != JsonValueKind.Object)
+        {
+            return (null, ApiProblems.BadRequest("body", "The body must be a JSON object such as {\"scope\": \"read\"}."));
+        }
+        try
+        {
+            return (document.RootElement.Deserialize<KeyBody>(BodyOptions)!, null);
+        }
+        catch (JsonException e)
+        {
+            var field = (e.Path ?? "$").TrimStart('$').TrimStart('.');
+            return (null, ApiProblems.BadRequest(field, $"'{field}' is not allowed here or has the wrong type."));
+        }
+    }
+}

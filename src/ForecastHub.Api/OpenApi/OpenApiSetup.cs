@@ -1,0 +1,55 @@
+using Microsoft.OpenApi;
+
+namespace ForecastHub.Api.OpenApi;
+
+public static class OpenApiSetup
+{
+    public const string DocumentName = "v1";
+    public const string DocumentPath = "/swagger/v1/swagger.json";
+    public const string BearerScheme = "Bearer";
+
+    /// <summary>The OpenAPI description of every endpoint: names and summaries from the endpoints,
+    /// the Bearer key scheme, and problem answers added by <see cref="ProblemResponsesFilter"/>.</summary>
+    public static IServiceCollection AddForecastHubOpenApi(this IServiceCollection services)
+    {
+        services.AddEndpointsApiExplorer();
+        services.AddSwaggerGen(options =>
+        {
+            options.SwaggerDoc(DocumentName, new OpenApiInfo
+            {
+                Title = "ForecastHub API",
+                Version = "v1",
+                Description = "Per-site next-day temperature forecasts from each site's own measured history. " +
+                    "Errors are application/problem+json (RFC 9457). Send keys as 'Authorization: Bearer <key>'. " +
+                    "Forecasts are statistical and cannot see an approaching front: for frost protection, heat stress, " +
+                    "road ice and other decisions where people or property are at risk, official warnings, local codes " +
+                    "and licensed practice come first.",
+            });
+            options.AddSecurityDefinition(BearerScheme, new OpenApiSecurityScheme
+            {
+                Type = SecuritySchemeType.Http,
+                Scheme = "bearer",
+                BearerFormat = "API key",
+                Description = "An API key: scope admin (everything), ingest (posting observations, to all or to listed sites) " +
+                    "or read (every read). Reads need no key when the service runs with Auth:AllowAnonymousRead=true.",
+            });
+            options.OperationFilter<ProblemResponsesFilter>();
+            options.SupportNonNullableReferenceTypes();
+        });
+        return services;
+    }
+
+    /// <summary>The document at <see cref="DocumentPath"/> and Swagger UI at <c>/swagger</c>; both public.</summary>
+    public static WebApplication UseForecastHubOpenApi(this WebApplication app)
+    {
+        ArgumentNullException.ThrowIfNull(app);
+        app.UseSwagger();
+        app.UseSwaggerUI(options =>
+        {
+            options.SwaggerEndpoint(DocumentPath, "ForecastHub API v1");
+            options.RoutePrefix = "swagger";
+            options.DocumentTitle = "ForecastHub API";
+        });
+        return app;
+    }
+}

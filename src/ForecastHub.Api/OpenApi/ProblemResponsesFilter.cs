@@ -1,0 +1,74 @@
+using ForecastHub.Api.Auth;
+using Microsoft.AspNetCore.Authorization;
+using Microsoft.AspNetCore.Mvc;
+using Microsoft.OpenApi;
+using Swashbuckle.AspNetCore.SwaggerGen;
+
+namespace ForecastHub.Api.OpenApi;
+
+/// <summary>
+/// Adds what every endpoint shares by convention, so new endpoints are described without extra
+/// work: the Bearer requirement and 401/403/429 on endpoints that need a key, 404 where the route
+/// names a site or key, 400/413/415 where a body is accepted, and problem+json on each of them.
+/// </summary>
+public sealed class ProblemResponsesFilter : IOperationFilter
+{
+    public void Apply(OpenApiOperation operation, OperationFilterContext context)
+    {
+        ArgumentNullException.ThrowIfNull(operation);
+        ArgumentNullException.ThrowIfNull(context);
+        var metadata = context.ApiDescription.ActionDescriptor.EndpointMetadata;
+        var policies = metadata.OfType<IAuthorizeData>().Select(a => a.Policy).Where(p => p is not null).ToList();
+        var needsKey = policies.Count > 0 && !metadata.OfType<IAllowAnonymous>().Any();
+        operation.Responses ??= [];
+
+        if (needsKey)
+        {
+            operation.Security ??= [];
+            operation.Security.Add(new OpenApiSecurityRequirement
+            {
+                [new OpenApiSecuritySchemeReference(OpenApiSetup.BearerScheme, context.Document)] = [],
+            });
+            var scope = policies.Contains(AuthPolicies.Admin) ? "an admin key"
+                : policies.Contains(AuthPolicies.Ingest) ? "an admin key, or an ingest key for this site"
+                : "a read or admin key (no key when anonymous reads are on)";
+            operation.Description = $"Needs {scope}.";
+            Add(operation, context, StatusCodes.Status401Unauthorized, "No key, a malformed Authorization header, or an unknown or revoked key.");
+            Add(operation, context, StatusCodes.Status403Forbidden, "The key's scope does not allow this call.");
+            Add(operation, context, StatusCodes.Status429TooManyRequests, "This key made too many requests; see Retry-After.");
+        }
+
+        var route = context.ApiDescription.RelativePath ?? "";
+        if (route.Contains("{siteId}", StringComparison.Ordinal) || route.Contains("{keyId}", StringComparison.Ordinal))
+        {
+            Add(operation, context, StatusCodes.Status404NotFound, "No such site or key.");
+        }
+
+        if (operation.RequestBody is not null || context.ApiDescription.SupportedRequestFormats.Count > 0)
+        {
+            Add(operation, context, StatusCodes.Status400BadRequest, "The body is malformed or a field is invalid; the problem names the field.");
+            Add(operation, context, StatusCodes.Status413PayloadTooLarge, "The body is larger than this endpoint accepts.");
+            Add(operation, context, StatusCodes.Status415UnsupportedMediaType, "The Content-Type is not one this endpoint reads.");
+        }
+    }
+
+    private static void Add(OpenApiOperation operation, OperationFilterContext context, int status, string description)
+    {
+        var code = status.ToString(System.Globalization.CultureInfo.InvariantCulture);
+        if (operation.Responses!.ContainsKey(code))
+        {
+            return;
+        }
+        operation.Responses[code] = new OpenApiResponse
+        {
+            Description = description,
+            Content = new Dictionary<string, OpenApiMediaType>
+            {
+                ["application/problem+json"] = new()
+                {
+                    Schema = context.SchemaGenerator.GenerateSchema(typeof(ProblemDetails), context.SchemaRepository),
+                },
+            },
+        };
+    }
+}

@@ -1,0 +1,24 @@
+namespace ForecastHub.Storage.Keys;
+
+/// <summary>API keys, found by the digest of their secret. Revoked keys stay listed with their
+/// revocation time and never authenticate again.</summary>
+public interface IApiKeyStore
+{
+    /// <summary>Stores a new key; false when its id or digest is taken.</summary>
+    Task<bool> CreateAsync(ApiKeyRecord key, CancellationToken cancellationToken = default);
+
+    /// <summary>The key whose secret has this SHA-256 digest, revoked or not; null when none.</summary>
+    Task<ApiKeyRecord?> FindBySecretAsync(byte[] secretSha256, CancellationToken cancellationToken = default);
+
+    Task<ApiKeyRecord?> GetAsync(string id, CancellationToken cancellationToken = default);
+
+    /// <summary>Keys ordered by id, starting after <paramref name="afterId"/> (exclusive).</summary>
+    Task<IReadOnlyList<ApiKeyRecord>> ListAsync(string? afterId, int limit, CancellationToken cancellationToken = default);
+
+    /// <summary>Marks the key revoked at <paramref name="at"/>; answers the stored key (already
+    /// revoked keys keep their first revocation time), or null when it does not exist.</summary>
+    Task<ApiKeyRecord?> RevokeAsync(string id, DateTimeOffset at, CancellationToken cancellationToken = default);
+
+    /// <summary>Whether any admin key is still active.</summary>
+    Task<bool> HasActiveAdminAsync(CancellationToken cancellationToken = default);
+}
