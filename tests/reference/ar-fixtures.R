@@ -1,7 +1,8 @@
 # Writes the AR reference fixture read by ForecastHub.Core.Tests (ArReferenceTests).
 # Run from the repository root:  Rscript tests/reference/ar-fixtures.R
-# Needs only base R and its stats package (Debian r-base-core); JSON is written by hand with
-# %.17g so every double round-trips exactly.
+# Needs R's stats package (Debian r-base-core) and tseries for jarque.bera.test (Debian
+# r-cran-tseries); JSON is written by hand with %.17g so every double round-trips exactly.
+suppressPackageStartupMessages(library(tseries))
 
 args <- commandArgs(trailingOnly = FALSE)
 script <- sub("^--file=", "", args[grep("^--file=", args)])
@@ -22,6 +23,14 @@ box <- function(res, p, lag) {
   obj(lag = lag, fitdf = p, statistic = num(b$statistic), df = num(b$parameter), pValue = num(b$p.value))
 }
 
+moments_json <- function(res) {
+  m <- mean(res)
+  m2 <- mean((res - m)^2)
+  jb <- jarque.bera.test(res)
+  obj(count = length(res), mean = num(m), sd = num(sd(res)), skewness = num(mean((res - m)^3) / m2^1.5),
+      kurtosis = num(mean((res - m)^4) / m2^2), jarqueBera = num(jb$statistic), jarqueBeraP = num(jb$p.value))
+}
+
 ar_json <- function(fit, x, lag) {
   p <- fit$order
   se <- if (p > 0) sqrt(diag(as.matrix(fit$asy.var.coef))) else numeric()
@@ -29,7 +38,7 @@ ar_json <- function(fit, x, lag) {
   obj(order = p, coef = arr(fit$ar), varPred = num(fit$var.pred), xMean = num(fit$x.mean),
       aic = arr(fit$aic), se = arr(se),
       predictMean = arr(pr$pred), predictSe = arr(pr$se),
-      box = box(na.omit(fit$resid), p, lag))
+      box = box(na.omit(fit$resid), p, lag), residuals = moments_json(as.numeric(na.omit(fit$resid))))
 }
 
 ols_json <- function(fit, x, lag) {
@@ -62,7 +71,7 @@ ml_json <- function(x, p, lag) {
   pr <- predict(fit, n.ahead = 24)
   res <- if (p > 0) embed(x - mu, p + 1) %*% c(1, -phi) else x - mu
   obj(order = p, code = fit$code, coef = arr(phi), intercept = num(mu), sigma2 = num(fit$sigma2),
-      loglik = num(fit$loglik), aic = num(fit$aic), defaultLoglik = num(default$loglik),
+      loglik = num(fit$loglik), aic = num(fit$aic), bic = num(BIC(fit)), defaultLoglik = num(default$loglik),
       defaultCode = default$code, optimControl = str("reltol = 1e-14, maxit = 1000"),
       se = arr(if (p > 0) se[1:p] else numeric()), interceptSe = num(se[["intercept"]]),
       predictMean = arr(pr$pred), predictSe = arr(pr$se),
@@ -115,7 +124,8 @@ segments <- obj(
 
 version <- R.version.string
 json <- obj(
-  source = str("R stats package (acf, pacf, ar.yw, ar.burg, ar.ols, arima, predict, Box.test, lm)"),
+  source = str("R stats package (acf, pacf, ar.yw, ar.burg, ar.ols, arima, predict, Box.test, lm, BIC); tseries jarque.bera.test"),
+  tseriesVersion = str(as.character(packageVersion("tseries"))),
   rVersion = str(paste(version, R.version$nickname)),
   generatedBy = str("tests/reference/ar-fixtures.R"),
   series = list_json(c(

@@ -22,7 +22,9 @@ public static class ArForecast
         var psi = new double[count];
         Span<double> coefficients = phi.Count <= StackLimit ? stackalloc double[phi.Count] : new double[phi.Count];
         Copy(phi, coefficients);
-        PsiWeights(coefficients, psi);
+        Span<double> reversed = phi.Count <= StackLimit ? stackalloc double[phi.Count] : new double[phi.Count];
+        Reverse(coefficients, reversed);
+        PsiWeights(reversed, psi);
         return psi;
     }
 
@@ -63,6 +65,8 @@ public static class ArForecast
         var steps = mean.Length;
         Span<double> phi = p <= StackLimit ? stackalloc double[p] : new double[p];
         Copy(model.Coefficients, phi);
+        Span<double> reversed = p <= StackLimit ? stackalloc double[p] : new double[p];
+        Reverse(phi, reversed);
 
         // x holds the last p deviations followed by the forecast deviations.
         Span<double> x = p + steps <= 2 * StackLimit ? stackalloc double[p + steps] : new double[p + steps];
@@ -79,18 +83,14 @@ public static class ArForecast
 
         for (var h = 0; h < steps; h++)
         {
-            var value = model.Intercept;
-            for (var i = 1; i <= p; i++)
-            {
-                value += phi[i - 1] * x[p + h - i];
-            }
-
+            // sum_i phi_i x_{t-i} as a contiguous dot product of reversed phi with x[h .. h+p).
+            var value = model.Intercept + SpanMath.Dot(reversed, x.Slice(h, p));
             x[p + h] = value;
             mean[h] = value + model.Mean;
         }
 
         // sd doubles as psi storage before the cumulative sum overwrites it.
-        PsiWeights(phi, sd);
+        PsiWeights(reversed, sd);
         var cumulative = 0.0;
         for (var h = 0; h < steps; h++)
         {
@@ -99,8 +99,10 @@ public static class ArForecast
         }
     }
 
-    private static void PsiWeights(ReadOnlySpan<double> phi, Span<double> psi)
+    /// <summary>psi_j = sum_{i=1}^{min(j,p)} phi_i psi_{j-i}, as a dot product of the tail of reversed phi with psi[j-m .. j).</summary>
+    private static void PsiWeights(ReadOnlySpan<double> reversedPhi, Span<double> psi)
     {
+        var p = reversedPhi.Length;
         for (var j = 0; j < psi.Length; j++)
         {
             if (j == 0)
@@ -109,14 +111,16 @@ public static class ArForecast
                 continue;
             }
 
-            var value = 0.0;
-            var upTo = Math.Min(j, phi.Length);
-            for (var i = 1; i <= upTo; i++)
-            {
-                value += phi[i - 1] * psi[j - i];
-            }
+            var m = Math.Min(j, p);
+            psi[j] = SpanMath.Dot(reversedPhi[(p - m)..], psi.Slice(j - m, m));
+        }
+    }
 
-            psi[j] = value;
+    private static void Reverse(ReadOnlySpan<double> source, Span<double> target)
+    {
+        for (var i = 0; i < source.Length; i++)
+        {
+            target[source.Length - 1 - i] = source[i];
         }
     }
 
