@@ -1,4 +1,6 @@
 using ForecastHub.Api.Auth;
+using ForecastHub.Api.Dashboard;
+using ForecastHub.Api.Demo;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Keys;
@@ -11,6 +13,7 @@ if (HealthProbe.IsRequested(args))
     return await HealthProbe.RunAsync(args, Console.Out);
 }
 
+args = DemoMode.WithoutFlag(args, out var demoFlag);
 var builder = WebApplication.CreateBuilder(args);
 
 builder.AddForecastHubLogging();
@@ -20,12 +23,14 @@ builder.Services.AddForecastHubAuth();
 builder.Services.AddForecastHubRequestLimits();
 builder.Services.AddForecastHubRateLimits();
 builder.Services.AddForecastHubOpenApi();
+builder.AddDemoMode(demoFlag);
 
 var app = builder.Build();
 
 app.UseForecastHubPipeline();
 
 app.MapHealth();
+app.MapDashboard();
 var api = app.MapGroup("/api/v1");
 api.MapSites();
 api.MapKeys();

@@ -1,0 +1,60 @@
+using System.Diagnostics;
+using ForecastHub.Api.Sites;
+using ForecastHub.Core.Quality;
+using ForecastHub.Storage.Readings;
+using ForecastHub.Storage.Sites;
+
+namespace ForecastHub.Api.Demo;
+
+/// <summary>How much the demo loaded and how long it took.</summary>
+public sealed record DemoLoadResult(int Sites, int Readings, TimeSpan Elapsed);
+
+/// <summary>
+/// Replaces the demo sites with freshly generated data up to "now", through the same
+/// reading store (one writer, QC flags) that the observations endpoint uses.
+/// </summary>
+public sealed class DemoLoader(ISiteStore sites, IReadingStore readings, TimeProvider time)
+{
+    // Large batches keep the load to a few transactions per site; well under the per-request cap.
+    private const int BatchSize = 10_000;
+
+    public async Task<DemoLoadResult> LoadAsync(int seed, CancellationToken cancellationToken = default)
+    {
+        var stopwatch = Stopwatch.StartNew();
+        var now = time.GetUtcNow();
+        var total = 0;
+        foreach (var series in DemoSeriesGenerator.Generate(now, seed))
+        {
+            var site = series.Site;
+            await sites.DeleteAsync(site.Id, cancellationToken).ConfigureAwait(false);
+            var created = await sites.CreateAsync(Record(site, now), cancellationToken).ConfigureAwait(false);
+            if (!created)
+            {
+                throw new InvalidOperationException($"demo site {site.Id} could not be created");
+            }
+            foreach (var batch in series.Readings.Chunk(BatchSize))
+            {
+                var incoming = batch
+                    .Select((r, i) => new IncomingReading(i, r.Time.ToUnixTimeMilliseconds(), r.ValueC, r.ValueC, "C"))
+                    .ToList();
+                await readings.IngestAsync(site.Id, incoming, ConflictPolicy.Replace, now, cancellationToken).ConfigureAwait(false);
+                total += incoming.Count;
+            }
+        }
+        return new DemoLoadResult(DemoScenario.Sites.Count, total, stopwatch.Elapsed);
+    }
+
+    private static SiteRecord Record(DemoSiteProfile site, DateTimeOffset now) => new(
+        site.Id,
+        site.Name,
+        DemoScenario.TimeZone,
+        "hourly",
+        null,
+        null,
+        null,
+        site.ElevationM,
+        site.Kind == DemoSiteKind.ColdStore ? new QualityLimits(MinC: -5, MaxC: 10) : QualityLimits.Default,
+        SiteRules.DefaultModel("hourly"),
+        now,
+        now);
+}
