@@ -1,4 +1,4 @@
-using System.Security.Cryptography;
+using ForecastHub.Api.Auth;
 using Microsoft.AspNetCore.Hosting.Server;
 using Microsoft.AspNetCore.Hosting.Server.Features;
 using Microsoft.Extensions.Configuration.Json;
@@ -56,7 +56,7 @@ public static class DemoMode
         string? generatedKey = null;
         if (string.IsNullOrEmpty(configuration["Auth:AdminKey"]))
         {
-            generatedKey = Base64Url(RandomNumberGenerator.GetBytes(32));
+            generatedKey = ApiKeySecrets.NewSecret();
             defaults["Auth:AdminKey"] = generatedKey;
         }
         // Above appsettings.json, below environment variables and the command line, so both still win.
@@ -78,9 +78,6 @@ public static class DemoMode
 
     private static bool IsFlag(string arg) =>
         string.Equals(arg, Flag, StringComparison.OrdinalIgnoreCase) || string.Equals(arg, "/demo", StringComparison.OrdinalIgnoreCase);
-
-    private static string Base64Url(byte[] bytes) =>
-        Convert.ToBase64String(bytes).TrimEnd('=').Replace('+', '-').Replace('/', '_');
 }
 
 /// <summary>Loads the demo in the host's starting phase and tells the person at the console where to look.</summary>

@@ -49,6 +49,8 @@ public sealed class AuthorizationMatrixTests
     /// <summary>"METHOD route pattern" of every endpoint, and who may call it.</summary>
     public static readonly IReadOnlyDictionary<string, Access> Expectations = new Dictionary<string, Access>
     {
+        ["GET /"] = Access.Public,
+        ["GET /dashboard/{file}"] = Access.Public,
         ["GET /health/live"] = Access.Public,
         ["GET /health/ready"] = Access.Public,
         ["POST /api/v1/sites"] = Access.Admin,
@@ -182,7 +184,8 @@ public sealed class AuthorizationMatrixTests
     /// <summary>Route values the matrix can fill; a new parameter needs a sample here.</summary>
     private static async Task<string> FillRoute(string pattern, HttpClient admin)
     {
-        var path = pattern.Replace("{siteId}", ThisSite, StringComparison.Ordinal);
+        var path = pattern.Replace("{siteId}", ThisSite, StringComparison.Ordinal)
+            .Replace("{file}", "app.js", StringComparison.Ordinal);
         if (path.Contains("{keyId}", StringComparison.Ordinal))
         {
             // A fresh key each time, so revoking it spends none of the matrix's own keys.
