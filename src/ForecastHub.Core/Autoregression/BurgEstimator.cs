@@ -38,21 +38,22 @@ internal static class BurgEstimator
         var partials = new double[maxOrder];
         coefficients[0] = [];
         recursion[0] = energy[0] = sumSquares / summary.Count;
+        // Order-1 sums; later orders get theirs from the update pass of the order before.
+        var numerator = 0.0;
+        var denominator = 0.0;
+        for (var s = 0; s < segments.Count; s++)
+        {
+            var u = forward[s];
+            var v = backward[s];
+            for (var t = 1; t < u.Length; t++)
+            {
+                numerator += v[t] * u[t - 1];
+                denominator += v[t] * v[t] + u[t - 1] * u[t - 1];
+            }
+        }
+
         for (var p = 1; p <= maxOrder; p++)
         {
-            var numerator = 0.0;
-            var denominator = 0.0;
-            for (var s = 0; s < segments.Count; s++)
-            {
-                var u = forward[s];
-                var v = backward[s];
-                for (var t = p; t < u.Length; t++)
-                {
-                    numerator += v[t] * u[t - 1];
-                    denominator += v[t] * v[t] + u[t - 1] * u[t - 1];
-                }
-            }
-
             if (!(denominator > 0))
             {
                 throw new SeriesException(SeriesProblem.TooShort, $"No segment is long enough for a Burg fit of order {p}.");
@@ -64,18 +65,29 @@ internal static class BurgEstimator
 
             var errorSum = 0.0;
             var rows = 0;
+            numerator = 0.0;
+            denominator = 0.0;
             for (var s = 0; s < segments.Count; s++)
             {
                 var u = forward[s];
                 var v = backward[s];
 
-                // Descending t keeps u[t - 1] at its previous-order value, as R's copy u0 does.
+                // Descending t keeps u[t - 1] at its previous-order value, as R's copy u0 does; once u[t]
+                // is updated, v[t + 1] and u[t] are final for order p and give the order-(p+1) sums at t + 1.
                 for (var t = u.Length - 1; t >= p; t--)
                 {
                     var uPrevious = u[t - 1];
-                    u[t] = uPrevious - phi * v[t];
-                    v[t] -= phi * uPrevious;
-                    errorSum += v[t] * v[t] + u[t] * u[t];
+                    var uNew = uPrevious - phi * v[t];
+                    var vNew = v[t] - phi * uPrevious;
+                    u[t] = uNew;
+                    v[t] = vNew;
+                    errorSum += vNew * vNew + uNew * uNew;
+                    if (t + 1 < u.Length)
+                    {
+                        var vNext = v[t + 1];
+                        numerator += vNext * uNew;
+                        denominator += vNext * vNext + uNew * uNew;
+                    }
                 }
 
                 rows += Math.Max(0, u.Length - p);

@@ -1,3 +1,4 @@
+using ForecastHub.Core.Linear;
 using ForecastHub.Core.Series;
 using MathNet.Numerics.Distributions;
 
@@ -74,13 +75,7 @@ public static class Autocorrelation
             var lags = Math.Min(maxLag, n - 1);
             for (var k = 0; k <= lags; k++)
             {
-                var sum = 0.0;
-                for (var t = 0; t + k < n; t++)
-                {
-                    sum += centered[t] * centered[t + k];
-                }
-
-                c[k] += sum;
+                c[k] += SpanMath.Dot(centered.AsSpan(0, n - k), centered.AsSpan(k));
             }
         }
 

@@ -1,4 +1,5 @@
 using ForecastHub.Core.Autoregression;
+using ForecastHub.Core.Linear;
 using ForecastHub.Core.Series;
 
 namespace ForecastHub.Core.Forecasting;

@@ -1,9 +1,9 @@
 using System.Numerics;
 using System.Runtime.InteropServices;
 
-namespace ForecastHub.Core.Forecasting;
+namespace ForecastHub.Core.Linear;
 
-/// <summary>Vectorised dot product for the forecast recursions (independent lanes break the add latency chain).</summary>
+/// <summary>Vectorised dot product for recursions and lagged sums (independent lanes break the add latency chain).</summary>
 internal static class SpanMath
 {
     public static double Dot(ReadOnlySpan<double> a, ReadOnlySpan<double> b)
