@@ -9,8 +9,8 @@ namespace ForecastHub.Core.Modeling;
 /// When the newest grid steps are missing, the forecast starts from the last step with a value and
 /// counts horizons from there (so intervals widen), and reports the missing steps. Steps returned
 /// are the <c>steps</c> grid steps after the grid's last step. Hourly sites also get the next local
-/// day's summary from seeded Monte Carlo paths. DEVELOPERS.md, Numerics.
-/// Input rules: null throws ArgumentNullException; steps or paths below 1 and levels outside (0, 1)
+/// day's summary from seeded Monte Carlo paths (paths = 0 skips it). DEVELOPERS.md, Numerics.
+/// Input rules: null throws ArgumentNullException; steps below 1, negative paths and levels outside (0, 1)
 /// ArgumentOutOfRangeException; a grid of another cadence or zone ArgumentException; a grid with no
 /// value SeriesException(Empty); an infinite value SeriesException(NonFinite). History steps that are
 /// missing (NaN) or before the grid start count as the anomaly's mean.
@@ -33,7 +33,7 @@ public static class SiteForecaster
         ArgumentNullException.ThrowIfNull(levels);
         ArgumentNullException.ThrowIfNull(thresholds);
         ArgumentOutOfRangeException.ThrowIfLessThan(steps, 1);
-        ArgumentOutOfRangeException.ThrowIfLessThan(paths, 1);
+        ArgumentOutOfRangeException.ThrowIfNegative(paths);
         foreach (var level in levels)
         {
             GaussianInterval.Multiplier(level);
@@ -53,7 +53,7 @@ public static class SiteForecaster
         var zone = GridBuilder.FindZone(model.TimeZone);
         var missing = recent.Count - 1 - last;
         var horizons = missing + steps;
-        NextDayPlan? plan = model.Cadence == GridCadence.Hourly ? PlanNextDay(recent, last, zone) : null;
+        NextDayPlan? plan = model.Cadence == GridCadence.Hourly && paths > 0 ? PlanNextDay(recent, last, zone) : null;
         var total = Math.Max(horizons, plan?.Last ?? 0);
 
         var ar = model.Ar;

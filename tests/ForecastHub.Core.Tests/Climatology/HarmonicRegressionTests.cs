@@ -22,7 +22,7 @@ public sealed class HarmonicRegressionTests(ITestOutputHelper output)
 
         var fit = HarmonicRegression.Ols(design.Matrix(grid.Times), grid.Values);
 
-        var reference = FixtureFile.Json("climatology-seattle.json").GetProperty(column);
+        var reference = ReferenceFixture.Load("climatology-seattle.json").GetProperty(column);
         Assert.Equal(reference.GetProperty("terms").EnumerateArray().Select(t => t.GetString()), design.TermNames());
         AssertClose(reference, fit, 1e-9);
     }
@@ -30,8 +30,8 @@ public sealed class HarmonicRegressionTests(ITestOutputHelper output)
     [Fact]
     public void HourlyAnnualAndDiurnalHarmonicsOnLocalStandardTimeMatchRLm()
     {
-        var fixture = FixtureFile.Json("climatology-hourly-berlin.json");
-        var y = fixture.GetProperty("values").Doubles();
+        var fixture = ReferenceFixture.Load("climatology-hourly-berlin.json");
+        var y = fixture.Doubles("values");
         var t0 = DateTimeOffset.FromUnixTimeSeconds(fixture.GetProperty("firstEpochSeconds").GetInt64());
         var times = Enumerable.Range(0, y.Length).Select(i => t0.AddHours(i)).ToArray();
         var design = new HarmonicDesign(GridCadence.Hourly, "Europe/Berlin", 2, 3);
@@ -48,15 +48,15 @@ public sealed class HarmonicRegressionTests(ITestOutputHelper output)
         var train = dates.Count(d => d.Year < 2015);
         var grid = SeattleWeather.Grid(dates[..train], max[..train], DailyStatistic.Max);
         var design = new HarmonicDesign(GridCadence.Daily, SeattleWeather.Zone, 2, 0);
-        var reference = FixtureFile.Json("climatology-seattle.json").GetProperty("arimaXregTrain").GetProperty("tempMax");
+        var reference = ReferenceFixture.Load("climatology-seattle.json").GetProperty("arimaXregTrain").GetProperty("tempMax");
         var ar1 = reference.GetProperty("ar1").GetDouble();
         var x = design.Matrix(grid.Times);
 
         var ols = HarmonicRegression.Ols(x, grid.Values);
         var gls = HarmonicRegression.Gls(x, grid.Values, [(0, grid.Count)], [ar1]);
 
-        var expected = reference.GetProperty("coefficients").Doubles();
-        var expectedSe = reference.GetProperty("stdErrors").Doubles();
+        var expected = reference.Doubles("coefficients");
+        var expectedSe = reference.Doubles("stdErrors");
         for (var i = 0; i < expected.Length; i++)
         {
             output.WriteLine($"{design.TermNames()[i]}: gls {gls.Coefficients[i]:F4} (se {gls.StdErrors[i]:F4}), R ML {expected[i]:F4} (se {expectedSe[i]:F4}), ols se {ols.StdErrors[i]:F4}");
@@ -96,8 +96,8 @@ public sealed class HarmonicRegressionTests(ITestOutputHelper output)
 
     private static void AssertClose(JsonElement reference, RegressionFit fit, double relative)
     {
-        var coefficients = reference.GetProperty("coefficients").Doubles();
-        var se = reference.GetProperty("stdErrors").Doubles();
+        var coefficients = reference.Doubles("coefficients");
+        var se = reference.Doubles("stdErrors");
         for (var i = 0; i < coefficients.Length; i++)
         {
             Assert.Equal(coefficients[i], fit.Coefficients[i], relative * Math.Max(1, Math.Abs(coefficients[i])));

@@ -16,8 +16,8 @@ public sealed class PlainArTests
     [InlineData(ArMethod.LeastSquares, "leastSquares")]
     public void SeasonalityNoneWithGaussianIntervalsMatchesRPredict(ArMethod method, string key)
     {
-        var fixture = FixtureFile.Json("plain-ar-predict.json");
-        var grid = SomeGrid.DailyGrid(fixture.GetProperty("values").Doubles());
+        var fixture = ReferenceFixture.Load("plain-ar-predict.json");
+        var grid = SomeGrid.DailyGrid(fixture.Doubles("values"));
         var settings = new ModelSettings { Seasonality = Seasonality.None, IntervalMethod = IntervalMethod.Gaussian, Method = method, OrderPolicy = OrderPolicy.Aic };
 
         var model = SiteModelFitter.Fit(grid, settings);
@@ -25,8 +25,8 @@ public sealed class PlainArTests
 
         var reference = fixture.GetProperty(key);
         Assert.Equal(reference.GetProperty("order").GetInt32(), model.Ar.Order);
-        var mean = reference.GetProperty("mean").Doubles();
-        var se = reference.GetProperty("se").Doubles();
+        var mean = reference.Doubles("mean");
+        var se = reference.Doubles("se");
         for (var h = 0; h < 24; h++)
         {
             Assert.Equal(mean[h], forecast.Steps[h].Mean, 1e-8);

@@ -7,6 +7,13 @@ public static class ReferenceFixture
 {
     public static JsonElement Load(string fileName)
     {
+        using var document = JsonDocument.Parse(File.ReadAllText(PathOf(fileName)));
+        return document.RootElement.Clone();
+    }
+
+    /// <summary>Full path of a file in the Fixtures folder (for non-JSON fixtures such as CSV).</summary>
+    public static string PathOf(string fileName)
+    {
         var directory = new DirectoryInfo(AppContext.BaseDirectory);
         while (directory is not null && !File.Exists(Path.Combine(directory.FullName, "ForecastHub.sln")))
         {
@@ -18,9 +25,7 @@ public static class ReferenceFixture
             throw new InvalidOperationException("ForecastHub.sln not found above the test output folder.");
         }
 
-        var path = Path.Combine(directory.FullName, "tests", "ForecastHub.Core.Tests", "Fixtures", fileName);
-        using var document = JsonDocument.Parse(File.ReadAllText(path));
-        return document.RootElement.Clone();
+        return Path.Combine(directory.FullName, "tests", "ForecastHub.Core.Tests", "Fixtures", fileName);
     }
 
     public static double[] Doubles(this JsonElement element, string property) =>

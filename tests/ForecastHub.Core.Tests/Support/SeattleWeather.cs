@@ -9,7 +9,7 @@ internal static class SeattleWeather
 
     public static (DateOnly[] Dates, double[] Max, double[] Min) Load()
     {
-        var rows = File.ReadAllLines(FixtureFile.PathOf("seattle-weather.csv")).Skip(1).Select(l => l.Split(',')).ToArray();
+        var rows = File.ReadAllLines(ReferenceFixture.PathOf("seattle-weather.csv")).Skip(1).Select(l => l.Split(',')).ToArray();
         return (
             rows.Select(r => DateOnly.Parse(r[0], System.Globalization.CultureInfo.InvariantCulture)).ToArray(),
             rows.Select(r => double.Parse(r[1], System.Globalization.CultureInfo.InvariantCulture)).ToArray(),

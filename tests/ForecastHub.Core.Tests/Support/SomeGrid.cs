@@ -35,4 +35,35 @@ internal static class SomeGrid
             GridBuilder.LocalDayStart(day0, zoneInfo),
             GridBuilder.LocalDayStart(day0.AddDays(values.Length), zoneInfo));
     }
+
+    /// <summary>
+    /// Hourly temperatures in Europe/Berlin from 2021-01-01: annual and diurnal cycles plus an AR(2)
+    /// anomaly whose innovation sd varies with the season (winter 1.5 times summer), Gaussian, seeded.
+    /// </summary>
+    public static double[] SeasonalHourlyValues(int hours, int seed)
+    {
+        var random = new Random(seed);
+        var values = new double[hours];
+        double a1 = 0, a2 = 0;
+        for (var t = -500; t < hours; t++)
+        {
+            var day = t / 24.0;
+            var sd = 0.8 * (1 + 0.25 * Math.Cos(2 * Math.PI * day / 365.25));
+            var a = 1.1 * a1 - 0.25 * a2 + sd * SomeAr.Gaussian(random);
+            (a2, a1) = (a1, a);
+            if (t >= 0)
+            {
+                values[t] = 10 - 8 * Math.Cos(2 * Math.PI * (day - 15) / 365.25) - 4 * Math.Cos(2 * Math.PI * ((t % 24) - 14) / 24) + a;
+            }
+        }
+
+        return values;
+    }
+
+    public static TimeGrid SeasonalHourlyGrid(int hours, int seed)
+    {
+        var start = new DateTimeOffset(2021, 1, 1, 0, 0, 0, TimeSpan.Zero);
+        var values = SeasonalHourlyValues(hours, seed);
+        return GridBuilder.Build(values.Select((v, i) => new GridReading(start.AddHours(i), v)), Hourly("Europe/Berlin"));
+    }
 }
