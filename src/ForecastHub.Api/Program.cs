@@ -4,6 +4,7 @@ using ForecastHub.Api.Demo;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Keys;
+using ForecastHub.Api.Observations;
 using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
@@ -34,6 +35,7 @@ app.MapDashboard();
 var api = app.MapGroup("/api/v1");
 api.MapSites();
 api.MapKeys();
+api.MapObservations();
 
 app.Run();
 return 0;

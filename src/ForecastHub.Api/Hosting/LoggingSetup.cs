@@ -1,4 +1,5 @@
 using Serilog;
+using Serilog.Events;
 using Serilog.Formatting.Compact;
 
 namespace ForecastHub.Api.Hosting;
@@ -11,6 +12,8 @@ public static class LoggingSetup
     {
         ArgumentNullException.ThrowIfNull(builder);
         builder.Services.AddSerilog((services, config) => config
+            // The framework's own per-request lines would add a second line with the query string.
+            .MinimumLevel.Override("Microsoft.AspNetCore", LogEventLevel.Warning)
             .ReadFrom.Configuration(services.GetRequiredService<IConfiguration>())
             .Enrich.FromLogContext()
             .WriteTo.Console(new RenderedCompactJsonFormatter()));

@@ -14,4 +14,7 @@ public interface IReadingStore
     /// Null when the site does not exist.</summary>
     Task<IReadOnlyList<StoredReading>?> ReadAsync(string siteId, long fromMs, long toMs, long? afterMs, int limit,
         CancellationToken cancellationToken = default);
+
+    /// <summary>First and last reading times; null when the site has no readings or does not exist.</summary>
+    Task<ReadingSpan?> SpanAsync(string siteId, CancellationToken cancellationToken = default);
 }

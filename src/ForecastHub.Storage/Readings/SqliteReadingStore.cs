@@ -53,6 +53,20 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
             return ReadAll(select);
         }));
 
+    public Task<ReadingSpan?> SpanAsync(string siteId, CancellationToken cancellationToken = default) =>
+        Task.FromResult(database.Read<ReadingSpan?>((connection, transaction) =>
+        {
+            using var select = connection.Command(transaction, """
+                    SELECT min(r.time_ms), max(r.time_ms), count(*) FROM readings r
+                    JOIN sites s ON s.key = r.site_key WHERE s.id = $id;
+                    """)
+                .With("$id", siteId);
+            using var reader = select.ExecuteReader();
+            return reader.Read() && !reader.IsDBNull(0)
+                ? new ReadingSpan(reader.GetInt64(0), reader.GetInt64(1), reader.GetInt64(2))
+                : null;
+        }));
+
     private static (long Key, QualityLimits Limits)? FindSite(SqliteConnection connection, SqliteTransaction transaction, string siteId)
     {
         using var select = connection.Command(transaction,

@@ -33,7 +33,8 @@ public static class Some
         return text.ToString();
     }
 
-    public static string Iso(DateTimeOffset time) => time.ToString("yyyy-MM-dd'T'HH:mm:ssK", CultureInfo.InvariantCulture);
+    /// <summary>UTC with 'Z', the form the service answers with.</summary>
+    public static string Iso(DateTimeOffset time) => time.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss'Z'", CultureInfo.InvariantCulture);
 
     public static async Task<HttpResponseMessage> CreateSite(this HttpClient client, object? site = null) =>
         await client.PostAsJsonAsync(new Uri("/api/v1/sites", UriKind.Relative), site ?? Site());

@@ -1,0 +1,159 @@
+using System.Globalization;
+using System.Text;
+using ForecastHub.Api.Auth;
+using ForecastHub.Api.Problems;
+using ForecastHub.Api.Sites;
+using ForecastHub.Core.Quality;
+using ForecastHub.Storage.Readings;
+using ForecastHub.Storage.Sites;
+using Microsoft.AspNetCore.Http.HttpResults;
+using Microsoft.AspNetCore.Mvc;
+
+namespace ForecastHub.Api.Observations;
+
+public static class ObservationsEndpoints
+{
+    /// <summary>DESIGN section 5: at most 50,000 readings or 8 MiB per request.</summary>
+    public const int MaxReadings = 50_000;
+    public const int MaxBodyBytes = 8 * 1024 * 1024;
+
+    public static RouteGroupBuilder MapObservations(this IEndpointRouteBuilder routes)
+    {
+        var group = routes.MapGroup("/sites/{siteId}/observations").WithTags("Observations")
+            .RequireAuthorization(AuthPolicies.Read);
+        group.MapPost("/", Post).WithName("PostObservations")
+            .WithSummary("Store readings (JSON or text/csv); answers per-row outcomes. Retrying a batch is safe.")
+            .RequireAuthorization(AuthPolicies.Ingest);
+        group.MapGet("/", ObservationQueries.Get).WithName("GetObservations")
+            .WithSummary("Stored readings (resolution=raw) or the site's regular grid (resolution=grid), JSON or CSV, paged by 'next'.");
+        return group;
+    }
+
+    public static async Task<Results<Ok<ObservationsAnswer>, ProblemHttpResult>> Post(
+        string siteId, HttpRequest request, [FromQuery] string? unit, [FromQuery] string? onConflict,
+        IReadingStore readings, TimeProvider clock, CancellationToken cancellationToken)
+    {
+        if (!SiteRules.IsValidSiteId(siteId))
+        {
+            return SitesEndpoints.NoSuchSite(siteId);
+        }
+        if (unit is not null && !TemperatureUnits.IsKnown(unit))
+        {
+            return ApiProblems.BadRequest("unit", $"?unit='{IsoTime.Clip(unit)}' is not known: {TemperatureUnits.UnknownUnitMessage}");
+        }
+        if (onConflict is not (null or "reject" or "replace"))
+        {
+            return ApiProblems.BadRequest("onConflict", "onConflict must be 'reject' (the default) or 'replace'.");
+        }
+        var isJson = RequestBody.IsJson(request);
+        if (!isJson && !RequestBody.IsCsv(request))
+        {
+            return ApiProblems.UnsupportedMediaType("Send readings as 'application/json' or 'text/csv'.");
+        }
+        var body = await RequestBody.ReadAsync(request, MaxBodyBytes, cancellationToken).ConfigureAwait(false);
+        if (body is null)
+        {
+            return ApiProblems.TooLarge($"The body is larger than {MaxBodyBytes / (1024 * 1024)} MiB; send at most {MaxReadings} readings per request.");
+        }
+        var (rows, bodyUnit, problem) = isJson ? ParseJson(body) : ParseCsv(body);
+        if (problem is not null)
+        {
+            return problem;
+        }
+        if (bodyUnit is not null && !TemperatureUnits.IsKnown(bodyUnit))
+        {
+            return ApiProblems.BadRequest("unit", $"unit '{IsoTime.Clip(bodyUnit)}' is not known: {TemperatureUnits.UnknownUnitMessage}");
+        }
+        if (bodyUnit is not null && unit is not null && bodyUnit != unit)
+        {
+            return ApiProblems.BadRequest("unit", $"The body says unit '{bodyUnit}' but ?unit= says '{unit}'; send one.");
+        }
+        if (rows!.Count == 0)
+        {
+            return ApiProblems.BadRequest("readings", "The request holds no readings.");
+        }
+
+        var (valid, rejected) = ReadingValidation.Validate(rows, bodyUnit ?? unit ?? TemperatureUnits.Celsius, clock.GetUtcNow());
+        var policy = onConflict == "replace" ? ConflictPolicy.Replace : ConflictPolicy.Reject;
+        var result = await readings.IngestAsync(siteId, valid, policy, clock.GetUtcNow(), cancellationToken).ConfigureAwait(false);
+        if (result is null)
+        {
+            return SitesEndpoints.NoSuchSite(siteId);
+        }
+        var answer = Summarise(rows, valid, rejected, result);
+        if (answer.Accepted + answer.Duplicates + answer.Replaced == 0)
+        {
+            return TypedResults.Problem(statusCode: StatusCodes.Status422UnprocessableEntity, title: "No reading stored",
+                detail: $"Every one of the {rows.Count} readings was rejected; see 'rejected' for each row's reason.",
+                extensions: new Dictionary<string, object?>
+                {
+                    ["accepted"] = 0, ["duplicates"] = 0, ["replaced"] = 0, ["flagged"] = 0, ["rejected"] = answer.Rejected,
+                });
+        }
+        return TypedResults.Ok(answer);
+    }
+
+    private static ObservationsAnswer Summarise(IReadOnlyList<RawReading> rows, List<IncomingReading> valid,
+        List<RejectedReading> rejected, IngestResult result)
+    {
+        int accepted = 0, duplicates = 0, replaced = 0, flagged = 0;
+        for (var i = 0; i < valid.Count; i++)
+        {
+            var outcome = result.Outcomes[i];
+            switch (outcome.Kind)
+            {
+                case ReadingOutcomeKind.Accepted:
+                    accepted++;
+                    break;
+                case ReadingOutcomeKind.Duplicate:
+                    duplicates++;
+                    break;
+                case ReadingOutcomeKind.Replaced:
+                    replaced++;
+                    break;
+                case ReadingOutcomeKind.Conflict:
+                    var row = rows[valid[i].Index];
+                    rejected.Add(new RejectedReading(row.Index, row.Line, row.Time, string.Create(CultureInfo.InvariantCulture,
+                        $"conflict: {outcome.StoredValueC:0.###} C is already stored for this time; send ?onConflict=replace to overwrite it.")));
+                    continue;
+            }
+            if (outcome.Kind != ReadingOutcomeKind.Duplicate && outcome.Flags != QualityFlags.None)
+            {
+                flagged++;
+            }
+        }
+        rejected.Sort((a, b) => a.Index.CompareTo(b.Index));
+        return new ObservationsAnswer(accepted, duplicates, replaced, flagged, rejected);
+    }
+
+    private static (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) ParseJson(byte[] body)
+    {
+        using var document = RequestBody.ParseJson(body, out var error);
+        if (document is null)
+        {
+            return (null, null, ApiProblems.BadRequest("body", error!));
+        }
+        var (rows, unit, field, parseError, tooMany) = JsonReadings.Parse(document.RootElement, MaxReadings);
+        if (rows is null)
+        {
+            return (null, null, tooMany ? ApiProblems.TooLarge(parseError!) : ApiProblems.BadRequest(field!, parseError!));
+        }
+        return (rows, unit, null);
+    }
+
+    private static (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) ParseCsv(byte[] body)
+    {
+        var (rows, error, tooMany) = CsvReadings.Parse(body, MaxReadings);
+        if (rows is null)
+        {
+            return (null, null, tooMany ? ApiProblems.TooLarge(error!) : ApiProblems.BadRequest("body", error!));
+        }
+        return (rows, null, null);
+    }
+
+    internal static string CsvField(string text) =>
+        text.AsSpan().IndexOfAny(",\"\r\n") < 0 ? text : $"\"{text.Replace("\"", "\"\"", StringComparison.Ordinal)}\"";
+
+    internal static StringBuilder CsvLine(this StringBuilder csv, params string[] fields) =>
+        csv.AppendJoin(',', fields.Select(CsvField)).Append("\r\n");
+}

@@ -1,0 +1,21 @@
+namespace ForecastHub.Api.Observations;
+
+/// <summary>Units readings may arrive in, converted to degrees C for storage.</summary>
+public static class TemperatureUnits
+{
+    public const string Celsius = "C";
+    public const string Fahrenheit = "F";
+    public const string Kelvin = "K";
+
+    public static bool IsKnown(string? unit) => unit is Celsius or Fahrenheit or Kelvin;
+
+    public static double ToCelsius(double value, string unit) => unit switch
+    {
+        Celsius => value,
+        Fahrenheit => (value - 32) * 5 / 9,
+        Kelvin => value - 273.15,
+        _ => throw new ArgumentException($"Unknown unit '{unit}'.", nameof(unit)),
+    };
+
+    public const string UnknownUnitMessage = "unit must be 'C', 'F' or 'K'.";
+}

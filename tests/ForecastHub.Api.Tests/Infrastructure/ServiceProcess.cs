@@ -1,0 +1,116 @@
+using System.Diagnostics;
+using System.Globalization;
+using System.Net;
+using System.Net.Http.Headers;
+using System.Net.Sockets;
+
+namespace ForecastHub.Api.Tests.Infrastructure;
+
+/// <summary>The built ForecastHub.Api running as a child process on 127.0.0.1 with a free port, on
+/// a given SQLite file: real Kestrel, real process death.</summary>
+public sealed class ServiceProcess : IAsyncDisposable
+{
+    private readonly Process _process;
+
+    private ServiceProcess(Process process, Uri baseAddress)
+    {
+        _process = process;
+        BaseAddress = baseAddress;
+    }
+
+    public Uri BaseAddress { get; }
+
+    public int Port => BaseAddress.Port;
+
+    public bool HasExited => _process.HasExited;
+
+    public static async Task<ServiceProcess> StartAsync(string databasePath, TimeSpan? readyWithin = null)
+    {
+        var port = FreePort();
+        var baseAddress = new Uri($"http://127.0.0.1:{port}/");
+        var dll = Path.Combine(AppContext.BaseDirectory, "ForecastHub.Api.dll");
+        var start = new ProcessStartInfo("dotnet")
+        {
+            WorkingDirectory = Path.GetDirectoryName(databasePath)!,
+            RedirectStandardOutput = true,
+            RedirectStandardError = true,
+            UseShellExecute = false,
+        };
+        foreach (var arg in new[]
+                 {
+                     dll, "--urls", baseAddress.ToString().TrimEnd('/'), $"--Storage:Path={databasePath}",
+                     $"--Auth:AdminKey={ApiFactory.AdminKey}", "--Serilog:MinimumLevel:Default=Warning",
+                 })
+        {
+            start.ArgumentList.Add(arg);
+        }
+        start.Environment["ASPNETCORE_ENVIRONMENT"] = "Production";
+        var process = Process.Start(start)!;
+        // Drain the pipes so a chatty child never blocks on a full buffer.
+        process.OutputDataReceived += (_, _) => { };
+        process.ErrorDataReceived += (_, _) => { };
+        process.BeginOutputReadLine();
+        process.BeginErrorReadLine();
+        var service = new ServiceProcess(process, baseAddress);
+        await service.WaitUntilReady(readyWithin ?? TimeSpan.FromSeconds(60));
+        return service;
+    }
+
+    public HttpClient CreateAdminClient()
+    {
+        var client = new HttpClient { BaseAddress = BaseAddress, Timeout = TimeSpan.FromSeconds(60) };
+        client.DefaultRequestHeaders.Authorization = new AuthenticationHeaderValue("Bearer", ApiFactory.AdminKey);
+        return client;
+    }
+
+    /// <summary>SIGKILL: no shutdown code runs.</summary>
+    public async Task KillAsync()
+    {
+        if (!_process.HasExited)
+        {
+            _process.Kill(entireProcessTree: true);
+        }
+        await _process.WaitForExitAsync();
+    }
+
+    public async ValueTask DisposeAsync()
+    {
+        await KillAsync();
+        _process.Dispose();
+    }
+
+    private async Task WaitUntilReady(TimeSpan within)
+    {
+        using var client = new HttpClient { BaseAddress = BaseAddress, Timeout = TimeSpan.FromSeconds(5) };
+        var deadline = Stopwatch.StartNew();
+        while (deadline.Elapsed < within)
+        {
+            if (_process.HasExited)
+            {
+                throw new InvalidOperationException($"The service exited with code {_process.ExitCode} before it was ready.");
+            }
+            try
+            {
+                using var ready = await client.GetAsync(new Uri("health/ready", UriKind.Relative));
+                if (ready.StatusCode == HttpStatusCode.OK)
+                {
+                    return;
+                }
+            }
+            catch (HttpRequestException)
+            {
+                // Not listening yet.
+            }
+            // Polling a real child process; there is no clock to advance here.
+            await Task.Delay(50);
+        }
+        throw new TimeoutException($"The service was not ready within {within.TotalSeconds.ToString(CultureInfo.InvariantCulture)} s.");
+    }
+
+    private static int FreePort()
+    {
+        using var listener = new TcpListener(IPAddress.Loopback, 0);
+        listener.Start();
+        return ((IPEndPoint)listener.LocalEndpoint).Port;
+    }
+}

@@ -1,0 +1,58 @@
+using ForecastHub.Core.Quality;
+using ForecastHub.Storage.Readings;
+using ForecastHub.Storage.Sites;
+
+namespace ForecastHub.Storage.Tests;
+
+public sealed class ReadingStoreTests
+{
+    private const long Day = 86_400_000;
+    private static readonly DateTimeOffset Received = new(2025, 1, 1, 0, 0, 0, TimeSpan.Zero);
+
+    private static async Task<(TestDatabase Db, SqliteReadingStore Store)> WithSite()
+    {
+        var db = await SiteStoreTests.Migrated();
+        await new SqliteSiteStore(db.Database, TimeProvider.System).CreateAsync(SiteStoreTests.Site());
+        return (db, new SqliteReadingStore(db.Database));
+    }
+
+    private static IncomingReading[] DailyReadings(int firstDay, params double[] values) =>
+        values.Select((v, i) => new IncomingReading(i, (firstDay + i) * Day, v, v, "C")).ToArray();
+
+    [Fact]
+    public async Task AFlatLineIsFoundAcrossBatchesEvenWhenTheStoredPartIsDaysOld()
+    {
+        var (db, store) = await WithSite();
+        using var _ = db;
+        await store.IngestAsync("site-a", DailyReadings(0, 3, 3, 3), ConflictPolicy.Reject, Received);
+
+        var result = await store.IngestAsync("site-a", DailyReadings(3, 3, 3, 3), ConflictPolicy.Reject, Received);
+
+        Assert.All(result!.Outcomes, o => Assert.Equal(QualityFlags.FlatLine, o.Flags));
+        var stored = await store.ReadAsync("site-a", long.MinValue, long.MaxValue, null, 100);
+        Assert.All(stored!, r => Assert.Equal(QualityFlags.FlatLine, r.Flags));
+    }
+
+    [Fact]
+    public async Task ReadsPageAfterTheCursorWithinTheHalfOpenRange()
+    {
+        var (db, store) = await WithSite();
+        using var _ = db;
+        await store.IngestAsync("site-a", DailyReadings(0, 1, 2, 3, 4, 5, 6), ConflictPolicy.Reject, Received);
+
+        var page = await store.ReadAsync("site-a", 1 * Day, 5 * Day, 2 * Day, 10);
+
+        Assert.Equal([4.0, 5], page!.Select(r => r.ValueC));
+        Assert.Equal(new ReadingSpan(0, 5 * Day, 6), await store.SpanAsync("site-a"));
+    }
+
+    [Fact]
+    public async Task IngestToAMissingSiteStoresNothing()
+    {
+        var (db, store) = await WithSite();
+        using var _ = db;
+
+        Assert.Null(await store.IngestAsync("site-b", DailyReadings(0, 1), ConflictPolicy.Reject, Received));
+        Assert.Equal(0, db.Scalar<int>("SELECT count(*) FROM readings;"));
+    }
+}
