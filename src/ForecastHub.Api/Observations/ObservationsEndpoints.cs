@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Text;
 using ForecastHub.Api.Auth;
+using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
 using ForecastHub.Core.Quality;
@@ -19,13 +20,15 @@ public static class ObservationsEndpoints
 
     public static RouteGroupBuilder MapObservations(this IEndpointRouteBuilder routes)
     {
-        var group = routes.MapGroup("/sites/{siteId}/observations").WithTags("Observations")
-            .RequireAuthorization(AuthPolicies.Read);
+        // Policies per endpoint, not on the group: an ingest key may post but not read.
+        var group = routes.MapGroup("/sites/{siteId}/observations").WithTags("Observations");
         group.MapPost("/", Post).WithName("PostObservations")
             .WithSummary("Store readings (JSON or text/csv); answers per-row outcomes. Retrying a batch is safe.")
-            .RequireAuthorization(AuthPolicies.Ingest);
+            .RequireAuthorization(AuthPolicies.Ingest)
+            .WithRequestBodyLimit(MaxBodyBytes);
         group.MapGet("/", ObservationQueries.Get).WithName("GetObservations")
-            .WithSummary("Stored readings (resolution=raw) or the site's regular grid (resolution=grid), JSON or CSV, paged by 'next'.");
+            .WithSummary("Stored readings (resolution=raw) or the site's regular grid (resolution=grid), JSON or CSV, paged by 'next'.")
+            .RequireAuthorization(AuthPolicies.Read);
         return group;
     }
 

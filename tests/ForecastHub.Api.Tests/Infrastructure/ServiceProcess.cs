@@ -40,6 +40,8 @@ public sealed class ServiceProcess : IAsyncDisposable
                  {
                      dll, "--urls", baseAddress.ToString().TrimEnd('/'), $"--Storage:Path={databasePath}",
                      $"--Auth:AdminKey={ApiFactory.AdminKey}", "--Serilog:MinimumLevel:Default=Warning",
+                     // These tests push requests as fast as they can; the per-key limit has its own tests.
+                     "--RateLimiting:Enabled=false",
                  })
         {
             start.ArgumentList.Add(arg);

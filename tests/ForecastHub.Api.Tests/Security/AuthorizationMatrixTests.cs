@@ -58,6 +58,8 @@ public sealed class AuthorizationMatrixTests
         ["GET /api/v1/sites/{siteId}"] = Access.Read,
         ["PATCH /api/v1/sites/{siteId}"] = Access.Admin,
         ["DELETE /api/v1/sites/{siteId}"] = Access.Admin,
+        ["POST /api/v1/sites/{siteId}/observations"] = Access.Ingest,
+        ["GET /api/v1/sites/{siteId}/observations"] = Access.Read,
         ["POST /api/v1/keys"] = Access.Admin,
         ["GET /api/v1/keys"] = Access.Admin,
         ["GET /api/v1/keys/{keyId}"] = Access.Admin,
