@@ -9,10 +9,8 @@ namespace ForecastHub.Core.Tests;
 
 public sealed class EdgeCaseTests
 {
-    public static TheoryData<ArMethod> Methods => new() { ArMethod.Burg, ArMethod.YuleWalker, ArMethod.LeastSquares, ArMethod.MaxLikelihood };
-
     [Theory]
-    [MemberData(nameof(Methods))]
+    [MemberData(nameof(SomeAr.Methods), MemberType = typeof(SomeAr))]
     public void EmptySeriesIsRefusedAsEmpty(ArMethod method)
     {
         var error = Assert.Throws<SeriesException>(() => ArFit.Fit(new[] { Array.Empty<double>() }, 1, method));
@@ -20,7 +18,7 @@ public sealed class EdgeCaseTests
     }
 
     [Theory]
-    [MemberData(nameof(Methods))]
+    [MemberData(nameof(SomeAr.Methods), MemberType = typeof(SomeAr))]
     public void SeriesWithNaNIsRefusedAsNonFinite(ArMethod method)
     {
         var series = SomeAr.ArSeries(50, [0.5]);
@@ -30,7 +28,7 @@ public sealed class EdgeCaseTests
     }
 
     [Theory]
-    [MemberData(nameof(Methods))]
+    [MemberData(nameof(SomeAr.Methods), MemberType = typeof(SomeAr))]
     public void ConstantSeriesIsRefusedAsConstant(ArMethod method)
     {
         var error = Assert.Throws<SeriesException>(() => ArFit.Fit(SomeAr.Constant(30), 1, method));
@@ -38,7 +36,7 @@ public sealed class EdgeCaseTests
     }
 
     [Theory]
-    [MemberData(nameof(Methods))]
+    [MemberData(nameof(SomeAr.Methods), MemberType = typeof(SomeAr))]
     public void SeriesShorterThanOrderPlusTwoIsRefusedAsTooShort(ArMethod method)
     {
         var error = Assert.Throws<SeriesException>(() => ArFit.Fit(new[] { 1.0, 2.0, 0.5, 3.0 }, 3, method));

@@ -65,6 +65,17 @@ public sealed class EntryPointInputTests
     }
 
     [Fact]
+    public void MaxOrderSettingOfZeroChoosesTheMeanOnlyModel()
+    {
+        var result = OrderSelection.Select(SomeAr.ArSeries(100, [0.6]), ArMethod.Burg, OrderPolicy.PacfAic, 0);
+
+        Assert.Equal(0, result.MaxOrder);
+        Assert.Empty(result.Pacf);
+        Assert.Equal(0, result.ChosenOrder);
+        Assert.Equal(0, result.Model.Order);
+    }
+
+    [Fact]
     public void ForecastWithNaNInTheLastOrderPointsIsRefusedAsNonFinite()
     {
         var series = SomeAr.ArSeries(200, [0.5, 0.2]);

@@ -13,7 +13,8 @@ namespace ForecastHub.Core.Autoregression;
 /// </summary>
 internal static class MaxLikelihoodEstimator
 {
-    public static ArModel Fit(SegmentSummary summary, int order)
+    /// <summary>Fits order p; the numerical-Hessian standard errors ((p+1)^2 likelihood evaluations) only when asked.</summary>
+    public static ArModel Fit(SegmentSummary summary, int order, bool withStandardErrors = true)
     {
         var centered = summary.Centered();
         var n = summary.Count;
@@ -41,7 +42,7 @@ internal static class MaxLikelihoodEstimator
         var ssq = terms.Squared - terms.Cross * muShift;
         var sigma2 = ssq / n;
         var logLikelihood = -0.5 * (n * Math.Log(2 * Math.PI * sigma2) + n + terms.SumLogVariance);
-        var errors = StandardErrors(centered, n, phi, muShift, summary);
+        var errors = withStandardErrors ? StandardErrors(centered, n, phi, muShift, summary) : new double[order];
         return ArModel.Create(ArMethod.MaxLikelihood, summary, summary.Mean + muShift, (double[])phi.Clone(), errors, sigma2) with
         {
             LogLikelihood = logLikelihood,

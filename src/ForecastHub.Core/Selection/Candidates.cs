@@ -45,16 +45,16 @@ internal sealed class Candidates
                 var variances = LeastSquaresEstimator.CommonSampleVariances(summary, maxOrder, out var rows);
                 return FromVariances(variances, rows, CriteriaSample.CommonRows, order => LeastSquaresEstimator.Fit(summary, order));
             case ArMethod.MaxLikelihood:
-                var models = new ArModel[maxOrder + 1];
                 var criteria = new OrderCriteria[maxOrder + 1];
                 for (var order = 0; order <= maxOrder; order++)
                 {
-                    models[order] = MaxLikelihoodEstimator.Fit(summary, order);
-                    var aic = -2 * models[order].LogLikelihood!.Value + 2.0 * (order + 2);
+                    // Standard errors only for the chosen order (below): the Hessian dominates the cost.
+                    var fit = MaxLikelihoodEstimator.Fit(summary, order, withStandardErrors: false);
+                    var aic = -2 * fit.LogLikelihood!.Value + 2.0 * (order + 2);
                     criteria[order] = OrderSelection.Criteria(order, aic, order + 2, n);
                 }
 
-                return new Candidates(criteria, CriteriaSample.ExactLikelihood, n, order => models[order]);
+                return new Candidates(criteria, CriteriaSample.ExactLikelihood, n, order => MaxLikelihoodEstimator.Fit(summary, order));
             default:
                 throw new ArgumentOutOfRangeException(nameof(method), method, "Unknown AR method.");
         }

@@ -9,10 +9,8 @@ public sealed class PropertyTests
 {
     private static readonly double[] Phi = [0.5, -0.3, 0.2];
 
-    public static TheoryData<ArMethod> Methods => new() { ArMethod.Burg, ArMethod.YuleWalker, ArMethod.LeastSquares, ArMethod.MaxLikelihood };
-
     [Theory]
-    [MemberData(nameof(Methods))]
+    [MemberData(nameof(SomeAr.Methods), MemberType = typeof(SomeAr))]
     public void LongSimulatedSeriesRecoversEveryCoefficientWithinThreeStandardErrors(ArMethod method)
     {
         var series = SomeAr.ArSeries(20_000, Phi, sigma: 1.5, mean: 7, seed: 11);

@@ -7,8 +7,6 @@ namespace ForecastHub.Core.Tests.Autoregression;
 
 public sealed class SegmentTests
 {
-    public static TheoryData<ArMethod> Methods => new() { ArMethod.Burg, ArMethod.YuleWalker, ArMethod.LeastSquares, ArMethod.MaxLikelihood };
-
     [Fact]
     public void PooledAutocovarianceUsesOneMeanAndNoPairAcrossTheGap()
     {
@@ -25,7 +23,7 @@ public sealed class SegmentTests
     }
 
     [Theory]
-    [MemberData(nameof(Methods))]
+    [MemberData(nameof(SomeAr.Methods), MemberType = typeof(SomeAr))]
     public void SwappingTheSegmentsLeavesTheFitUnchanged(ArMethod method)
     {
         // Bridging a gap would pair the end of one segment with the start of the next, which the order changes.

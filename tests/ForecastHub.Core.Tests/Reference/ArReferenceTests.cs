@@ -165,11 +165,12 @@ public sealed class ArReferenceTests
         // Our optimum is at least as high as R's default fit (BFGS stopping at reltol 1e-8).
         Assert.True(model.LogLikelihood!.Value >= r.Number("defaultLoglik") - 1e-9, "ML loglik below R's default fit");
 
-        // R's var.coef comes from optim's finite-difference Hessian (ndeps 1e-3): tolerance 1e-2 relative.
+        // R's var.coef comes from optim's finite-difference Hessian (ndeps 1e-3): tolerance 2e-3 relative
+        // (measured agreement 5e-5 to 1e-3).
         var expectedSe = r.Doubles("se");
         for (var i = 0; i < expectedSe.Length; i++)
         {
-            Assert.Equal(expectedSe[i], model.StandardErrors[i], expectedSe[i] * 1e-2);
+            Assert.Equal(expectedSe[i], model.StandardErrors[i], expectedSe[i] * 2e-3);
         }
 
         // R predict.Arima(n.ahead = 24); tolerance 1e-4.

@@ -3,6 +3,15 @@ namespace ForecastHub.Core.Tests.Support;
 /// <summary>Seeded test series.</summary>
 public static class SomeAr
 {
+    /// <summary>Every AR estimator, for theories that must hold for all of them.</summary>
+    public static TheoryData<ForecastHub.Core.Autoregression.ArMethod> Methods => new()
+    {
+        ForecastHub.Core.Autoregression.ArMethod.Burg,
+        ForecastHub.Core.Autoregression.ArMethod.YuleWalker,
+        ForecastHub.Core.Autoregression.ArMethod.LeastSquares,
+        ForecastHub.Core.Autoregression.ArMethod.MaxLikelihood,
+    };
+
     /// <summary>A Gaussian AR(p) with mean <paramref name="mean"/>, after a burn-in of 500 steps.</summary>
     public static double[] ArSeries(int length, double[] phi, double sigma = 1, double mean = 0, int seed = 1)
     {
