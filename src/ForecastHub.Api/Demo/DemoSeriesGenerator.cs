@@ -67,7 +67,7 @@ public static class DemoSeriesGenerator
 
             // The cold store's controller holds the air steady: half the orchard's local noise.
             var noise = site.Kind == DemoSiteKind.ColdStore ? 0.5 * local : local;
-            var value = Expected(site, time) + site.WeatherGain * weather[i] + noise;
+            var value = Expected(site, time, zone) + site.WeatherGain * weather[i] + noise;
             if (site.FrostTargetC is { } target)
             {
                 value = WithFrost(value, target, time, frostNight);
@@ -89,21 +89,16 @@ public static class DemoSeriesGenerator
     private static bool InGap(DemoFaults faults, int hoursAgo) =>
         faults.GapStartDaysAgo is { } days && hoursAgo <= days * 24 && hoursAgo > days * 24 - faults.GapHours;
 
-    /// <summary>Annual and daily cycle at a local time; daytime warming grows towards summer.</summary>
-    private static double Expected(DemoSiteProfile site, DateTimeOffset localTime)
+    /// <summary>Annual and daily cycle at a local time. Additive, as the model's climatology is, so that a
+    /// healthy logger's residuals come out white and the demo shows "ok" beside the faulty ones.</summary>
+    private static double Expected(DemoSiteProfile site, DateTimeOffset time, TimeZoneInfo zone)
     {
-        var season = -Math.Cos(2 * Math.PI * (localTime.DayOfYear - ColdestDayOfYear) / 365.25);
-        var hour = localTime.Hour + localTime.Minute / 60.0;
-        var dayRange = site.DiurnalAmplitudeC * (1 + 0.35 * season);
+        // The sun keeps standard time: the daily cycle does not jump with daylight saving.
+        var solar = time.ToOffset(zone.BaseUtcOffset);
+        var season = -Math.Cos(2 * Math.PI * (solar.DayOfYear - ColdestDayOfYear) / 365.25);
+        var hour = solar.Hour + solar.Minute / 60.0;
         var daily = Math.Cos(2 * Math.PI * (hour - WarmestHour) / 24) + 0.25 * Math.Cos(4 * Math.PI * (hour - WarmestHour + 2) / 24);
-        var value = site.AnnualMeanC + site.AnnualAmplitudeC * season + dayRange * daily;
-        if (site.Kind == DemoSiteKind.ColdStore && localTime.DayOfWeek is not (DayOfWeek.Saturday or DayOfWeek.Sunday)
-            && localTime.Hour is >= 7 and < 17)
-        {
-            // Doors open for loading on working days.
-            value += 0.6;
-        }
-        return value;
+        return site.AnnualMeanC + site.AnnualAmplitudeC * season + site.DiurnalAmplitudeC * daily;
     }
 
     /// <summary>A clear, still spring night: temperatures sink towards the site's frost target by 04:00.</summary>

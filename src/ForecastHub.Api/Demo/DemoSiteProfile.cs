@@ -7,7 +7,7 @@ namespace ForecastHub.Api.Demo;
 /// <param name="Kind">Orchard air, polytunnel air or cold-store air.</param>
 /// <param name="AnnualMeanC">Mean of the annual cycle, degrees C.</param>
 /// <param name="AnnualAmplitudeC">Half the winter-to-summer swing of the daily mean, degrees C.</param>
-/// <param name="DiurnalAmplitudeC">Half the night-to-afternoon swing at the equinox, degrees C.</param>
+/// <param name="DiurnalAmplitudeC">Size of the daily cycle (its main harmonic), degrees C.</param>
 /// <param name="WeatherGain">How strongly the farm-wide weather anomaly reaches this logger.</param>
 /// <param name="FrostTargetC">Lowest temperature on the frost night (orchard loggers only).</param>
 /// <param name="Faults">The faults this logger shows.</param>

@@ -164,13 +164,9 @@ async function selectSite(siteId) {
   const base = `/api/v1/sites/${encodeURIComponent(siteId)}`;
   const [site, health] = await Promise.all([getJson(base), getJson(`${base}/health`).catch(() => null)]);
   const hasModel = Boolean(health && health.modelFittedAt);
-  const [model, forecast, verification] = hasModel
-    ? await Promise.all([
-      getJson(`${base}/model`).catch(e => e),
-      getJson(forecastPath(base)).catch(e => e),
-      getJson(`${base}/verification`).catch(e => e),
-    ])
-    : [null, null, null];
+  const [model, forecast] = hasModel
+    ? await Promise.all([getJson(`${base}/model`).catch(e => e), getJson(forecastPath(base)).catch(e => e)])
+    : [null, null];
   const origin = forecast && !(forecast instanceof Error) && forecast.origin
     ? Date.parse(forecast.origin)
     : Date.parse((health && health.lastObservationAt) || new Date().toISOString());
@@ -178,8 +174,14 @@ async function selectSite(siteId) {
   const to = new Date(origin + 1000).toISOString();
   const observations = listOf(await getJson(`${base}/observations?from=${from}&to=${to}`).catch(() => []));
   if (state.selected !== siteId) return;
-  detail.replaceChildren(...renderSite({ site, health, model, forecast, verification, observations }));
+  detail.replaceChildren(...renderSite({ site, health, model, forecast, observations }));
   detail.setAttribute("aria-busy", "false");
+  if (hasModel && model && !(model instanceof Error)) {
+    // The backtest can take seconds the first time; the rest of the page does not wait for it.
+    const verification = await getJson(`${base}/verification`).catch(e => e);
+    const placeholder = document.getElementById("verification-panel");
+    if (state.selected === siteId && placeholder) placeholder.replaceWith(verificationPanel(verification));
+  }
 }
 
 function forecastPath(base) {
@@ -201,7 +203,9 @@ function renderSite(data) {
     ok(forecast) ? nextDayPanel(site, forecast) : unavailable("Tomorrow", noModelReason || errorText(forecast))));
   if (ok(model)) {
     parts.push(h("div", { class: "row row-three" }, acfPanel(model), pacfPanel(model), criteriaPanel(model)));
-    parts.push(h("div", { class: "row row-three" }, modelPanel(model), residualPanel(model), verificationPanel(data.verification)));
+    parts.push(h("div", { class: "row row-three" }, modelPanel(model), residualPanel(model),
+      h("section", { class: "panel", id: "verification-panel", "aria-busy": "true" }, h("h3", {}, "Verification"),
+        h("p", { class: "note" }, "Running the backtest over this site's history…"))));
   } else {
     parts.push(unavailable("Model, autocorrelation and verification", noModelReason || errorText(model)));
   }
@@ -252,7 +256,10 @@ function forecastPanel(site, observations, forecast, missingText) {
     ? `Last ${HISTORY_HOURS} hours measured, then ${forecast.steps.length} steps ahead from ${localTime(forecast.origin, site.timeZone)}. ` +
       `Model AR(${forecast.model ? forecast.model.order : "?"}), ${forecast.model ? forecast.model.method : ""}.`
     : `Last ${HISTORY_HOURS} hours measured. ${missingText || ""}`;
-  return h("section", { class: "panel", id: "forecast-panel" }, h("h3", {}, "History and forecast (°C)"), h("p", { class: "why" }, why), chart, legend);
+  const gap = forecast && forecast.missingRecentData
+    ? h("p", { class: "gap-note", role: "note" }, forecast.missingRecentData.message)
+    : null;
+  return h("section", { class: "panel", id: "forecast-panel" }, h("h3", {}, "History and forecast (°C)"), h("p", { class: "why" }, why), gap, chart, legend);
 }
 
 function stepPoint(step) {
@@ -335,9 +342,9 @@ function criteriaPanel(model) {
   const chosen = rows.find(r => r.order === sel.chosenOrder);
   return panel("AIC by order",
     `The AIC decides among orders 0..P: it chose p = ${sel.chosenOrder ?? "–"}${chosen ? ` (AIC ${num(chosen.aic, 1)})` : ""}; policy ${sel.policy || "–"}.`,
-    rows.length ? Charts.criteria(rows, sel.chosenOrder) : h("p", { class: "note" }, "No criteria reported."),
+    rows.length ? Charts.criteria(rows, sel.chosenOrder, sel.pacfCutoff) : h("p", { class: "note" }, "No criteria reported."),
     h("ul", { class: "legend" },
-      h("li", {}, "● AIC (solid)"), h("li", {}, "■ BIC (dashed)"), h("li", {}, "ring: chosen order")));
+      h("li", {}, "● AIC (solid)"), h("li", {}, "□ BIC (dashed)"), h("li", {}, "◯ chosen order"), h("li", {}, "shaded: orders 0..P")));
 }
 
 function modelPanel(model) {
@@ -384,31 +391,49 @@ function residualPanel(model) {
 
 function verificationPanel(verification) {
   if (!verification || verification instanceof Error) {
-    return unavailable("Verification", errorText(verification));
+    const missing = unavailable("Verification", errorText(verification));
+    missing.id = "verification-panel";
+    return missing;
   }
-  return panel("Verification", "Backtest: rolling origins over the site's own history, each forecasting the next day.",
-    ...Verification.render(verification));
+  const backtest = verification.backtest;
+  const live = verification.live || {};
+  const columns = [backtest ? backtest.pooled : null, live.pooled || null];
+  const cell = (scores, pick) => (scores ? pick(scores) : "–");
+  const level = (scores, lv, key) => {
+    const i = scores && (scores.intervals || []).find(x => Number(x.level) === lv);
+    return i ? i[key] : NaN;
+  };
+  const rows = [
+    ["MAE", s => degrees(s.mae, 2)],
+    ["RMSE", s => degrees(s.rmse, 2)],
+    ["bias (forecast − observed)", s => degrees(s.bias, 2)],
+    ["skill vs persistence", s => num(s.skillVsPersistence, 2)],
+    ["skill vs climatology", s => num(s.skillVsClimatology, 2)],
+    ["CRPS", s => degrees(s.crps, 2)],
+    ["80 % interval covers", s => percent(level(s, 80, "coverage"))],
+    ["95 % interval covers", s => percent(level(s, 95, "coverage"))],
+    ["95 % mean width", s => degrees(level(s, 95, "meanWidth"), 1)],
+  ].map(([label, pick]) => [label, ...columns.map(c => cell(c, pick))]);
+  const why = backtest
+    ? `Backtest: ${backtest.origins} daily origins, refitted every ${backtest.refitEveryDays} days, each forecasting the next day. ` +
+      `Skill 1 − MSE/MSE_ref: above 0 beats the reference. Live: ${live.days || 0} scored days of archived forecasts.`
+    : "The history is too short for a backtest yet.";
+  const horizons = backtest ? backtest.horizons || [] : [];
+  const chart = horizons.length
+    ? Charts.lines([
+      { label: "model", cls: "model", points: horizons.map(s => ({ x: s.horizon, y: s.mae })) },
+      { label: "persistence", cls: "persistence", points: horizons.map(s => ({ x: s.horizon, y: s.persistenceMae })) },
+      { label: "climatology", cls: "climatology", points: horizons.map(s => ({ x: s.horizon, y: s.climatologyMae })) },
+    ], { title: "Mean absolute error by lead time", xLabel: "Lead time (steps ahead)", yLabel: "MAE (°C)" })
+    : null;
+  return h("section", { class: "panel", id: "verification-panel" }, h("h3", {}, "Verification"), h("p", { class: "why" }, why),
+    table(["score", "backtest", "live"], rows, { id: "verification-scores" }),
+    chart,
+    chart ? h("ul", { class: "legend" },
+      h("li", {}, h("span", { class: "swatch model" }), "model (solid)"),
+      h("li", {}, h("span", { class: "swatch persistence" }), "persistence (dashed)"),
+      h("li", {}, h("span", { class: "swatch climatology" }), "climatology (dotted)")) : null);
 }
-
-// Verification answers: the backtest's scores by reference, and coverage by level.
-const Verification = {
-  render(v) {
-    const backtest = v.backtest || v;
-    const rows = [];
-    const model = backtest.model || backtest.scores || {};
-    const add = (label, value, format) => { if (value !== undefined && value !== null) rows.push([label, format(value)]); };
-    add("MAE", model.mae, x => degrees(x, 2));
-    add("RMSE", model.rmse, x => degrees(x, 2));
-    add("bias", model.bias, x => degrees(x, 2));
-    add("CRPS", model.crps, x => degrees(x, 3));
-    add("skill vs persistence", backtest.skillVsPersistence ?? model.skillVsPersistence, x => num(x, 2));
-    add("skill vs climatology", backtest.skillVsClimatology ?? model.skillVsClimatology, x => num(x, 2));
-    const coverage = (backtest.coverage || model.coverage || []).map(c => [`${c.level} % interval covers`, `${percent(c.coverage ?? c.observed)} (width ${degrees(c.meanWidth, 1)})`]);
-    const out = [table(["score", "value"], rows.concat(coverage), { id: "verification-scores" })];
-    if (backtest.origins !== undefined) out.push(h("p", { class: "note" }, `${backtest.origins} forecast origins.`));
-    return out;
-  },
-};
 
 function cautionsPanel(cautions) {
   const list = Array.isArray(cautions) && cautions.length

@@ -177,48 +177,79 @@ const Charts = (() => {
     }
     if (opts.cutoff > 0) {
       svg("line", { class: "cutoff", x1: x(opts.cutoff + 0.5), x2: x(opts.cutoff + 0.5), y1: top, y2: bottom }, root);
-      text(root, x(opts.cutoff + 0.5) + 3, top + 10, `cutoff P = ${opts.cutoff}`, { class: "chosen-label" });
+      const nearRight = x(opts.cutoff + 0.5) > right - 70;
+      text(root, x(opts.cutoff + 0.5) + (nearRight ? -3 : 3), top + 10, `cutoff P = ${opts.cutoff}`, { class: "chosen-label", "text-anchor": nearRight ? "end" : "start" });
     }
     return root;
   }
 
-  /** Information criteria by order, shown relative to each criterion's minimum; the chosen order ringed. */
-  function criteria(rows, chosenOrder) {
+  /**
+   * Information criteria by order, each shown as its difference from its own minimum on a log scale
+   * (log10(1 + delta)), so the small differences near the chosen order stay visible beside the
+   * large ones at low orders. The orders 0..P that the AIC chooses among are shaded.
+   */
+  function criteria(rows, chosenOrder, cutoff) {
     const W = 360, H = 230, left = 50, right = W - 12, top = 14, bottom = H - 38;
     const root = frame(W, H, "Information criteria by AR order");
     const minOf = key => Math.min(...rows.map(r => r[key]).filter(isFinite));
-    const series = [
-      { key: "aic", label: "AIC" },
-      { key: "bic", label: "BIC" },
-    ].filter(s => rows.some(r => isFinite(r[s.key])));
-    const deltas = series.map(s => ({ ...s, min: minOf(s.key), points: rows.filter(r => isFinite(r[s.key])).map(r => ({ order: r.order, d: r[s.key] - minOf(s.key) })) }));
-    const orders = rows.map(r => r.order);
-    const [o0, o1] = extent(orders);
-    let [, hi] = extent(deltas.flatMap(s => s.points.map(p => p.d)));
-    hi = Math.max(hi, 1) * 1.08;
-    const x = linear(o0 - 0.4, o1 + 0.4, left, right);
-    // Square-root scale so small differences near the minimum stay visible beside the large ones at low orders.
-    const y = v => linear(0, Math.sqrt(hi), bottom, top)(Math.sqrt(Math.max(0, v)));
-    const tickValues = [0, 2, 10, 50, 200, 1000, 5000, 20000, 100000].filter(v => v <= hi);
-    yAxis(root, y, tickValues, left, right, "Δ from minimum", v => String(v));
+    const series = ["aic", "bic"].filter(key => rows.some(r => isFinite(r[key])))
+      .map(key => ({ key, points: rows.filter(r => isFinite(r[key])).map(r => ({ order: r.order, d: r[key] - minOf(key) })) }));
+    const [o0, o1] = extent(rows.map(r => r.order));
+    const [, hi] = extent(series.flatMap(s => s.points.map(p => p.d)));
+    const top10 = Math.max(1, Math.ceil(Math.log10(1 + Math.max(hi, 1))));
+    const x = linear(o0 - 0.5, o1 + 0.5, left, right);
+    const y = v => linear(0, top10, bottom, top)(Math.log10(1 + Math.max(0, v)));
+    if (isFinite(cutoff) && cutoff >= o0) {
+      const band = svg("rect", { class: "choice-range", x: x(o0 - 0.5), y: top, width: x(Math.min(cutoff, o1) + 0.5) - x(o0 - 0.5), height: bottom - top }, root);
+      svg("title", {}, band).textContent = `orders 0..${cutoff}, among which the AIC chooses`;
+      text(root, x(o0 - 0.5) + 3, bottom - 4, `0..P`, { class: "range-label" });
+    }
+    const tickValues = [0];
+    for (let k = 1; k <= top10; k++) tickValues.push(Math.pow(10, k) - 1);
+    yAxis(root, y, tickValues, left, right, "Δ from minimum", v => (v === 0 ? "0" : String(Math.round(v + 1))));
     const axis = svg("g", { class: "axis" }, root);
     for (const t of ticks(o0, o1, 8).filter(Number.isInteger)) text(axis, x(t), bottom + 15, String(t), { "text-anchor": "middle" });
     text(root, (left + right) / 2, bottom + 32, "AR order p", { class: "axis-title", "text-anchor": "middle" });
-    for (const s of deltas) {
+    for (const s of series) {
       const pts = s.points.map(p => ({ t: p.order, x: x(p.order), y: y(p.d) }));
       svg("path", { class: `criterion ${s.key}`, d: pathFrom(pts), "data-points": pts.length }, root);
       for (const p of pts) {
-        if (s.key === "aic") svg("circle", { class: "marker aic", cx: p.x, cy: p.y, r: 3 }, root);
-        else svg("rect", { class: "marker bic", x: p.x - 2.5, y: p.y - 2.5, width: 5, height: 5 }, root);
+        if (s.key === "aic") svg("circle", { class: "marker aic", cx: p.x, cy: p.y, r: 2.6 }, root);
+        else svg("rect", { class: "marker bic", x: p.x - 2.3, y: p.y - 2.3, width: 4.6, height: 4.6 }, root);
       }
     }
-    const chosen = deltas.find(s => s.key === "aic")?.points.find(p => p.order === chosenOrder);
+    const chosen = series.find(s => s.key === "aic")?.points.find(p => p.order === chosenOrder);
     if (chosen) {
-      svg("circle", { class: "chosen", cx: x(chosen.order), cy: y(chosen.d), r: 7 }, root);
-      text(root, x(chosen.order), y(chosen.d) - 11, `chosen p = ${chosenOrder}`, { class: "chosen-label", "text-anchor": x(chosen.order) > right - 50 ? "end" : "middle" });
+      const cx = x(chosen.order), cy = y(chosen.d);
+      svg("circle", { class: "chosen", cx, cy, r: 7 }, root);
+      svg("line", { class: "chosen-pointer", x1: cx, x2: cx, y1: cy - 8, y2: top + 30 }, root);
+      text(root, cx + 4, top + 26, `chosen p = ${chosenOrder}`, { class: "chosen-label", "text-anchor": cx > right - 80 ? "end" : "start" });
     }
     return root;
   }
 
-  return { forecast, correlogram, criteria };
+  /** Several lines over a shared numeric x axis; series: [{label, cls, points: [{x, y}]}]. */
+  function lines(series, opts) {
+    const W = 360, H = 230, left = 46, right = W - 12, top = 14, bottom = H - 38;
+    const root = frame(W, H, opts.title);
+    const all = series.flatMap(s => s.points);
+    const [x0, x1] = extent(all.map(p => p.x));
+    let [, hi] = extent(all.map(p => p.y));
+    hi = (isFinite(hi) ? hi : 1) * 1.08;
+    const x = linear(x0, x1, left, right);
+    const y = linear(0, hi, bottom, top);
+    yAxis(root, y, ticks(0, hi, 5), left, right, opts.yLabel, v => v.toFixed(hi < 3 ? 1 : 0));
+    const axis = svg("g", { class: "axis" }, root);
+    svg("line", { x1: left, x2: right, y1: bottom, y2: bottom }, axis);
+    for (const t of ticks(x0, x1, 6).filter(Number.isInteger)) text(axis, x(t), bottom + 15, String(t), { "text-anchor": "middle" });
+    text(root, (left + right) / 2, bottom + 32, opts.xLabel, { class: "axis-title", "text-anchor": "middle" });
+    for (const s of series) {
+      const pts = s.points.filter(p => isFinite(p.y)).map(p => ({ t: p.x, x: x(p.x), y: y(p.y) }));
+      const line = svg("path", { class: `series ${s.cls}`, d: pathFrom(pts), "data-points": pts.length }, root);
+      svg("title", {}, line).textContent = s.label;
+    }
+    return root;
+  }
+
+  return { forecast, correlogram, criteria, lines };
 })();
