@@ -1,0 +1,35 @@
+namespace ForecastHub.Storage.Models;
+
+/// <summary>A site's serving model as stored: the model itself is JSON the storage does not read.</summary>
+public sealed record StoredModel(
+    string SiteId,
+    DateTimeOffset FittedAt,
+    double FitDurationMs,
+    long SettingsVersion,
+    DateTimeOffset DataEnd,
+    int DataPoints,
+    string ModelJson);
+
+/// <summary>The last fit attempt of a site; <c>Error</c> is set when it failed.</summary>
+public sealed record FitAttempt(string SiteId, DateTimeOffset AttemptedAt, bool Failed, string? Error);
+
+/// <summary>Serving models and fit attempts, one of each per site.</summary>
+public interface IModelStore
+{
+    /// <summary>Null when the site has no model (or does not exist).</summary>
+    Task<StoredModel?> GetAsync(string siteId, CancellationToken cancellationToken = default);
+
+    /// <summary>Replaces the site's serving model and records a successful attempt; false when the site does not exist.</summary>
+    Task<bool> SaveAsync(StoredModel model, CancellationToken cancellationToken = default);
+
+    /// <summary>Records a failed attempt; the serving model stays. False when the site does not exist.</summary>
+    Task<bool> RecordFailureAsync(FitAttempt attempt, CancellationToken cancellationToken = default);
+
+    Task<FitAttempt?> GetLastAttemptAsync(string siteId, CancellationToken cancellationToken = default);
+
+    /// <summary>The fitted-at time, settings version and data end of every site's model, for the refit sweep and start-up.</summary>
+    Task<IReadOnlyList<ModelSummary>> ListSummariesAsync(CancellationToken cancellationToken = default);
+}
+
+/// <summary>A model's bookkeeping without its JSON.</summary>
+public sealed record ModelSummary(string SiteId, DateTimeOffset FittedAt, long SettingsVersion, DateTimeOffset DataEnd, int DataPoints);

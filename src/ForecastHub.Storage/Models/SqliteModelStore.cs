@@ -1,0 +1,101 @@
+using Microsoft.Data.Sqlite;
+
+namespace ForecastHub.Storage.Models;
+
+public sealed class SqliteModelStore(SqliteDatabase database) : IModelStore
+{
+    public Task<StoredModel?> GetAsync(string siteId, CancellationToken cancellationToken = default) =>
+        Task.FromResult(database.Read((connection, transaction) =>
+        {
+            using var select = connection.Command(transaction, """
+                SELECT m.fitted_at_ms, m.fit_duration_ms, m.settings_version, m.data_end_ms, m.data_points, m.model_json
+                FROM site_models m JOIN sites s ON s.key = m.site_key WHERE s.id = $id;
+                """).With("$id", siteId);
+            using var reader = select.ExecuteReader();
+            return reader.Read()
+                ? new StoredModel(siteId, SqliteExtensions.FromUnixMs(reader.GetInt64(0)), reader.GetDouble(1), reader.GetInt64(2),
+                    SqliteExtensions.FromUnixMs(reader.GetInt64(3)), reader.GetInt32(4), reader.GetString(5))
+                : null;
+        }));
+
+    public Task<bool> SaveAsync(StoredModel model, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(model);
+        return database.WriteAsync((connection, transaction) =>
+        {
+            using var upsert = connection.Command(transaction, """
+                INSERT INTO site_models (site_key, fitted_at_ms, fit_duration_ms, settings_version, data_end_ms, data_points, model_json)
+                SELECT key, $fitted, $duration, $settings, $end, $points, $json FROM sites WHERE id = $id
+                ON CONFLICT (site_key) DO UPDATE SET fitted_at_ms = excluded.fitted_at_ms,
+                    fit_duration_ms = excluded.fit_duration_ms, settings_version = excluded.settings_version,
+                    data_end_ms = excluded.data_end_ms, data_points = excluded.data_points, model_json = excluded.model_json;
+                """)
+                .With("$id", model.SiteId)
+                .With("$fitted", model.FittedAt.ToUnixTimeMilliseconds())
+                .With("$duration", model.FitDurationMs)
+                .With("$settings", model.SettingsVersion)
+                .With("$end", model.DataEnd.ToUnixTimeMilliseconds())
+                .With("$points", model.DataPoints)
+                .With("$json", model.ModelJson);
+            if (upsert.ExecuteNonQuery() == 0)
+            {
+                return false;
+            }
+
+            WriteAttempt(connection, transaction, new FitAttempt(model.SiteId, model.FittedAt, Failed: false, Error: null));
+            return true;
+        }, cancellationToken);
+    }
+
+    public Task<bool> RecordFailureAsync(FitAttempt attempt, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(attempt);
+        return database.WriteAsync((connection, transaction) => WriteAttempt(connection, transaction, attempt), cancellationToken);
+    }
+
+    public Task<FitAttempt?> GetLastAttemptAsync(string siteId, CancellationToken cancellationToken = default) =>
+        Task.FromResult(database.Read((connection, transaction) =>
+        {
+            using var select = connection.Command(transaction, """
+                SELECT a.attempted_at_ms, a.failed, a.error
+                FROM site_fit_attempts a JOIN sites s ON s.key = a.site_key WHERE s.id = $id;
+                """).With("$id", siteId);
+            using var reader = select.ExecuteReader();
+            return reader.Read()
+                ? new FitAttempt(siteId, SqliteExtensions.FromUnixMs(reader.GetInt64(0)), reader.GetInt64(1) != 0, reader.GetNullableString(2))
+                : null;
+        }));
+
+    public Task<IReadOnlyList<ModelSummary>> ListSummariesAsync(CancellationToken cancellationToken = default) =>
+        Task.FromResult(database.Read<IReadOnlyList<ModelSummary>>((connection, transaction) =>
+        {
+            using var select = connection.Command(transaction, """
+                SELECT s.id, m.fitted_at_ms, m.settings_version, m.data_end_ms, m.data_points
+                FROM site_models m JOIN sites s ON s.key = m.site_key ORDER BY s.id;
+                """);
+            using var reader = select.ExecuteReader();
+            var list = new List<ModelSummary>();
+            while (reader.Read())
+            {
+                list.Add(new ModelSummary(reader.GetString(0), SqliteExtensions.FromUnixMs(reader.GetInt64(1)), reader.GetInt64(2),
+                    SqliteExtensions.FromUnixMs(reader.GetInt64(3)), reader.GetInt32(4)));
+            }
+
+            return list;
+        }));
+
+    private static bool WriteAttempt(SqliteConnection connection, SqliteTransaction transaction, FitAttempt attempt)
+    {
+        using var upsert = connection.Command(transaction, """
+            INSERT INTO site_fit_attempts (site_key, attempted_at_ms, failed, error)
+            SELECT key, $at, $failed, $error FROM sites WHERE id = $id
+            ON CONFLICT (site_key) DO UPDATE SET attempted_at_ms = excluded.attempted_at_ms,
+                failed = excluded.failed, error = excluded.error;
+            """)
+            .With("$id", attempt.SiteId)
+            .With("$at", attempt.AttemptedAt.ToUnixTimeMilliseconds())
+            .With("$failed", attempt.Failed ? 1 : 0)
+            .With("$error", attempt.Error);
+        return upsert.ExecuteNonQuery() == 1;
+    }
+}
