@@ -17,6 +17,17 @@ public sealed class ServiceMetrics
         ForecastDuration = registry.Histogram("forecasthub_forecast_duration_seconds", "Time to answer a forecast, by cache (hit, miss).", ForecastBuckets, "cache");
     }
 
+    /// <summary>Registers the gauges that are read from live state when the page is rendered.</summary>
+    public void AddGauges(Func<IReadOnlyDictionary<string, int>?> sitesByState, Func<int> refitQueueLength)
+    {
+        ArgumentNullException.ThrowIfNull(sitesByState);
+        ArgumentNullException.ThrowIfNull(refitQueueLength);
+        Registry.Gauge("forecasthub_sites", "Sites by model-health state, as of the latest fleet evaluation.",
+            () => (sitesByState() ?? new Dictionary<string, int>()).Select(kv => (new[] { kv.Key }, (double)kv.Value)), "state");
+        Registry.Gauge("forecasthub_refit_queue_length", "Sites waiting to be looked at by the refit service.",
+            () => [([], refitQueueLength())]);
+    }
+
     public MetricsRegistry Registry { get; }
 
     public Counter Readings { get; }

@@ -2,7 +2,8 @@
 -- archived day-ahead forecasts and their live scores.
 
 -- One serving model per site, as the JSON the forecaster reads back; data_end_ms and
--- data_points say which grid it was fitted on, settings_version which settings.
+-- data_points say which grid it was fitted on, settings_version which settings; the residual
+-- Ljung-Box p-value is kept beside the JSON so fleet health need not parse every model.
 CREATE TABLE site_models (
     site_key         INTEGER PRIMARY KEY REFERENCES sites (key) ON DELETE CASCADE,
     fitted_at_ms     INTEGER NOT NULL,
@@ -10,6 +11,7 @@ CREATE TABLE site_models (
     settings_version INTEGER NOT NULL,
     data_end_ms      INTEGER NOT NULL,
     data_points      INTEGER NOT NULL,
+    residual_p_value REAL,
     model_json       TEXT    NOT NULL
 );
 

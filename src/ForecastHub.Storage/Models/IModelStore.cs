@@ -8,6 +8,7 @@ public sealed record StoredModel(
     long SettingsVersion,
     DateTimeOffset DataEnd,
     int DataPoints,
+    double? ResidualPValue,
     string ModelJson);
 
 /// <summary>The last fit attempt of a site; <c>Error</c> is set when it failed.</summary>
@@ -29,7 +30,10 @@ public interface IModelStore
 
     /// <summary>The fitted-at time, settings version and data end of every site's model, for the refit sweep and start-up.</summary>
     Task<IReadOnlyList<ModelSummary>> ListSummariesAsync(CancellationToken cancellationToken = default);
+
+    /// <summary>The bookkeeping of one site's model without its JSON; null when it has none.</summary>
+    Task<ModelSummary?> GetSummaryAsync(string siteId, CancellationToken cancellationToken = default);
 }
 
 /// <summary>A model's bookkeeping without its JSON.</summary>
-public sealed record ModelSummary(string SiteId, DateTimeOffset FittedAt, long SettingsVersion, DateTimeOffset DataEnd, int DataPoints);
+public sealed record ModelSummary(string SiteId, DateTimeOffset FittedAt, long SettingsVersion, DateTimeOffset DataEnd, int DataPoints, double? ResidualPValue);

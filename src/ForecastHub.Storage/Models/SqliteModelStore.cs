@@ -4,17 +4,19 @@ namespace ForecastHub.Storage.Models;
 
 public sealed class SqliteModelStore(SqliteDatabase database) : IModelStore
 {
+    private const string SummaryColumns = "s.id, m.fitted_at_ms, m.settings_version, m.data_end_ms, m.data_points, m.residual_p_value";
+
     public Task<StoredModel?> GetAsync(string siteId, CancellationToken cancellationToken = default) =>
         Task.FromResult(database.Read((connection, transaction) =>
         {
             using var select = connection.Command(transaction, """
-                SELECT m.fitted_at_ms, m.fit_duration_ms, m.settings_version, m.data_end_ms, m.data_points, m.model_json
+                SELECT m.fitted_at_ms, m.fit_duration_ms, m.settings_version, m.data_end_ms, m.data_points, m.residual_p_value, m.model_json
                 FROM site_models m JOIN sites s ON s.key = m.site_key WHERE s.id = $id;
                 """).With("$id", siteId);
             using var reader = select.ExecuteReader();
             return reader.Read()
                 ? new StoredModel(siteId, SqliteExtensions.FromUnixMs(reader.GetInt64(0)), reader.GetDouble(1), reader.GetInt64(2),
-                    SqliteExtensions.FromUnixMs(reader.GetInt64(3)), reader.GetInt32(4), reader.GetString(5))
+                    SqliteExtensions.FromUnixMs(reader.GetInt64(3)), reader.GetInt32(4), reader.GetNullableDouble(5), reader.GetString(6))
                 : null;
         }));
 
@@ -24,11 +26,12 @@ public sealed class SqliteModelStore(SqliteDatabase database) : IModelStore
         return database.WriteAsync((connection, transaction) =>
         {
             using var upsert = connection.Command(transaction, """
-                INSERT INTO site_models (site_key, fitted_at_ms, fit_duration_ms, settings_version, data_end_ms, data_points, model_json)
-                SELECT key, $fitted, $duration, $settings, $end, $points, $json FROM sites WHERE id = $id
+                INSERT INTO site_models (site_key, fitted_at_ms, fit_duration_ms, settings_version, data_end_ms, data_points, residual_p_value, model_json)
+                SELECT key, $fitted, $duration, $settings, $end, $points, $p, $json FROM sites WHERE id = $id
                 ON CONFLICT (site_key) DO UPDATE SET fitted_at_ms = excluded.fitted_at_ms,
                     fit_duration_ms = excluded.fit_duration_ms, settings_version = excluded.settings_version,
-                    data_end_ms = excluded.data_end_ms, data_points = excluded.data_points, model_json = excluded.model_json;
+                    data_end_ms = excluded.data_end_ms, data_points = excluded.data_points,
+                    residual_p_value = excluded.residual_p_value, model_json = excluded.model_json;
                 """)
                 .With("$id", model.SiteId)
                 .With("$fitted", model.FittedAt.ToUnixTimeMilliseconds())
@@ -36,6 +39,7 @@ public sealed class SqliteModelStore(SqliteDatabase database) : IModelStore
                 .With("$settings", model.SettingsVersion)
                 .With("$end", model.DataEnd.ToUnixTimeMilliseconds())
                 .With("$points", model.DataPoints)
+                .With("$p", model.ResidualPValue is { } p && double.IsFinite(p) ? p : null)
                 .With("$json", model.ModelJson);
             if (upsert.ExecuteNonQuery() == 0)
             {
@@ -69,20 +73,30 @@ public sealed class SqliteModelStore(SqliteDatabase database) : IModelStore
     public Task<IReadOnlyList<ModelSummary>> ListSummariesAsync(CancellationToken cancellationToken = default) =>
         Task.FromResult(database.Read<IReadOnlyList<ModelSummary>>((connection, transaction) =>
         {
-            using var select = connection.Command(transaction, """
-                SELECT s.id, m.fitted_at_ms, m.settings_version, m.data_end_ms, m.data_points
-                FROM site_models m JOIN sites s ON s.key = m.site_key ORDER BY s.id;
-                """);
+            using var select = connection.Command(transaction,
+                $"SELECT {SummaryColumns} FROM site_models m JOIN sites s ON s.key = m.site_key ORDER BY s.id;");
             using var reader = select.ExecuteReader();
             var list = new List<ModelSummary>();
             while (reader.Read())
             {
-                list.Add(new ModelSummary(reader.GetString(0), SqliteExtensions.FromUnixMs(reader.GetInt64(1)), reader.GetInt64(2),
-                    SqliteExtensions.FromUnixMs(reader.GetInt64(3)), reader.GetInt32(4)));
+                list.Add(ReadSummary(reader));
             }
 
             return list;
         }));
+
+    public Task<ModelSummary?> GetSummaryAsync(string siteId, CancellationToken cancellationToken = default) =>
+        Task.FromResult(database.Read((connection, transaction) =>
+        {
+            using var select = connection.Command(transaction,
+                $"SELECT {SummaryColumns} FROM site_models m JOIN sites s ON s.key = m.site_key WHERE s.id = $id;").With("$id", siteId);
+            using var reader = select.ExecuteReader();
+            return reader.Read() ? ReadSummary(reader) : null;
+        }));
+
+    private static ModelSummary ReadSummary(SqliteDataReader reader) =>
+        new(reader.GetString(0), SqliteExtensions.FromUnixMs(reader.GetInt64(1)), reader.GetInt64(2),
+            SqliteExtensions.FromUnixMs(reader.GetInt64(3)), reader.GetInt32(4), reader.GetNullableDouble(5));
 
     private static bool WriteAttempt(SqliteConnection connection, SqliteTransaction transaction, FitAttempt attempt)
     {

@@ -1,0 +1,127 @@
+using System.Collections.Concurrent;
+using System.Diagnostics;
+using ForecastHub.Api.Health;
+using ForecastHub.Api.Metrics;
+using ForecastHub.Api.Models;
+using ForecastHub.Core.Grid;
+using ForecastHub.Storage.Sites;
+
+namespace ForecastHub.Api.Forecasts;
+
+/// <summary>Why no forecast could be made: the site has no model yet.</summary>
+public sealed record ForecastUnavailable(string Detail);
+
+/// <summary>
+/// Forecasts from the serving model and the latest stored data. Answers are kept in memory per
+/// site, keyed by the site's data and model versions, the current grid step and the query, so a
+/// repeated request costs a dictionary look-up; new data or a new model starts a new key.
+/// </summary>
+public sealed class ForecastService(
+    ModelService models,
+    SiteGridLoader grids,
+    SiteModeling modeling,
+    SiteVersions versions,
+    ModelHealthService health,
+    ServiceMetrics metrics,
+    TimeProvider clock)
+{
+    /// <summary>Hourly forecasts condition on this much recent data (enough for any AR order the settings allow).</summary>
+    public static readonly TimeSpan HourlyRecentWindow = TimeSpan.FromDays(10);
+
+    /// <summary>Daily forecasts condition on this much recent data.</summary>
+    public static readonly TimeSpan DailyRecentWindow = TimeSpan.FromDays(120);
+
+    // Fixed so the same data, model and query give the same next-day summary.
+    private const int MonteCarloSeed = 20_240_601;
+    private const int MaxEntriesPerSite = 32;
+
+    private readonly ConcurrentDictionary<string, SiteEntry> cache = new(StringComparer.Ordinal);
+
+    public async Task<(ForecastResponse? Forecast, ForecastUnavailable? Unavailable)> GetAsync(
+        SiteRecord site, ForecastQuery query, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        ArgumentNullException.ThrowIfNull(query);
+        var watch = Stopwatch.StartNew();
+        var now = clock.GetUtcNow();
+        var (dataVersion, modelVersion) = versions.Get(site.Id);
+        var step = SiteGridLoader.AlignDown(site, now);
+        var entry = cache.AddOrUpdate(site.Id,
+            _ => new SiteEntry(dataVersion, modelVersion, step),
+            (_, old) => old.Matches(dataVersion, modelVersion, step) ? old : new SiteEntry(dataVersion, modelVersion, step));
+        if (entry.Answers.TryGetValue(query.Key, out var hit))
+        {
+            metrics.ForecastDuration.Observe(watch.Elapsed.TotalSeconds, "hit");
+            return (hit, null);
+        }
+
+        var model = await models.GetAsync(site, cancellationToken);
+        if (model is null)
+        {
+            var assessment = await health.EvaluateAsync(site, cancellationToken);
+            var why = string.Join(" ", assessment.Reasons.Select(r => r.Message));
+            return (null, new ForecastUnavailable($"The site has no fitted model yet (health: {assessment.State}). {why}".Trim()));
+        }
+
+        var forecast = await ComputeAsync(site, model, query, now, cancellationToken);
+        if (forecast is not null && entry.Answers.Count < MaxEntriesPerSite)
+        {
+            entry.Answers.TryAdd(query.Key, forecast);
+        }
+
+        metrics.ForecastDuration.Observe(watch.Elapsed.TotalSeconds, "miss");
+        return (forecast, forecast is null ? new ForecastUnavailable("The site has no stored data to forecast from.") : null);
+    }
+
+    private async Task<ForecastResponse?> ComputeAsync(SiteRecord site, ServingModel model, ForecastQuery query, DateTimeOffset now, CancellationToken cancellationToken)
+    {
+        var isDaily = SiteGridLoader.IsDaily(site);
+        var currentStep = SiteGridLoader.AlignDown(site, now);
+
+        // Hourly: the hour in progress counts (the mean of its readings so far); daily: only whole local days.
+        var to = isDaily ? currentStep : SiteGridLoader.NextStep(site, currentStep);
+        var from = now - (isDaily ? DailyRecentWindow : HourlyRecentWindow);
+        var readings = await grids.ReadAsync(site, from, to, cancellationToken);
+        if (readings is null)
+        {
+            return null;
+        }
+
+        var grid = SiteGridLoader.Build(site, readings, from, to);
+        var last = grid.LastValueIndex;
+        if (last < 0)
+        {
+            return null;
+        }
+
+        // Steps between the newest data and now are forecast too (and not shown), so intervals widen with the gap.
+        var missing = grid.Count - 1 - last;
+        var recent = SiteGridLoader.Build(site, readings, from, SiteGridLoader.NextStep(site, grid.Times[last]));
+        var path = modeling.Forecast(model.Model, recent, query.Steps + missing, query.Levels, query.Below, query.Above, MonteCarloSeed);
+        var assessment = await health.EvaluateAsync(site, cancellationToken);
+        var gap = missing == 0
+            ? null
+            : new ForecastDataGap(grid.Times[last], missing,
+                $"The newest {missing} {(isDaily ? "day" : "hour")}{(missing == 1 ? "" : "s")} before now have no data; the forecast starts from the data of {grid.Times[last]:O} and its intervals are wider for it.");
+        var info = modeling.Describe(model.Model);
+        return new ForecastResponse(
+            site.Id,
+            now,
+            grid.Times[last],
+            "C",
+            assessment.State,
+            new ForecastModelUsed(info.Order, info.Method, model.Stored.FittedAt),
+            [.. path.Steps.Skip(missing)],
+            path.NextDay,
+            gap,
+            ForecastCautions.All);
+    }
+
+    private sealed class SiteEntry(long dataVersion, long modelVersion, DateTimeOffset step)
+    {
+        public ConcurrentDictionary<string, ForecastResponse> Answers { get; } = new(StringComparer.Ordinal);
+
+        public bool Matches(long data, long model, DateTimeOffset currentStep) =>
+            data == dataVersion && model == modelVersion && currentStep == step;
+    }
+}

@@ -1,0 +1,67 @@
+using ForecastHub.Api.Auth;
+using ForecastHub.Api.Problems;
+using ForecastHub.Storage.Models;
+using ForecastHub.Storage.Sites;
+using Microsoft.AspNetCore.Http.HttpResults;
+
+namespace ForecastHub.Api.Models;
+
+/// <summary>The fitted model of a site and a synchronous refit.</summary>
+public static class ModelEndpoints
+{
+    public static RouteGroupBuilder MapModels(this RouteGroupBuilder api)
+    {
+        ArgumentNullException.ThrowIfNull(api);
+        var group = api.MapGroup("/sites/{siteId}/model").WithTags("Models");
+        group.MapGet("", GetModel).WithName("GetModel").RequireAuthorization(AuthPolicies.Read)
+            .WithSummary("The serving model with every diagnostic: fit window, seasonality, AR terms, order selection, ACF, residual tests.");
+        group.MapPost("/refit", Refit).WithName("RefitModel").RequireAuthorization(AuthPolicies.Admin)
+            .WithSummary("Refits the site now from its stored data and answers the new model.");
+        return group;
+    }
+
+    public static async Task<Results<Ok<ModelResponse>, ProblemHttpResult>> GetModel(
+        string siteId, ISiteStore sites, ModelService models, IModelStore store, SiteModeling modeling, CancellationToken cancellationToken)
+    {
+        var site = await sites.GetAsync(siteId, cancellationToken);
+        if (site is null)
+        {
+            return Problems.NotFound($"There is no site '{siteId}'.");
+        }
+
+        var model = await models.GetAsync(site, cancellationToken);
+        if (model is null)
+        {
+            return Problems.NotFound($"Site '{siteId}' has no fitted model yet; it is fitted once it has {models.MinPoints(site)} grid points, or on POST .../model/refit.");
+        }
+
+        var attempt = await store.GetLastAttemptAsync(siteId, cancellationToken);
+        return TypedResults.Ok(modeling.Describe(site, model, attempt));
+    }
+
+    public static async Task<Results<Ok<ModelResponse>, ProblemHttpResult>> Refit(
+        string siteId, ISiteStore sites, ModelService models, IModelStore store, SiteModeling modeling, CancellationToken cancellationToken)
+    {
+        var site = await sites.GetAsync(siteId, cancellationToken);
+        if (site is null)
+        {
+            return Problems.NotFound($"There is no site '{siteId}'.");
+        }
+
+        var (_, outcome) = await models.RefitIfDueAsync(site, force: true, cancellationToken);
+        if (outcome is null || outcome.NotEnoughData)
+        {
+            return Problems.Conflict(outcome?.Error ?? $"Site '{siteId}' has no data to fit.");
+        }
+
+        if (!outcome.Succeeded)
+        {
+            var keeps = outcome.Model is null ? "There is no previous model." : "The previous model keeps serving.";
+            return TypedResults.Problem(statusCode: StatusCodes.Status422UnprocessableEntity, title: "Fit failed",
+                detail: $"The fit failed on this site's data: {outcome.Error} {keeps}");
+        }
+
+        var attempt = await store.GetLastAttemptAsync(siteId, cancellationToken);
+        return TypedResults.Ok(modeling.Describe(site, outcome.Model!, attempt));
+    }
+}

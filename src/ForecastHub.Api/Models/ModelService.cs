@@ -1,0 +1,151 @@
+using System.Collections.Concurrent;
+using System.Diagnostics;
+using ForecastHub.Api.Metrics;
+using ForecastHub.Core.Health;
+using ForecastHub.Storage.Models;
+using ForecastHub.Storage.Sites;
+using Microsoft.Extensions.Options;
+
+namespace ForecastHub.Api.Models;
+
+/// <summary>What a refit did: a new model, not enough data, or a failure (the previous model keeps serving).</summary>
+public sealed record RefitOutcome(ServingModel? Model, string? Error, bool NotEnoughData)
+{
+    public bool Succeeded => Model is not null && Error is null && !NotEnoughData;
+}
+
+/// <summary>
+/// The serving models: fits a site (one fit per site at a time), stores the result, and hands out
+/// the stored model, loading it from storage on first use after a restart.
+/// </summary>
+public sealed partial class ModelService(
+    IModelStore store,
+    SiteGridLoader grids,
+    SiteModeling modeling,
+    SiteVersions versions,
+    ServiceMetrics metrics,
+    IOptions<HealthOptions> healthOptions,
+    IOptions<RefitOptions> refitOptions,
+    TimeProvider clock,
+    ILogger<ModelService> logger)
+{
+    private readonly ConcurrentDictionary<string, ServingModel> loaded = new(StringComparer.Ordinal);
+    private readonly ConcurrentDictionary<string, SemaphoreSlim> siteLocks = new(StringComparer.Ordinal);
+
+    /// <summary>The model serving this site, or null before its first fit.</summary>
+    public async Task<ServingModel?> GetAsync(SiteRecord site, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        if (loaded.TryGetValue(site.Id, out var cached))
+        {
+            return cached;
+        }
+
+        var stored = await store.GetAsync(site.Id, cancellationToken);
+        if (stored is null)
+        {
+            return null;
+        }
+
+        var model = new ServingModel(stored, modeling.Read(stored.ModelJson));
+        return loaded.GetOrAdd(site.Id, model);
+    }
+
+    /// <summary>Grid points a site needs before its first fit.</summary>
+    public int MinPoints(SiteRecord site) =>
+        SiteGridLoader.IsDaily(site) ? healthOptions.Value.MinDailyPoints : healthOptions.Value.MinHourlyPoints;
+
+    /// <summary>Looks at the site and refits it when a trigger applies, or always when <paramref name="force"/> is set.</summary>
+    public async Task<(RefitReason? Reason, RefitOutcome? Outcome)> RefitIfDueAsync(SiteRecord site, bool force, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        var gate = siteLocks.GetOrAdd(site.Id, _ => new SemaphoreSlim(1, 1));
+        await gate.WaitAsync(cancellationToken);
+        try
+        {
+            var now = clock.GetUtcNow();
+            var grid = await grids.LoadAsync(site, now.AddDays(-site.Model.FitWindowDays), now, cancellationToken);
+            if (grid is null)
+            {
+                return (null, null);
+            }
+
+            var current = await GetAsync(site, cancellationToken);
+            var lastIndex = grid.LastValueIndex;
+            var facts = new RefitFacts(
+                SiteGridLoader.IsDaily(site), grid.ObservedCount, MinPoints(site), site.SettingsVersion,
+                current?.Stored.FittedAt, current?.Stored.SettingsVersion, current?.Stored.DataPoints, current?.Stored.DataEnd,
+                lastIndex >= 0 ? grid.Times[lastIndex] : null, now);
+            var reason = force ? RefitReason.Requested : RefitPolicy.Decide(facts, refitOptions.Value);
+            if (reason is null)
+            {
+                return (null, null);
+            }
+
+            if (grid.ObservedCount < MinPoints(site))
+            {
+                return (reason, new RefitOutcome(current, $"The site has {grid.ObservedCount} of the {MinPoints(site)} grid points needed for a fit.", NotEnoughData: true));
+            }
+
+            return (reason, await FitAsync(site, grid, reason.Value, now, cancellationToken));
+        }
+        finally
+        {
+            gate.Release();
+        }
+    }
+
+    private async Task<RefitOutcome> FitAsync(SiteRecord site, Core.Grid.TimeGrid grid, RefitReason reason, DateTimeOffset now, CancellationToken cancellationToken)
+    {
+        var watch = Stopwatch.StartNew();
+        FittedSiteModel fitted;
+        try
+        {
+            fitted = modeling.Fit(grid, site);
+        }
+#pragma warning disable CA1031 // A fit may fail in any way on odd data; the failure is recorded and the old model keeps serving.
+        catch (Exception error)
+#pragma warning restore CA1031
+        {
+            watch.Stop();
+            LogFitFailed(logger, error, site.Id, reason);
+            metrics.Fits.Inc(1, "failed");
+            var message = $"{error.GetType().Name}: {error.Message}";
+            await store.RecordFailureAsync(new FitAttempt(site.Id, now, Failed: true, Error: message), cancellationToken);
+            versions.ModelChanged(site.Id);
+            loaded.TryGetValue(site.Id, out var previous);
+            return new RefitOutcome(previous, message, NotEnoughData: false);
+        }
+
+        watch.Stop();
+        var stored = new StoredModel(site.Id, now, Math.Round(watch.Elapsed.TotalMilliseconds, 3), site.SettingsVersion,
+            fitted.DataEnd, grid.ObservedCount, fitted.ResidualPValue, fitted.Json);
+        if (!await store.SaveAsync(stored, cancellationToken))
+        {
+            return new RefitOutcome(null, "The site was deleted during the fit.", NotEnoughData: false);
+        }
+
+        var serving = new ServingModel(stored, fitted.Model);
+        loaded[site.Id] = serving;
+        versions.ModelChanged(site.Id);
+        metrics.Fits.Inc(1, "ok");
+        metrics.FitDuration.Observe(watch.Elapsed.TotalSeconds);
+        LogFitted(logger, site.Id, reason, stored.FitDurationMs, grid.ObservedCount);
+        return new RefitOutcome(serving, null, NotEnoughData: false);
+    }
+
+    /// <summary>Drops the in-memory copy of a deleted site's model.</summary>
+    public void Forget(string siteId) => loaded.TryRemove(siteId, out _);
+
+    [LoggerMessage(Level = LogLevel.Warning, Message = "Fit of site {SiteId} ({Reason}) failed; the previous model keeps serving")]
+    private static partial void LogFitFailed(ILogger logger, Exception error, string siteId, RefitReason reason);
+
+    [LoggerMessage(Level = LogLevel.Information, Message = "Fitted site {SiteId} ({Reason}) in {DurationMs} ms on {Points} grid points")]
+    private static partial void LogFitted(ILogger logger, string siteId, RefitReason reason, double durationMs, int points);
+}
+
+/// <summary>A stored model with its parsed form, ready to forecast.</summary>
+public sealed record ServingModel(StoredModel Stored, Core.Modeling.SiteModel Model);
+
+/// <summary>What the modeling pipeline produced for the store.</summary>
+public sealed record FittedSiteModel(Core.Modeling.SiteModel Model, string Json, double? ResidualPValue, DateTimeOffset DataEnd);

@@ -1,0 +1,41 @@
+namespace ForecastHub.Api.Models;
+
+/// <summary>Configuration section <c>Refit</c>: when the background service refits a site.</summary>
+public sealed class RefitOptions
+{
+    public const string SectionName = "Refit";
+
+    /// <summary>Fits running at once; each fit is single-threaded work.</summary>
+    public int MaxConcurrency { get; set; } = Math.Max(1, Environment.ProcessorCount);
+
+    /// <summary>Refit an hourly site after this many new grid points (one day).</summary>
+    public int NewPointsHourly { get; set; } = 24;
+
+    /// <summary>Refit a daily site after this many new grid points.</summary>
+    public int NewPointsDaily { get; set; } = 3;
+
+    /// <summary>Refit a model older than this once any new grid point has arrived.</summary>
+    public TimeSpan ModelMaxAge { get; set; } = TimeSpan.FromDays(3);
+
+    /// <summary>How often every site is checked (model age, day-ahead archive, live scores).</summary>
+    public TimeSpan SweepInterval { get; set; } = TimeSpan.FromHours(1);
+
+    /// <summary>Throws naming the first setting out of range; called at start.</summary>
+    public void Validate()
+    {
+        if (MaxConcurrency is < 1 or > 64)
+        {
+            throw new ArgumentException("Refit:MaxConcurrency must be between 1 and 64.", nameof(MaxConcurrency));
+        }
+
+        if (NewPointsHourly < 1 || NewPointsDaily < 1)
+        {
+            throw new ArgumentException("Refit:NewPointsHourly and Refit:NewPointsDaily must be at least 1.", nameof(NewPointsHourly));
+        }
+
+        if (ModelMaxAge <= TimeSpan.Zero || SweepInterval <= TimeSpan.Zero)
+        {
+            throw new ArgumentException("Refit:ModelMaxAge and Refit:SweepInterval must be positive.", nameof(ModelMaxAge));
+        }
+    }
+}

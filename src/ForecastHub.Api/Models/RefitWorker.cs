@@ -1,0 +1,132 @@
+using ForecastHub.Storage.Sites;
+using Microsoft.Extensions.Options;
+
+namespace ForecastHub.Api.Models;
+
+/// <summary>
+/// The background refit service: <see cref="RefitOptions.MaxConcurrency"/> workers take sites from
+/// the <see cref="RefitQueue"/> and refit those a trigger applies to; a sweep every
+/// <see cref="RefitOptions.SweepInterval"/> queues every site (model age) and runs the daily
+/// archive-and-score step. Nothing here throws out of the loop: a failing site is logged and skipped.
+/// </summary>
+public sealed partial class RefitWorker(
+    RefitQueue queue,
+    ISiteStore sites,
+    ModelService models,
+    IEnumerable<ISweepStep> sweepSteps,
+    IOptions<RefitOptions> options,
+    TimeProvider clock,
+    ILogger<RefitWorker> logger) : BackgroundService
+{
+    private const int PageSize = 500;
+
+    protected override async Task ExecuteAsync(CancellationToken stoppingToken)
+    {
+        // The stores answer synchronously; yielding first keeps host start-up from waiting on the sweep.
+        await Task.Yield();
+
+        // Sites whose data arrived while the service was down are looked at once at start.
+        var startSweep = SweepAsync(stoppingToken);
+        var workers = Enumerable.Range(0, options.Value.MaxConcurrency).Select(_ => Task.Run(() => WorkAsync(stoppingToken), stoppingToken));
+        var sweeper = Task.Run(() => SweepLoopAsync(stoppingToken), stoppingToken);
+        try
+        {
+            await Task.WhenAll([startSweep, sweeper, .. workers]);
+        }
+        catch (OperationCanceledException) when (stoppingToken.IsCancellationRequested)
+        {
+            // Shutting down.
+        }
+    }
+
+    private async Task WorkAsync(CancellationToken stoppingToken)
+    {
+        await foreach (var request in queue.Reader.ReadAllAsync(stoppingToken))
+        {
+            var taken = queue.Take(request);
+            try
+            {
+                var site = await sites.GetAsync(taken.SiteId, stoppingToken);
+                if (site is not null)
+                {
+                    await models.RefitIfDueAsync(site, taken.Force, stoppingToken);
+                }
+            }
+            catch (OperationCanceledException) when (stoppingToken.IsCancellationRequested)
+            {
+                return;
+            }
+#pragma warning disable CA1031 // One site's trouble (say a storage hiccup) must not stop the workers.
+            catch (Exception error)
+#pragma warning restore CA1031
+            {
+                LogSiteFailed(logger, error, taken.SiteId);
+            }
+        }
+    }
+
+    private async Task SweepLoopAsync(CancellationToken stoppingToken)
+    {
+        using var timer = new PeriodicTimer(options.Value.SweepInterval, clock);
+        while (await timer.WaitForNextTickAsync(stoppingToken))
+        {
+            await SweepAsync(stoppingToken);
+        }
+    }
+
+    /// <summary>Queues every site and runs the sweep steps on each; used by the timer and at start.</summary>
+    public async Task SweepAsync(CancellationToken cancellationToken)
+    {
+        string? after = null;
+        while (!cancellationToken.IsCancellationRequested)
+        {
+            IReadOnlyList<SiteRecord> page;
+            try
+            {
+                page = await sites.ListAsync(after, PageSize, cancellationToken);
+            }
+            catch (OperationCanceledException)
+            {
+                return;
+            }
+
+            foreach (var site in page)
+            {
+                queue.Enqueue(site.Id);
+                foreach (var step in sweepSteps)
+                {
+                    try
+                    {
+                        await step.RunAsync(site, cancellationToken);
+                    }
+                    catch (OperationCanceledException) when (cancellationToken.IsCancellationRequested)
+                    {
+                        return;
+                    }
+#pragma warning disable CA1031 // A sweep step failing for one site must not stop the sweep.
+                    catch (Exception error)
+#pragma warning restore CA1031
+                    {
+                        LogSiteFailed(logger, error, site.Id);
+                    }
+                }
+            }
+
+            if (page.Count < PageSize)
+            {
+                return;
+            }
+
+            after = page[^1].Id;
+        }
+    }
+
+    [LoggerMessage(Level = LogLevel.Error, Message = "Background work for site {SiteId} failed")]
+    private static partial void LogSiteFailed(ILogger logger, Exception error, string siteId);
+}
+
+/// <summary>Work the periodic sweep does for each site besides queueing it (archiving and scoring day-ahead forecasts).</summary>
+public interface ISweepStep
+{
+    Task RunAsync(SiteRecord site, CancellationToken cancellationToken);
+}

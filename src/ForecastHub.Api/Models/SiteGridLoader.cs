@@ -1,0 +1,97 @@
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Quality;
+using ForecastHub.Storage.Readings;
+using ForecastHub.Storage.Sites;
+
+namespace ForecastHub.Api.Models;
+
+/// <summary>Reads a site's stored readings and turns them into its regular grid.</summary>
+public sealed class SiteGridLoader(IReadingStore readings)
+{
+    private const int PageSize = 20_000;
+
+    /// <summary>
+    /// The grid over [<paramref name="from"/>, <paramref name="to"/>): steps after the newest reading
+    /// up to <paramref name="to"/> are present and missing, so a caller sees a missing tail.
+    /// Null when the site does not exist.
+    /// </summary>
+    public async Task<TimeGrid?> LoadAsync(SiteRecord site, DateTimeOffset from, DateTimeOffset to, CancellationToken cancellationToken)
+    {
+        var all = await ReadAsync(site, from, to, cancellationToken);
+        return all is null ? null : Build(site, all, from, to);
+    }
+
+    /// <summary>The grid of already-read readings over [<paramref name="from"/>, <paramref name="to"/>).</summary>
+    public static TimeGrid Build(SiteRecord site, IReadOnlyList<GridReading> readings, DateTimeOffset from, DateTimeOffset to)
+    {
+        var gridFrom = AlignDown(site, from);
+        return GridBuilder.Build(readings, Options(site), gridFrom, to > gridFrom ? to : null);
+    }
+
+    /// <summary>The site's readings in [<paramref name="from"/>, <paramref name="to"/>) as the grid reads them; null when the site does not exist.</summary>
+    public async Task<IReadOnlyList<GridReading>?> ReadAsync(SiteRecord site, DateTimeOffset from, DateTimeOffset to, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        var all = new List<GridReading>();
+        long? after = null;
+        while (true)
+        {
+            var page = await readings.ReadAsync(site.Id, from.ToUnixTimeMilliseconds(), to.ToUnixTimeMilliseconds(), after, PageSize, cancellationToken);
+            if (page is null)
+            {
+                return null;
+            }
+
+            all.AddRange(page.Select(r => new GridReading(r.Time, r.ValueC, r.Flags != QualityFlags.None)));
+            if (page.Count < PageSize)
+            {
+                break;
+            }
+
+            after = page[^1].TimeMs;
+        }
+
+        return all;
+    }
+
+    public static GridOptions Options(SiteRecord site)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        return new GridOptions(
+            IsDaily(site) ? GridCadence.Daily : GridCadence.Hourly,
+            site.TimeZone,
+            site.DailyStatistic switch
+            {
+                "min" => DailyStatistic.Min,
+                "max" => DailyStatistic.Max,
+                _ => DailyStatistic.Mean,
+            });
+    }
+
+    public static bool IsDaily(SiteRecord site) => string.Equals(site?.Cadence, "daily", StringComparison.Ordinal);
+
+    /// <summary>The start of the grid step holding <paramref name="time"/>: its UTC hour (hourly) or local midnight (daily).</summary>
+    public static DateTimeOffset AlignDown(SiteRecord site, DateTimeOffset time)
+    {
+        if (!IsDaily(site))
+        {
+            var utc = time.ToUniversalTime();
+            return new DateTimeOffset(utc.Year, utc.Month, utc.Day, utc.Hour, 0, 0, TimeSpan.Zero);
+        }
+
+        var zone = GridBuilder.FindZone(site.TimeZone);
+        return GridBuilder.LocalDayStart(GridBuilder.LocalDate(time, zone), zone);
+    }
+
+    /// <summary>The start of the step after the one starting at <paramref name="stepStart"/>.</summary>
+    public static DateTimeOffset NextStep(SiteRecord site, DateTimeOffset stepStart)
+    {
+        if (!IsDaily(site))
+        {
+            return stepStart.AddHours(1);
+        }
+
+        var zone = GridBuilder.FindZone(site.TimeZone);
+        return GridBuilder.LocalDayStart(GridBuilder.LocalDate(stepStart, zone).AddDays(1), zone);
+    }
+}

@@ -1,0 +1,154 @@
+using System.Collections.Concurrent;
+using System.Text.Json;
+using ForecastHub.Api.Forecasts;
+using ForecastHub.Api.Models;
+using ForecastHub.Core.Grid;
+using ForecastHub.Storage.Sites;
+using ForecastHub.Storage.Verification;
+using Microsoft.Extensions.Options;
+
+namespace ForecastHub.Api.Verification;
+
+/// <summary>The forecast of one archived day: levels as fractions, and the steps that fall on the day.</summary>
+public sealed record ArchivedDay(IReadOnlyList<double> Levels, IReadOnlyList<ArchivedStep> Steps);
+
+public sealed record ArchivedStep(DateTimeOffset Time, double Mean, double Sd, IReadOnlyList<double> Lower, IReadOnlyList<double> Upper);
+
+/// <summary>
+/// Live verification, run by the sweep for each site: once per local day the forecast for the next
+/// local day is issued and archived (the first one issued for a day is kept), and every archived day
+/// that has ended is scored against what was observed, once enough of it was observed.
+/// </summary>
+public sealed class DayAheadArchiveStep(
+    ModelService models,
+    ForecastService forecasts,
+    IForecastArchive archive,
+    SiteGridLoader grids,
+    SiteModeling modeling,
+    SiteVersions versions,
+    IOptions<LiveScoreOptions> options,
+    TimeProvider clock) : ISweepStep
+{
+    /// <summary>An archived day still not observed enough this long after it ended is scored empty and left alone.</summary>
+    public static readonly TimeSpan GiveUpAfter = TimeSpan.FromDays(3);
+
+    private static readonly double[] Levels = [0.80, 0.95];
+    private readonly ConcurrentDictionary<string, DateOnly> archivedThrough = new(StringComparer.Ordinal);
+
+    public async Task RunAsync(SiteRecord site, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        var model = await models.GetAsync(site, cancellationToken);
+        if (model is null)
+        {
+            return;
+        }
+
+        await ArchiveTomorrowAsync(site, cancellationToken);
+        await ScoreEndedDaysAsync(site, model, cancellationToken);
+    }
+
+    private async Task ArchiveTomorrowAsync(SiteRecord site, CancellationToken cancellationToken)
+    {
+        var zone = GridBuilder.FindZone(site.TimeZone);
+        var now = clock.GetUtcNow();
+        var target = GridBuilder.LocalDate(now, zone).AddDays(1);
+        if (archivedThrough.TryGetValue(site.Id, out var done) && done >= target)
+        {
+            return;
+        }
+
+        if (await archive.HasArchivedAsync(site.Id, target, cancellationToken))
+        {
+            archivedThrough[site.Id] = target;
+            return;
+        }
+
+        var dayStart = GridBuilder.LocalDayStart(target, zone);
+        var dayEnd = GridBuilder.LocalDayStart(target.AddDays(1), zone);
+        var isDaily = SiteGridLoader.IsDaily(site);
+        var current = SiteGridLoader.AlignDown(site, now);
+        var steps = isDaily ? 2 : (int)Math.Ceiling((dayEnd - current).TotalHours);
+        var (query, _, _) = ForecastQuery.Parse(isDaily, steps.ToString(System.Globalization.CultureInfo.InvariantCulture), "80,95", null, null);
+        var (forecast, _) = await forecasts.GetAsync(site, query!, cancellationToken);
+        if (forecast is null)
+        {
+            return;
+        }
+
+        var daySteps = forecast.Steps.Where(s => s.Time >= dayStart && s.Time < dayEnd)
+            .Select(s => new ArchivedStep(s.Time, s.Mean, s.Sd,
+                [.. s.Intervals.Select(i => i.Lower)], [.. s.Intervals.Select(i => i.Upper)]))
+            .ToList();
+        if (daySteps.Count == 0)
+        {
+            return;
+        }
+
+        var json = JsonSerializer.Serialize(new ArchivedDay(Levels, daySteps), LiveScoreOptions.Json);
+        await archive.ArchiveAsync(new ArchivedForecast(site.Id, target, forecast.IssuedAt, forecast.Origin, forecast.Model.FittedAt, json), cancellationToken);
+        archivedThrough[site.Id] = target;
+    }
+
+    private async Task ScoreEndedDaysAsync(SiteRecord site, ServingModel model, CancellationToken cancellationToken)
+    {
+        var zone = GridBuilder.FindZone(site.TimeZone);
+        var now = clock.GetUtcNow();
+        foreach (var archived in await archive.ListUnscoredAsync(site.Id, 31, cancellationToken))
+        {
+            var dayStart = GridBuilder.LocalDayStart(archived.TargetDate, zone);
+            var dayEnd = GridBuilder.LocalDayStart(archived.TargetDate.AddDays(1), zone);
+            if (now < dayEnd)
+            {
+                break;
+            }
+
+            var day = JsonSerializer.Deserialize<ArchivedDay>(archived.ForecastJson, LiveScoreOptions.Json)!;
+            var score = await ScoreAsync(site, model, archived, day, dayStart, dayEnd, cancellationToken);
+            var observedShare = day.Steps.Count == 0 ? 0 : (double)score.Points.Count / day.Steps.Count;
+            if (observedShare < options.Value.MinObservedShare && now - dayEnd < GiveUpAfter)
+            {
+                continue;
+            }
+
+            if (observedShare < options.Value.MinObservedShare)
+            {
+                score = score with { Points = [] };
+            }
+
+            await archive.SaveScoreAsync(new LiveScore(site.Id, archived.TargetDate, now, JsonSerializer.Serialize(score, LiveScoreOptions.Json)), cancellationToken);
+            versions.ModelChanged(site.Id);
+        }
+    }
+
+    private async Task<DayScore> ScoreAsync(SiteRecord site, ServingModel model, ArchivedForecast archived, ArchivedDay day,
+        DateTimeOffset dayStart, DateTimeOffset dayEnd, CancellationToken cancellationToken)
+    {
+        // Persistence needs the day before as well: the same hour yesterday, or yesterday's value.
+        var grid = await grids.LoadAsync(site, dayStart.AddDays(-1), dayEnd, cancellationToken);
+        var byTime = new Dictionary<DateTimeOffset, double>();
+        if (grid is not null)
+        {
+            for (var i = 0; i < grid.Count; i++)
+            {
+                // Only observed values score a forecast; interpolated ones are the service's own guess.
+                if (!double.IsNaN(grid.Values[i]) && !grid.Interpolated[i])
+                {
+                    byTime[grid.Times[i]] = grid.Values[i];
+                }
+            }
+        }
+
+        var observedSteps = day.Steps.Where(s => byTime.ContainsKey(s.Time)).ToList();
+        var climatology = modeling.Climatology(model.Model, [.. observedSteps.Select(s => s.Time)]);
+        var isDaily = SiteGridLoader.IsDaily(site);
+        var zone = GridBuilder.FindZone(site.TimeZone);
+        var points = observedSteps.Select((s, i) =>
+        {
+            var yesterday = isDaily ? GridBuilder.LocalDayStart(GridBuilder.LocalDate(s.Time, zone).AddDays(-1), zone) : s.Time.AddHours(-24);
+            var persistence = byTime.TryGetValue(yesterday, out var p) ? p : double.NaN;
+            return new ScoredPoint(s.Time, byTime[s.Time], s.Mean, s.Sd, s.Lower, s.Upper, persistence, climatology[i]);
+        }).ToList();
+        return new DayScore(archived.TargetDate, archived.IssuedAt, day.Levels, points);
+    }
+}

@@ -1,0 +1,49 @@
+using ForecastHub.Core.Verification;
+
+namespace ForecastHub.Api.Verification;
+
+/// <summary>GET .../verification: a rolling-origin backtest of the site's history and the live scores of archived day-ahead forecasts.</summary>
+public sealed record VerificationResponse(string SiteId, DateTimeOffset EvaluatedAt, BacktestResponse? Backtest, LiveScoresResponse Live);
+
+/// <summary>
+/// The backtest: refit every <c>RefitEveryDays</c> over the last <c>Days</c> of the grid, forecast
+/// the next day from each daily origin; scores per horizon (steps ahead). Null when the history is
+/// too short for one origin.
+/// </summary>
+public sealed record BacktestResponse(
+    DateTimeOffset From,
+    DateTimeOffset To,
+    int Origins,
+    int RefitEveryDays,
+    IReadOnlyList<ScoresResponse> Horizons,
+    ScoresResponse Pooled);
+
+/// <summary>Scores as in DESIGN section 4. Bias is mean(forecast - observed); levels are percentages.</summary>
+public sealed record ScoresResponse(
+    int? Horizon,
+    int Count,
+    double Mae,
+    double Rmse,
+    double Bias,
+    double PersistenceMae,
+    double ClimatologyMae,
+    double SkillVsPersistence,
+    double SkillVsClimatology,
+    double Crps,
+    IReadOnlyList<IntervalScoresResponse> Intervals)
+{
+    public static ScoresResponse From(HorizonScores scores, int? horizon)
+    {
+        ArgumentNullException.ThrowIfNull(scores);
+        return new(horizon, scores.Count, scores.Mae, scores.Rmse, scores.Bias, scores.PersistenceMae, scores.ClimatologyMae,
+            scores.SkillVsPersistence, scores.SkillVsClimatology, scores.Crps,
+            [.. scores.Intervals.Select(i => new IntervalScoresResponse(Math.Round(i.Level * 100, 6), i.Coverage, i.MeanWidth, i.Winkler, i.Pinball))]);
+    }
+}
+
+public sealed record IntervalScoresResponse(double Level, double Coverage, double MeanWidth, double IntervalScore, double Pinball);
+
+/// <summary>Live scores over the last <c>Days</c> scored days (up to <see cref="VerificationService.MaxLiveDays"/>), pooled and per day.</summary>
+public sealed record LiveScoresResponse(int Days, ScoresResponse? Pooled, IReadOnlyList<LiveDayResponse> Daily);
+
+public sealed record LiveDayResponse(DateOnly Date, DateTimeOffset IssuedAt, int Points, double? Mae, double? Bias);

@@ -1,0 +1,65 @@
+using System.Collections.Concurrent;
+using System.Text.Json;
+using ForecastHub.Api.Models;
+using ForecastHub.Storage.Sites;
+using ForecastHub.Storage.Verification;
+
+namespace ForecastHub.Api.Verification;
+
+/// <summary>
+/// Verification of a site. The backtest is bounded (the last <see cref="HourlyBacktestDays"/> or
+/// <see cref="DailyBacktestDays"/> of the grid) and cached per site and serving model, since it
+/// refits several times; live scores are read from the archive on each request.
+/// </summary>
+public sealed class VerificationService(
+    ModelService models,
+    SiteGridLoader grids,
+    SiteModeling modeling,
+    IForecastArchive archive,
+    TimeProvider clock)
+{
+    public const int HourlyBacktestDays = 60;
+    public const int DailyBacktestDays = 730;
+    public const int RefitEveryDays = 7;
+    public const int MaxLiveDays = 90;
+
+    private readonly ConcurrentDictionary<string, (DateTimeOffset FittedAt, BacktestResponse? Backtest)> backtests = new(StringComparer.Ordinal);
+
+    /// <summary>Null when the site has no model yet.</summary>
+    public async Task<VerificationResponse?> GetAsync(SiteRecord site, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        var model = await models.GetAsync(site, cancellationToken);
+        if (model is null)
+        {
+            return null;
+        }
+
+        var now = clock.GetUtcNow();
+        BacktestResponse? backtest;
+        if (backtests.TryGetValue(site.Id, out var cached) && cached.FittedAt == model.Stored.FittedAt)
+        {
+            backtest = cached.Backtest;
+        }
+        else
+        {
+            var days = SiteGridLoader.IsDaily(site) ? DailyBacktestDays : HourlyBacktestDays;
+            var grid = await grids.LoadAsync(site, model.Stored.DataEnd.AddDays(-days), model.Stored.DataEnd.AddTicks(1), cancellationToken);
+            backtest = grid is null ? null : modeling.Backtest(site, grid, RefitEveryDays);
+            backtests[site.Id] = (model.Stored.FittedAt, backtest);
+        }
+
+        var from = DateOnly.FromDateTime(now.UtcDateTime).AddDays(-MaxLiveDays);
+        var stored = await archive.ListScoresAsync(site.Id, from, MaxLiveDays, cancellationToken);
+        var days = stored.Select(s => JsonSerializer.Deserialize<DayScore>(s.ScoresJson, LiveScoreOptions.Json)!).ToList();
+        var scored = days.Where(d => d.Points.Count > 0).ToList();
+        var pooled = DayScore.Pool(scored);
+        var daily = days.Select(d =>
+        {
+            var one = DayScore.Pool([d]);
+            return new LiveDayResponse(d.Date, d.IssuedAt, d.Points.Count, one?.Mae, one?.Bias);
+        }).ToList();
+        var live = new LiveScoresResponse(scored.Count, pooled is null ? null : ScoresResponse.From(pooled, null), daily);
+        return new VerificationResponse(site.Id, now, backtest, live);
+    }
+}
