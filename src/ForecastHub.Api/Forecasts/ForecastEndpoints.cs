@@ -32,17 +32,17 @@ public static class ForecastEndpoints
         var site = await sites.GetAsync(siteId, cancellationToken);
         if (site is null)
         {
-            return Problems.NotFound($"There is no site '{siteId}'.");
+            return ApiProblems.NotFound($"There is no site '{siteId}'.");
         }
 
         var (query, field, error) = ForecastQuery.Parse(SiteGridLoader.IsDaily(site), steps, levels, below, above);
         if (query is null)
         {
-            return Problems.BadRequest(field!, error!);
+            return ApiProblems.BadRequest(field!, error!);
         }
 
         var (forecast, unavailable) = await forecasts.GetAsync(site, query, cancellationToken);
-        return forecast is null ? Problems.Conflict(unavailable!.Detail) : TypedResults.Ok(forecast);
+        return forecast is null ? ApiProblems.Conflict(unavailable!.Detail) : TypedResults.Ok(forecast);
     }
 
     public static async Task<Results<ContentHttpResult, ProblemHttpResult>> GetForecastChart(
@@ -54,20 +54,20 @@ public static class ForecastEndpoints
         var site = await sites.GetAsync(siteId, cancellationToken);
         if (site is null)
         {
-            return Problems.NotFound($"There is no site '{siteId}'.");
+            return ApiProblems.NotFound($"There is no site '{siteId}'.");
         }
 
         var isDaily = SiteGridLoader.IsDaily(site);
         var (query, field, error) = ForecastQuery.Parse(isDaily, steps, "80,95", null, null);
         if (query is null)
         {
-            return Problems.BadRequest(field!, error!);
+            return ApiProblems.BadRequest(field!, error!);
         }
 
         var (forecast, unavailable) = await forecasts.GetAsync(site, query, cancellationToken);
         if (forecast is null)
         {
-            return Problems.Conflict(unavailable!.Detail);
+            return ApiProblems.Conflict(unavailable!.Detail);
         }
 
         var now = clock.GetUtcNow();

@@ -24,7 +24,7 @@ public static class ModelHealthEndpoints
     {
         var assessment = await health.EvaluateAsync(siteId, cancellationToken);
         return assessment is null
-            ? Problems.NotFound($"There is no site '{siteId}'.")
+            ? ApiProblems.NotFound($"There is no site '{siteId}'.")
             : TypedResults.Ok(SiteHealthResponse.From(assessment));
     }
 

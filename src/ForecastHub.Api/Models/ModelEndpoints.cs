@@ -26,13 +26,13 @@ public static class ModelEndpoints
         var site = await sites.GetAsync(siteId, cancellationToken);
         if (site is null)
         {
-            return Problems.NotFound($"There is no site '{siteId}'.");
+            return ApiProblems.NotFound($"There is no site '{siteId}'.");
         }
 
         var model = await models.GetAsync(site, cancellationToken);
         if (model is null)
         {
-            return Problems.NotFound($"Site '{siteId}' has no fitted model yet; it is fitted once it has {models.MinPoints(site)} grid points, or on POST .../model/refit.");
+            return ApiProblems.NotFound($"Site '{siteId}' has no fitted model yet; it is fitted once it has {models.MinPoints(site)} grid points, or on POST .../model/refit.");
         }
 
         var attempt = await store.GetLastAttemptAsync(siteId, cancellationToken);
@@ -45,13 +45,13 @@ public static class ModelEndpoints
         var site = await sites.GetAsync(siteId, cancellationToken);
         if (site is null)
         {
-            return Problems.NotFound($"There is no site '{siteId}'.");
+            return ApiProblems.NotFound($"There is no site '{siteId}'.");
         }
 
         var (_, outcome) = await models.RefitIfDueAsync(site, force: true, cancellationToken);
         if (outcome is null || outcome.NotEnoughData)
         {
-            return Problems.Conflict(outcome?.Error ?? $"Site '{siteId}' has no data to fit.");
+            return ApiProblems.Conflict(outcome?.Error ?? $"Site '{siteId}' has no data to fit.");
         }
 
         if (!outcome.Succeeded)

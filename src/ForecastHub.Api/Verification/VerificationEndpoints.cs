@@ -22,12 +22,12 @@ public static class VerificationEndpoints
         var site = await sites.GetAsync(siteId, cancellationToken);
         if (site is null)
         {
-            return Problems.NotFound($"There is no site '{siteId}'.");
+            return ApiProblems.NotFound($"There is no site '{siteId}'.");
         }
 
         var result = await verification.GetAsync(site, cancellationToken);
         return result is null
-            ? Problems.Conflict($"Site '{siteId}' has no fitted model yet, so there is nothing to verify.")
+            ? ApiProblems.Conflict($"Site '{siteId}' has no fitted model yet, so there is nothing to verify.")
             : TypedResults.Ok(result);
     }
 }

@@ -51,10 +51,10 @@ public sealed class VerificationService(
 
         var from = DateOnly.FromDateTime(now.UtcDateTime).AddDays(-MaxLiveDays);
         var stored = await archive.ListScoresAsync(site.Id, from, MaxLiveDays, cancellationToken);
-        var days = stored.Select(s => JsonSerializer.Deserialize<DayScore>(s.ScoresJson, LiveScoreOptions.Json)!).ToList();
-        var scored = days.Where(d => d.Points.Count > 0).ToList();
+        var scoredDays = stored.Select(s => JsonSerializer.Deserialize<DayScore>(s.ScoresJson, LiveScoreOptions.Json)!).ToList();
+        var scored = scoredDays.Where(d => d.Points.Count > 0).ToList();
         var pooled = DayScore.Pool(scored);
-        var daily = days.Select(d =>
+        var daily = scoredDays.Select(d =>
         {
             var one = DayScore.Pool([d]);
             return new LiveDayResponse(d.Date, d.IssuedAt, d.Points.Count, one?.Mae, one?.Bias);
