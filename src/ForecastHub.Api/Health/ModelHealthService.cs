@@ -1,6 +1,7 @@
 using System.Text.Json;
 using ForecastHub.Api.Models;
 using ForecastHub.Api.Verification;
+using ForecastHub.Core.Grid;
 using ForecastHub.Core.Health;
 using ForecastHub.Core.Quality;
 using ForecastHub.Core.Verification;
@@ -18,11 +19,13 @@ public sealed class ModelHealthService(
     IModelStore models,
     IReadingSummaryStore readingSummaries,
     IForecastArchive archive,
-    SiteGridLoader grids,
     IOptions<HealthOptions> options,
     IOptions<LiveScoreOptions> liveOptions,
     TimeProvider clock)
 {
+    private const long HourMs = 3_600_000;
+    private const long DayMs = 24 * HourMs;
+
     public async Task<HealthAssessment?> EvaluateAsync(string siteId, CancellationToken cancellationToken)
     {
         var site = await sites.GetAsync(siteId, cancellationToken);
@@ -38,12 +41,15 @@ public sealed class ModelHealthService(
         var attempt = await models.GetLastAttemptAsync(site.Id, cancellationToken);
         var isDaily = SiteGridLoader.IsDaily(site);
 
-        // Grid points matter only before the first fit (warming-up), so only then is the history read.
+        // Grid points matter only before the first fit (warming-up); they are counted in the index, not read.
         var gridPoints = 0;
         if (model is null)
         {
-            var grid = await grids.LoadAsync(site, now.AddDays(-site.Model.FitWindowDays), now, cancellationToken);
-            gridPoints = grid?.ObservedCount ?? 0;
+            var from = now.AddDays(-site.Model.FitWindowDays);
+            gridPoints = isDaily
+                ? await readingSummaries.CountStepsWithDataAsync(site.Id, from, DayMs,
+                    (long)GridBuilder.FindZone(site.TimeZone).BaseUtcOffset.TotalMilliseconds, cancellationToken)
+                : await readingSummaries.CountStepsWithDataAsync(site.Id, from, HourMs, 0, cancellationToken);
         }
 
         var live = await LiveWindowAsync(site.Id, now, cancellationToken);

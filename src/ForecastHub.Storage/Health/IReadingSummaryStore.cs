@@ -14,4 +14,11 @@ public interface IReadingSummaryStore
 {
     /// <summary>Null when the site does not exist; an empty summary when it has no readings.</summary>
     Task<ReadingSummary?> GetAsync(string siteId, CancellationToken cancellationToken = default);
+
+    /// <summary>
+    /// Grid steps since <paramref name="from"/> that hold at least one unflagged reading, counted
+    /// in the index: steps of <paramref name="stepMs"/> shifted by <paramref name="offsetMs"/>
+    /// (hourly: 3,600,000 and 0; daily: a day and the zone's standard offset).
+    /// </summary>
+    Task<int> CountStepsWithDataAsync(string siteId, DateTimeOffset from, long stepMs, long offsetMs, CancellationToken cancellationToken = default);
 }

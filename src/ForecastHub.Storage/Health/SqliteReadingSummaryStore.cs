@@ -31,4 +31,14 @@ public sealed class SqliteReadingSummaryStore(SqliteDatabase database) : IReadin
             countReader.Read();
             return new ReadingSummary(SqliteExtensions.FromUnixMs(lastMs), lastFlags, countReader.GetInt32(0), countReader.GetInt32(1));
         }));
+
+    public Task<int> CountStepsWithDataAsync(string siteId, DateTimeOffset from, long stepMs, long offsetMs, CancellationToken cancellationToken = default) =>
+        Task.FromResult(database.Read((connection, transaction) =>
+        {
+            using var count = connection.Command(transaction, """
+                SELECT count(DISTINCT (r.time_ms + $offset) / $step) FROM readings r JOIN sites s ON s.key = r.site_key
+                WHERE s.id = $id AND r.flags = 0 AND r.time_ms >= $from;
+                """).With("$id", siteId).With("$from", from.ToUnixTimeMilliseconds()).With("$step", stepMs).With("$offset", offsetMs);
+            return Convert.ToInt32(count.ExecuteScalar(), System.Globalization.CultureInfo.InvariantCulture);
+        }));
 }
