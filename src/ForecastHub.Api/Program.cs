@@ -25,6 +25,7 @@ builder.Services.AddForecastHubRequestLimits();
 builder.Services.AddForecastHubRateLimits();
 builder.Services.AddForecastHubOpenApi();
 builder.AddDemoMode(demoFlag);
+builder.Services.AddForecastHubModels();
 
 var app = builder.Build();
 
@@ -36,6 +37,7 @@ var api = app.MapGroup("/api/v1");
 api.MapSites();
 api.MapKeys();
 api.MapObservations();
+app.MapForecastHubModels(api);
 
 app.Run();
 return 0;

@@ -13,7 +13,8 @@ public sealed record ForecastResponse(
     ForecastDataGap? MissingRecentData,
     IReadOnlyList<string> Cautions);
 
-public sealed record ForecastModelUsed(int Order, string Method, DateTimeOffset FittedAt);
+/// <summary>The model used; <c>intervalMethod</c> is what the intervals actually came from (gaussian when no calibration exists).</summary>
+public sealed record ForecastModelUsed(int Order, string Method, DateTimeOffset FittedAt, string IntervalMethod);
 
 public sealed record ForecastStep(DateTimeOffset Time, double Mean, double Sd, IReadOnlyList<ForecastInterval> Intervals);
 

@@ -3,7 +3,6 @@ using System.Diagnostics;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Api.Models;
-using ForecastHub.Core.Grid;
 using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Api.Forecasts;
@@ -87,31 +86,30 @@ public sealed class ForecastService(
             return null;
         }
 
+        // The grid runs up to now, so steps with no data at its end are seen: the core forecasts from
+        // the last value, counts horizons from there (wider intervals) and reports the missing steps.
         var grid = SiteGridLoader.Build(site, readings, from, to);
-        var last = grid.LastValueIndex;
-        if (last < 0)
+        if (grid.LastValueIndex < 0)
         {
             return null;
         }
 
-        // Steps between the newest data and now are forecast too (and not shown), so intervals widen with the gap.
-        var missing = grid.Count - 1 - last;
-        var recent = SiteGridLoader.Build(site, readings, from, SiteGridLoader.NextStep(site, grid.Times[last]));
-        var path = modeling.Forecast(model.Model, recent, query.Steps + missing, query.Levels, query.Below, query.Above, MonteCarloSeed);
+        var path = modeling.Forecast(model.Model, grid, query.Steps, query.Levels, query.Below, query.Above, MonteCarloSeed);
         var assessment = await health.EvaluateAsync(site, cancellationToken);
-        var gap = missing == 0
+        var unit = isDaily ? "day" : "hour";
+        var gap = path.MissingSteps == 0
             ? null
-            : new ForecastDataGap(grid.Times[last], missing,
-                $"The newest {missing} {(isDaily ? "day" : "hour")}{(missing == 1 ? "" : "s")} before now have no data; the forecast starts from the data of {grid.Times[last]:O} and its intervals are wider for it.");
-        var info = modeling.Describe(model.Model);
+            : new ForecastDataGap(path.LastData, path.MissingSteps,
+                $"The newest {path.MissingSteps} {unit}{(path.MissingSteps == 1 ? "" : "s")} before now have no data; the forecast starts from the data of {path.LastData:O} and its intervals are wider for it.");
+        var (order, method) = modeling.Describe(model.Model);
         return new ForecastResponse(
             site.Id,
             now,
-            grid.Times[last],
+            path.LastData,
             "C",
             assessment.State,
-            new ForecastModelUsed(info.Order, info.Method, model.Stored.FittedAt),
-            [.. path.Steps.Skip(missing)],
+            new ForecastModelUsed(order, method, model.Stored.FittedAt, path.IntervalMethod),
+            path.Steps,
             path.NextDay,
             gap,
             ForecastCautions.All);

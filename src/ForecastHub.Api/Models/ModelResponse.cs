@@ -14,6 +14,7 @@ public sealed record ModelResponse(
     IReadOnlyList<LagValueResponse> Acf,
     ResidualsResponse Residuals,
     IntervalsResponse Intervals,
+    IReadOnlyList<string> Notes,
     LastFitAttempt? LastAttempt);
 
 public sealed record ModelSettingsUsed(string Seasonality, string Method, string OrderPolicy, int MaxOrder, int FitWindowDays, string IntervalMethod);
@@ -48,7 +49,7 @@ public sealed record OrderSelectionResponse(
     string Policy,
     int MaxOrder,
     double Band,
-    int? PacfCutoff,
+    int PacfCutoff,
     IReadOnlyList<LagValueResponse> Pacf,
     IReadOnlyList<CriteriaResponse> Criteria,
     int ChosenOrder,
@@ -58,9 +59,10 @@ public sealed record LagValueResponse(int Lag, double Value);
 
 public sealed record CriteriaResponse(int Order, double Aic, double Aicc, double Bic);
 
+/// <summary>Ljung-Box and Jarque-Bera are null when there are too few residuals for them.</summary>
 public sealed record ResidualsResponse(
-    LjungBoxResponse LjungBox,
-    JarqueBeraResponse JarqueBera,
+    LjungBoxResponse? LjungBox,
+    JarqueBeraResponse? JarqueBera,
     double Mean,
     double Sd,
     double Skewness,

@@ -14,7 +14,6 @@ namespace ForecastHub.Api.Verification;
 public sealed class VerificationService(
     ModelService models,
     SiteGridLoader grids,
-    SiteModeling modeling,
     IForecastArchive archive,
     TimeProvider clock)
 {
@@ -44,8 +43,10 @@ public sealed class VerificationService(
         else
         {
             var days = SiteGridLoader.IsDaily(site) ? DailyBacktestDays : HourlyBacktestDays;
-            var grid = await grids.LoadAsync(site, model.Stored.DataEnd.AddDays(-days), model.Stored.DataEnd.AddTicks(1), cancellationToken);
-            backtest = grid is null ? null : modeling.Backtest(site, grid, RefitEveryDays);
+            var end = model.Stored.DataEnd;
+            var readings = await grids.ReadAsync(site, end.AddDays(-(days + site.Model.FitWindowDays)),
+                SiteGridLoader.NextStep(site, SiteGridLoader.AlignDown(site, end)), cancellationToken);
+            backtest = readings is null ? null : Backtester.Run(site, readings, end, days, RefitEveryDays);
             backtests[site.Id] = (model.Stored.FittedAt, backtest);
         }
 

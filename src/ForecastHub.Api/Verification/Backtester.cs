@@ -1,0 +1,111 @@
+using ForecastHub.Api.Forecasts;
+using ForecastHub.Api.Models;
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
+using ForecastHub.Core.Verification;
+using ForecastHub.Storage.Sites;
+
+namespace ForecastHub.Api.Verification;
+
+/// <summary>
+/// Rolling-origin backtest as the service runs it: an origin at the end of each of the last
+/// <c>days</c> local days; the model is refitted on the data before the origin at the first origin
+/// and then every <c>refitEveryDays</c>; from each origin the next local day (hourly: 24 steps,
+/// daily: 3 steps) is forecast from the data up to the origin and scored against what was observed.
+/// The model fits and forecasts are the core's; this class only walks the origins.
+/// </summary>
+public static class Backtester
+{
+    private static readonly double[] Levels = [0.80, 0.95];
+
+    public static BacktestResponse? Run(SiteRecord site, IReadOnlyList<GridReading> readings, DateTimeOffset dataEnd, int days, int refitEveryDays)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        ArgumentNullException.ThrowIfNull(readings);
+        var isDaily = SiteGridLoader.IsDaily(site);
+        var zone = GridBuilder.FindZone(site.TimeZone);
+        var settings = SiteModeling.Settings(site);
+        var horizons = isDaily ? 3 : 24;
+        var lastDay = GridBuilder.LocalDate(dataEnd, zone);
+        var firstDay = lastDay.AddDays(-days + 1);
+        var start = readings.Count == 0 ? dataEnd : readings[0].Time;
+        var full = SiteGridLoader.Build(site, readings, start, SiteGridLoader.NextStep(site, SiteGridLoader.AlignDown(site, dataEnd)));
+        var observed = new Dictionary<DateTimeOffset, double>();
+        for (var i = 0; i < full.Count; i++)
+        {
+            if (!double.IsNaN(full.Values[i]) && !full.Interpolated[i])
+            {
+                observed[full.Times[i]] = full.Values[i];
+            }
+        }
+
+        var accumulator = new ScoreAccumulator(horizons, Levels);
+        var pooled = new ScoreAccumulator(1, Levels);
+        SiteModel? model = null;
+        var lastFit = DateOnly.MinValue;
+        var origins = 0;
+        for (var day = firstDay; day <= lastDay; day = day.AddDays(1))
+        {
+            var origin = GridBuilder.LocalDayStart(day, zone);
+            var history = readings.Where(r => r.Time < origin).ToList();
+            if (history.Count == 0)
+            {
+                continue;
+            }
+
+            if (model is null || day.DayNumber - lastFit.DayNumber >= refitEveryDays)
+            {
+                var train = SiteGridLoader.Build(site, history, history[0].Time, origin);
+                if (train.ObservedCount < SiteModelFitter.MinimumPoints * 10)
+                {
+                    continue;
+                }
+
+                model = SiteModelFitter.Fit(train, settings);
+                lastFit = day;
+            }
+
+            var recentFrom = origin - (isDaily ? ForecastService.DailyRecentWindow : ForecastService.HourlyRecentWindow);
+            var recent = SiteGridLoader.Build(site, history.Where(r => r.Time >= recentFrom).ToList(), recentFrom, origin);
+            if (recent.LastValueIndex < 0)
+            {
+                continue;
+            }
+
+            var forecast = SiteForecaster.Forecast(model, recent, horizons, Levels, [], seed: day.DayNumber, paths: 1);
+            var times = forecast.Steps.Select(s => s.Time).ToArray();
+            var climatology = model.Climatology.Mean(times);
+            for (var h = 0; h < forecast.Steps.Count; h++)
+            {
+                var step = forecast.Steps[h];
+                if (!observed.TryGetValue(step.Time, out var y))
+                {
+                    continue;
+                }
+
+                var yesterday = isDaily ? GridBuilder.LocalDayStart(GridBuilder.LocalDate(step.Time, zone).AddDays(-1), zone) : step.Time.AddHours(-24);
+                var persistence = observed.TryGetValue(yesterday, out var p) ? p : double.NaN;
+                var lower = step.Intervals.Select(i => i.Lower).ToArray();
+                var upper = step.Intervals.Select(i => i.Upper).ToArray();
+                accumulator.Add(h + 1, y, step.Mean, step.Sd, lower, upper, persistence, climatology[h]);
+                pooled.Add(1, y, step.Mean, step.Sd, lower, upper, persistence, climatology[h]);
+            }
+
+            origins++;
+        }
+
+        if (origins == 0)
+        {
+            return null;
+        }
+
+        var perHorizon = accumulator.Result();
+        return new BacktestResponse(
+            GridBuilder.LocalDayStart(firstDay, zone),
+            GridBuilder.LocalDayStart(lastDay.AddDays(1), zone),
+            origins,
+            refitEveryDays,
+            [.. perHorizon.Where(s => s.Count > 0).Select(s => ScoresResponse.From(s, s.Horizon))],
+            ScoresResponse.From(pooled.Result()[0], null));
+    }
+}
