@@ -14,20 +14,35 @@ public static class SyntheticSeries
     public const double InnovationSd = 0.6;
 
     /// <summary>Hourly readings on the hour from <paramref name="start"/> (kept in its offset).</summary>
-    public static IReadOnlyList<(DateTimeOffset Time, double ValueC)> Hourly(DateTimeOffset start, int hours, int seed)
+    public static IReadOnlyList<(DateTimeOffset Time, double ValueC)> Hourly(DateTimeOffset start, int hours, int seed) =>
+        Hourly(start, hours, seed, [Phi]);
+
+    /// <summary>As <see cref="Hourly(DateTimeOffset, int, int)"/> with AR(p) anomalies of the given coefficients.</summary>
+    public static IReadOnlyList<(DateTimeOffset Time, double ValueC)> Hourly(DateTimeOffset start, int hours, int seed, double[] phi)
     {
         var random = new Random(seed);
-        var anomaly = 0.0;
+        var past = new double[phi.Length];
         var result = new (DateTimeOffset, double)[hours];
         for (var i = 0; i < hours; i++)
         {
             var time = start.AddHours(i);
-            anomaly = (Phi * anomaly) + (InnovationSd * Gaussian(random));
+            var anomaly = InnovationSd * Gaussian(random);
+            for (var k = 0; k < phi.Length; k++)
+            {
+                anomaly += phi[k] * past[k];
+            }
+
+            Array.Copy(past, 0, past, 1, past.Length - 1);
+            past[0] = anomaly;
             result[i] = (time, Math.Round(Climate(time) + anomaly, 2));
         }
 
         return result;
     }
+
+    /// <summary>Hourly readings ending at the hour before <paramref name="end"/>.</summary>
+    public static IReadOnlyList<(DateTimeOffset Time, double ValueC)> HourlyUntil(DateTimeOffset end, int hours, int seed) =>
+        Hourly(end.AddHours(-hours), hours, seed);
 
     /// <summary>The noise-free part of the series at <paramref name="time"/>.</summary>
     public static double Climate(DateTimeOffset time)

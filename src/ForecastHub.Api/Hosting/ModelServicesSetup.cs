@@ -54,7 +54,8 @@ public static class ModelServicesSetup
         services.AddSingleton<ForecastService>();
         services.AddSingleton<VerificationService>();
         services.AddSingleton<ISweepStep, DayAheadArchiveStep>();
-        services.AddHostedService<RefitWorker>();
+        services.AddSingleton<RefitWorker>();
+        services.AddHostedService(sp => sp.GetRequiredService<RefitWorker>());
         return services;
     }
 

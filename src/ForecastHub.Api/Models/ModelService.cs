@@ -31,6 +31,21 @@ public sealed partial class ModelService(
 {
     private readonly ConcurrentDictionary<string, ServingModel> loaded = new(StringComparer.Ordinal);
     private readonly ConcurrentDictionary<string, SemaphoreSlim> siteLocks = new(StringComparer.Ordinal);
+    private readonly ConcurrentDictionary<string, TaskCompletionSource<RefitOutcome>> waiters = new(StringComparer.Ordinal);
+
+    /// <summary>Completes with the outcome of the next fit of the site that finishes (background or requested), so callers await work instead of polling.</summary>
+    public Task<RefitOutcome> WhenNextFitAsync(string siteId) =>
+        waiters.GetOrAdd(siteId, _ => new TaskCompletionSource<RefitOutcome>(TaskCreationOptions.RunContinuationsAsynchronously)).Task;
+
+    private RefitOutcome Signal(string siteId, RefitOutcome outcome)
+    {
+        if (waiters.TryRemove(siteId, out var waiter))
+        {
+            waiter.TrySetResult(outcome);
+        }
+
+        return outcome;
+    }
 
     /// <summary>The model serving this site, or null before its first fit.</summary>
     public async Task<ServingModel?> GetAsync(SiteRecord site, CancellationToken cancellationToken)
@@ -87,7 +102,7 @@ public sealed partial class ModelService(
                 return (reason, new RefitOutcome(current, $"The site has {grid.ObservedCount} of the {MinPoints(site)} grid points needed for a fit.", NotEnoughData: true));
             }
 
-            return (reason, await FitAsync(site, grid, reason.Value, now, cancellationToken));
+            return (reason, Signal(site.Id, await FitAsync(site, grid, reason.Value, now, cancellationToken)));
         }
         finally
         {

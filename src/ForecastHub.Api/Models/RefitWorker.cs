@@ -20,6 +20,11 @@ public sealed partial class RefitWorker(
 {
     private const int PageSize = 500;
 
+    private TaskCompletionSource sweepDone = new(TaskCreationOptions.RunContinuationsAsynchronously);
+
+    /// <summary>Completes when the sweep that is running or next to run has gone through every site.</summary>
+    public Task WhenSweepDoneAsync() => Volatile.Read(ref sweepDone).Task;
+
     protected override async Task ExecuteAsync(CancellationToken stoppingToken)
     {
         // The stores answer synchronously; yielding first keeps host start-up from waiting on the sweep.
@@ -76,6 +81,18 @@ public sealed partial class RefitWorker(
 
     /// <summary>Queues every site and runs the sweep steps on each; used by the timer and at start.</summary>
     public async Task SweepAsync(CancellationToken cancellationToken)
+    {
+        try
+        {
+            await SweepSitesAsync(cancellationToken);
+        }
+        finally
+        {
+            Interlocked.Exchange(ref sweepDone, new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously)).TrySetResult();
+        }
+    }
+
+    private async Task SweepSitesAsync(CancellationToken cancellationToken)
     {
         string? after = null;
         while (!cancellationToken.IsCancellationRequested)
