@@ -64,6 +64,14 @@ public sealed class AuthorizationMatrixTests
         ["GET /api/v1/keys"] = Access.Admin,
         ["GET /api/v1/keys/{keyId}"] = Access.Admin,
         ["DELETE /api/v1/keys/{keyId}"] = Access.Admin,
+        ["GET /api/v1/sites/{siteId}/model"] = Access.Read,
+        ["POST /api/v1/sites/{siteId}/model/refit"] = Access.Admin,
+        ["GET /api/v1/sites/{siteId}/forecast"] = Access.Read,
+        ["GET /api/v1/sites/{siteId}/forecast.svg"] = Access.Read,
+        ["GET /api/v1/sites/{siteId}/verification"] = Access.Read,
+        ["GET /api/v1/sites/{siteId}/health"] = Access.Read,
+        ["GET /api/v1/health/models"] = Access.Read,
+        ["GET /metrics"] = Access.Read,
     };
 
     [Fact]

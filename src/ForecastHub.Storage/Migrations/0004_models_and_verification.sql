@@ -1,4 +1,4 @@
--- Schema version 3: the serving model of each site, the outcome of the last fit attempt,
+-- Schema version 4: the serving model of each site, the outcome of the last fit attempt,
 -- archived day-ahead forecasts and their live scores.
 
 -- One serving model per site, as the JSON the forecaster reads back; data_end_ms and
