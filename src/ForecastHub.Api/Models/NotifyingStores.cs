@@ -45,6 +45,9 @@ public sealed class NotifyingReadingStore(IReadingStore inner, SiteVersions vers
     public Task<IReadOnlyList<StoredReading>?> ReadAsync(string siteId, long fromMs, long toMs, long? afterMs, int limit,
         CancellationToken cancellationToken = default) =>
         inner.ReadAsync(siteId, fromMs, toMs, afterMs, limit, cancellationToken);
+
+    public Task<ReadingSpan?> SpanAsync(string siteId, CancellationToken cancellationToken = default) =>
+        inner.SpanAsync(siteId, cancellationToken);
 }
 
 /// <summary>The site store as the service sees it: a settings change queues a refit; a deletion invalidates cached answers.</summary>
