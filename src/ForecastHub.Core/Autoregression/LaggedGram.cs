@@ -8,8 +8,9 @@ namespace ForecastHub.Core.Autoregression;
 /// </summary>
 internal sealed class LaggedGram
 {
-    private LaggedGram(double[,] gram, double[] crossY, double sumSquaresY, int rows)
+    private LaggedGram(double[,] gram, double[] crossY, double sumSquaresY, int rows, int firstRow)
     {
+        FirstRow = firstRow;
         Gram = gram;
         CrossY = crossY;
         SumSquaresY = sumSquaresY;
@@ -26,18 +27,51 @@ internal sealed class LaggedGram
 
     public int Rows { get; }
 
-    public static LaggedGram Build(SegmentSummary summary, int lags, int firstRow)
+    public int FirstRow { get; }
+
+    public int Lags => CrossY.Length - 1;
+
+    public static LaggedGram Build(SegmentSummary summary, int lags, int firstRow) =>
+        Accumulate(summary, lags, firstRow, int.MaxValue, new double[lags + 1, lags + 1], new double[lags + 1], 0, 0, firstRow);
+
+    /// <summary>
+    /// The order-p cross-products on rows t &gt;= p from this Gram of rows t &gt;= Lags (p &lt;= Lags): its leading
+    /// block plus rows p..Lags-1 of each segment, so fitting every order costs one big pass, not one per order.
+    /// </summary>
+    public LaggedGram Narrow(SegmentSummary summary, int order)
     {
-        var columns = lags + 1;
+        var columns = order + 1;
         var gram = new double[columns, columns];
         var crossY = new double[columns];
-        var sumSquaresY = 0.0;
-        var rows = 0;
+        for (var i = 0; i < columns; i++)
+        {
+            crossY[i] = CrossY[i];
+            for (var j = 0; j < columns; j++)
+            {
+                gram[i, j] = Gram[i, j];
+            }
+        }
+
+        return Accumulate(summary, order, order, FirstRow, gram, crossY, SumSquaresY, Rows, order);
+    }
+
+    private static LaggedGram Accumulate(
+        SegmentSummary summary,
+        int lags,
+        int fromRow,
+        int toRow,
+        double[,] gram,
+        double[] crossY,
+        double sumSquaresY,
+        int rows,
+        int firstRow)
+    {
+        var columns = lags + 1;
         var regressors = new double[columns];
         regressors[0] = 1;
         foreach (var segment in summary.Segments)
         {
-            for (var t = firstRow; t < segment.Length; t++)
+            for (var t = fromRow; t < Math.Min(toRow, segment.Length); t++)
             {
                 for (var i = 1; i <= lags; i++)
                 {
@@ -68,6 +102,6 @@ internal sealed class LaggedGram
             }
         }
 
-        return new LaggedGram(gram, crossY, sumSquaresY, rows);
+        return new LaggedGram(gram, crossY, sumSquaresY, rows, firstRow);
     }
 }

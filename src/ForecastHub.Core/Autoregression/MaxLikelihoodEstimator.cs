@@ -13,10 +13,10 @@ namespace ForecastHub.Core.Autoregression;
 /// </summary>
 internal static class MaxLikelihoodEstimator
 {
-    /// <summary>Fits order p; the numerical-Hessian standard errors ((p+1)^2 likelihood evaluations) only when asked.</summary>
-    public static ArModel Fit(SegmentSummary summary, int order, bool withStandardErrors = true)
+    /// <summary>Fits order p; the numerical-Hessian standard errors only when asked; sharedGram (rows t &gt;= its Lags &gt;= p) saves a pass when fitting many orders.</summary>
+    public static ArModel Fit(SegmentSummary summary, int order, bool withStandardErrors = true, LaggedGram? sharedGram = null)
     {
-        var centered = summary.Centered();
+        var centered = new LikelihoodData(summary, order, sharedGram);
         var n = summary.Count;
         double[] phi;
         if (order == 0)
@@ -50,7 +50,7 @@ internal static class MaxLikelihoodEstimator
     }
 
     /// <summary>R's objective 0.5 (log(S/n) + sum log F_t / n), with the mean at its GLS value for these coefficients.</summary>
-    private static double ProfileObjective(double[][] centered, int n, Predictors predictors)
+    private static double ProfileObjective(LikelihoodData centered, int n, Predictors predictors)
     {
         var terms = Accumulate(centered, predictors);
         var ssq = terms.Squared - terms.Cross * terms.Cross / terms.OnesSquared;
@@ -58,7 +58,7 @@ internal static class MaxLikelihoodEstimator
     }
 
     /// <summary>The same objective at a given mean shift; +infinity outside the stationary region.</summary>
-    private static double Objective(double[][] centered, int n, double[] phi, double muShift)
+    private static double Objective(LikelihoodData centered, int n, double[] phi, double muShift)
     {
         var predictors = FromCoefficients(phi);
         if (predictors is null)
@@ -72,7 +72,7 @@ internal static class MaxLikelihoodEstimator
     }
 
     /// <summary>Square roots of the diagonal of the inverse numerical Hessian of n * objective in (phi, mean), as R's var.coef; asymptotic Yule-Walker-form errors if that Hessian is not positive definite.</summary>
-    private static double[] StandardErrors(double[][] centered, int n, double[] phi, double muShift, SegmentSummary summary)
+    private static double[] StandardErrors(LikelihoodData centered, int n, double[] phi, double muShift, SegmentSummary summary)
     {
         var p = phi.Length;
         if (p == 0)
@@ -129,35 +129,95 @@ internal static class MaxLikelihoodEstimator
         return YuleWalkerEstimator.AsymptoticStandardErrors(acov, p, sigma2, n);
     }
 
-    private static Terms Accumulate(double[][] centered, Predictors predictors)
+    /// <summary>
+    /// Weighted sums over all points: the first p points of each segment one by one (their
+    /// predictors change with t), rows t &gt;= p through the lagged moment matrix, so an evaluation
+    /// costs O(p^2) per segment instead of O(n p).
+    /// </summary>
+    private static Terms Accumulate(LikelihoodData data, Predictors predictors)
     {
         var p = predictors.Order;
         var squared = 0.0;
         var cross = 0.0;
         var onesSquared = 0.0;
         var sumLog = 0.0;
-        foreach (var x in centered)
+        foreach (var x in data.Centered)
         {
-            for (var t = 0; t < x.Length; t++)
+            for (var t = 0; t < Math.Min(p, x.Length); t++)
             {
-                var k = Math.Min(t, p);
-                var coefficients = predictors.Coefficients[k];
+                var coefficients = predictors.Coefficients[t];
                 var a = x[t];
-                for (var i = 1; i <= k; i++)
+                for (var i = 1; i <= t; i++)
                 {
                     a -= coefficients[i - 1] * x[t - i];
                 }
 
-                var b = predictors.OneMinusSum[k];
-                var weight = predictors.InverseVariance[k];
+                var b = predictors.OneMinusSum[t];
+                var weight = predictors.InverseVariance[t];
                 squared += a * a * weight;
                 cross += a * b * weight;
                 onesSquared += b * b * weight;
-                sumLog += predictors.LogVariance[k];
+                sumLog += predictors.LogVariance[t];
             }
         }
 
+        // Rows t >= p: a_t = c'z_t with c = (1, -phi), z_t = (x_t, ..., x_{t-p}); unit weight, log v_p = 0.
+        var phi = predictors.Coefficients[p];
+        var moments = data.Moments;
+        var aSquared = 0.0;
+        var aSum = 0.0;
+        for (var i = 0; i <= p; i++)
+        {
+            var ci = i == 0 ? 1 : -phi[i - 1];
+            var row = 0.0;
+            for (var j = 0; j <= p; j++)
+            {
+                row += moments[i, j] * (j == 0 ? 1 : -phi[j - 1]);
+            }
+
+            aSquared += ci * row;
+            aSum += ci * data.Sums[i];
+        }
+
+        var bMain = predictors.OneMinusSum[p];
+        squared += aSquared;
+        cross += aSum * bMain;
+        onesSquared += bMain * bMain * data.Rows;
         return new Terms(squared, cross, onesSquared, sumLog);
+    }
+
+    /// <summary>Centered segments and, for rows t &gt;= p of every segment, the moments of z_t = (x_t, x_{t-1}, ..., x_{t-p}).</summary>
+    private sealed class LikelihoodData
+    {
+        public LikelihoodData(SegmentSummary summary, int order, LaggedGram? sharedGram)
+        {
+            Centered = summary.Centered();
+            var gram = sharedGram is null ? LaggedGram.Build(summary, order, order) : sharedGram.Narrow(summary, order);
+            Rows = gram.Rows;
+            Moments = new double[order + 1, order + 1];
+            Sums = new double[order + 1];
+            Moments[0, 0] = gram.SumSquaresY;
+            Sums[0] = gram.CrossY[0];
+            for (var i = 1; i <= order; i++)
+            {
+                Moments[0, i] = Moments[i, 0] = gram.CrossY[i];
+                Sums[i] = gram.Gram[0, i];
+                for (var j = 1; j <= order; j++)
+                {
+                    Moments[i, j] = gram.Gram[i, j];
+                }
+            }
+        }
+
+        public double[][] Centered { get; }
+
+        /// <summary>sum_t z_{t,i} z_{t,j} over rows t &gt;= p.</summary>
+        public double[,] Moments { get; }
+
+        /// <summary>sum_t z_{t,i} over rows t &gt;= p.</summary>
+        public double[] Sums { get; }
+
+        public int Rows { get; }
     }
 
     private static double[] Tanh(double[] raw)

@@ -46,10 +46,11 @@ internal sealed class Candidates
                 return FromVariances(variances, rows, CriteriaSample.CommonRows, order => LeastSquaresEstimator.Fit(summary, order));
             case ArMethod.MaxLikelihood:
                 var criteria = new OrderCriteria[maxOrder + 1];
+                var gram = LaggedGram.Build(summary, maxOrder, maxOrder);
                 for (var order = 0; order <= maxOrder; order++)
                 {
                     // Standard errors only for the chosen order (below): the Hessian dominates the cost.
-                    var fit = MaxLikelihoodEstimator.Fit(summary, order, withStandardErrors: false);
+                    var fit = MaxLikelihoodEstimator.Fit(summary, order, withStandardErrors: false, gram);
                     var aic = -2 * fit.LogLikelihood!.Value + 2.0 * (order + 2);
                     criteria[order] = OrderSelection.Criteria(order, aic, order + 2, n);
                 }

@@ -55,6 +55,21 @@ public sealed class SegmentTests
     }
 
     [Fact]
+    public void MaxLikelihoodCriteriaOnSegmentsEqualTheSeparateFitsOfEachOrder()
+    {
+        // Selection shares one lagged pass over rows t >= maxOrder and adds the earlier rows per order.
+        double[][] segments = [SomeAr.ArSeries(150, [0.5, -0.3], seed: 8), SomeAr.ArSeries(7, [0.5, -0.3], seed: 9), SomeAr.ArSeries(90, [0.5, -0.3], seed: 10)];
+
+        var result = OrderSelection.Select(segments, ArMethod.MaxLikelihood, OrderPolicy.Aic, 6);
+
+        for (var order = 0; order <= 6; order++)
+        {
+            var fit = ArFit.Fit(segments, order, ArMethod.MaxLikelihood);
+            Close.Equal(-2 * fit.LogLikelihood!.Value + 2 * (order + 2), result.Criteria[order].Aic, 1e-7, $"aic({order})");
+        }
+    }
+
+    [Fact]
     public void SegmentsTooShortForTheOrderAreRefused()
     {
         double[][] segments = [[1, 2], [3, 1], [2, 5]];
