@@ -11,13 +11,13 @@ internal static class LeastSquaresEstimator
 {
     /// <summary>
     /// Residual variance RSS_m / rows for every order m = 0..maxOrder on ONE common sample (rows
-    /// t &gt;= maxOrder of each segment), so criteria compare like with like. Nested fits come from one
+    /// t &gt;= maxOrder of each segment: a Gram built with lags = firstRow = maxOrder), so criteria compare like with like. Nested fits come from one
     /// Cholesky factor: RSS_m = y'y - sum_{i &lt;= m} z_i^2 with z = L^{-1} X'y.
     /// </summary>
-    public static double[] CommonSampleVariances(SegmentSummary summary, int maxOrder, out int rows)
+    public static double[] CommonSampleVariances(LaggedGram gram)
     {
-        var gram = LaggedGram.Build(summary, maxOrder, maxOrder);
-        rows = gram.Rows;
+        var maxOrder = gram.Lags;
+        var rows = gram.Rows;
         var factor = Cholesky(gram.Gram, maxOrder);
         var z = ForwardSolve(factor, gram.CrossY);
         var variances = new double[maxOrder + 1];
@@ -32,9 +32,9 @@ internal static class LeastSquaresEstimator
     }
 
     /// <summary>Order-p fit on its own sample (rows t &gt;= p), equal to R ar.ols(order.max = p, aic = FALSE); var.pred = RSS / rows; se = sqrt(diag((X'X)^{-1}) var.pred).</summary>
-    public static ArModel Fit(SegmentSummary summary, int order)
+    public static ArModel Fit(SegmentSummary summary, int order, LaggedGram? sharedGram = null)
     {
-        var gram = LaggedGram.Build(summary, order, order);
+        var gram = sharedGram is null ? LaggedGram.Build(summary, order, order) : sharedGram.Narrow(summary, order);
         var matrix = Matrix<double>.Build.DenseOfArray(gram.Gram);
         var inverse = matrix.Inverse();
         var beta = inverse * Vector<double>.Build.DenseOfArray(gram.CrossY);

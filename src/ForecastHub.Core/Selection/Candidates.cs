@@ -42,8 +42,9 @@ internal sealed class Candidates
                 var burg = BurgEstimator.Path(summary, maxOrder, burgVariance);
                 return FromVariances(burg.Variances, n, CriteriaSample.AllPoints, order => BurgEstimator.Model(summary, burg, order, burgVariance));
             case ArMethod.LeastSquares:
-                var variances = LeastSquaresEstimator.CommonSampleVariances(summary, maxOrder, out var rows);
-                return FromVariances(variances, rows, CriteriaSample.CommonRows, order => LeastSquaresEstimator.Fit(summary, order));
+                var common = LaggedGram.Build(summary, maxOrder, maxOrder);
+                var variances = LeastSquaresEstimator.CommonSampleVariances(common);
+                return FromVariances(variances, common.Rows, CriteriaSample.CommonRows, order => LeastSquaresEstimator.Fit(summary, order, common));
             case ArMethod.MaxLikelihood:
                 var criteria = new OrderCriteria[maxOrder + 1];
                 var gram = LaggedGram.Build(summary, maxOrder, maxOrder);

@@ -136,6 +136,11 @@ public sealed class ArReferenceTests
         Assert.Equal(rows, result.CriteriaSampleSize);
         var expected = series.Doubles("leastSquaresCommonVariance").Select((v, m) => rows * Math.Log(v) + 2 * m + 2).ToArray();
         Close.All(expected, result.Criteria.Select(c => c.Aic).ToArray(), ClosedForm, "common-sample aic");
+
+        // The chosen order is then fitted on its own rows t >= p, as ar.ols(order.max = p, aic = FALSE).
+        var direct = ArFit.Fit(x, result.ChosenOrder, ArMethod.LeastSquares);
+        Close.All(direct.Coefficients, result.Model.Coefficients, 1e-10, "chosen-order coefficients");
+        Close.Equal(direct.InnovationVariance, result.Model.InnovationVariance, 1e-10, "chosen-order variance");
     }
 
     [Theory]
