@@ -103,6 +103,10 @@ public sealed class ServiceProcess : IAsyncDisposable
             {
                 // Not listening yet.
             }
+            catch (TaskCanceledException)
+            {
+                // One slow answer on a busy machine; keep polling until the overall deadline.
+            }
             // Polling a real child process; there is no clock to advance here.
             await Task.Delay(50);
         }
