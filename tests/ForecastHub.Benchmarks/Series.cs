@@ -1,3 +1,5 @@
+using ForecastHub.Core.Grid;
+
 namespace ForecastHub.Benchmarks;
 
 /// <summary>Seeded synthetic inputs for benchmarks.</summary>
@@ -34,5 +36,21 @@ internal static class Series
         }
 
         return x[1000..];
+    }
+
+    /// <summary>Hourly temperatures in Europe/Berlin from 2015-01-01: annual and diurnal cycles plus an AR(2) anomaly.</summary>
+    public static TimeGrid SeasonalHourlyGrid(int hours, int seed)
+    {
+        var anomaly = Ar(hours, 2, seed);
+        var start = new DateTimeOffset(2015, 1, 1, 0, 0, 0, TimeSpan.Zero);
+        var readings = new GridReading[hours];
+        for (var t = 0; t < hours; t++)
+        {
+            var day = t / 24.0;
+            var value = 10 - 8 * Math.Cos(2 * Math.PI * (day - 15) / 365.25) - 4 * Math.Cos(2 * Math.PI * ((t % 24) - 14) / 24) + 1.5 * anomaly[t];
+            readings[t] = new GridReading(start.AddHours(t), value);
+        }
+
+        return GridBuilder.Build(readings, new GridOptions(GridCadence.Hourly, "Europe/Berlin"));
     }
 }

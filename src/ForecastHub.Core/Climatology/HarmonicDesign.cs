@@ -33,23 +33,28 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
         return names;
     }
 
-    /// <summary>Row-major design matrix, one row per time.</summary>
-    public double[,] Matrix(IReadOnlyList<DateTimeOffset> times)
+    /// <summary>Column-major design: one array per term, one element per time.</summary>
+    public double[][] ColumnMajor(IReadOnlyList<DateTimeOffset> times)
     {
         ArgumentNullException.ThrowIfNull(times);
         var zone = GridBuilder.FindZone(TimeZone);
-        var x = new double[times.Count, Columns];
-        var row = new double[Columns];
+        var columns = new double[Columns][];
+        for (var c = 0; c < columns.Length; c++)
+        {
+            columns[c] = new double[times.Count];
+        }
+
+        Span<double> row = stackalloc double[Columns];
         for (var i = 0; i < times.Count; i++)
         {
             Fill(times[i], zone, row);
             for (var c = 0; c < row.Length; c++)
             {
-                x[i, c] = row[c];
+                columns[c][i] = row[c];
             }
         }
 
-        return x;
+        return columns;
     }
 
     /// <summary>The regression mean at each time for the given coefficients.</summary>
@@ -58,7 +63,7 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
         ArgumentNullException.ThrowIfNull(times);
         ArgumentNullException.ThrowIfNull(coefficients);
         var zone = GridBuilder.FindZone(TimeZone);
-        var row = new double[Columns];
+        Span<double> row = stackalloc double[Columns];
         var result = new double[times.Count];
         for (var i = 0; i < times.Count; i++)
         {
@@ -91,19 +96,25 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
         }
 
         row[0] = 1;
-        var c = 1;
-        for (var k = 1; k <= AnnualHarmonics; k++, c += 2)
+        Harmonics(2 * Math.PI * doy / YearDays, AnnualHarmonics, row[1..]);
+        Harmonics(2 * Math.PI * hour / 24, DiurnalHarmonics, row[(1 + 2 * AnnualHarmonics)..]);
+    }
+
+    /// <summary>cos/sin(k a) for k = 1..count by the angle-addition recurrence (two trig calls per row).</summary>
+    private static void Harmonics(double angle, int count, Span<double> target)
+    {
+        if (count == 0)
         {
-            var a = 2 * Math.PI * k * doy / YearDays;
-            row[c] = Math.Cos(a);
-            row[c + 1] = Math.Sin(a);
+            return;
         }
 
-        for (var j = 1; j <= DiurnalHarmonics; j++, c += 2)
+        var (s1, c1) = Math.SinCos(angle);
+        var (c, s) = (c1, s1);
+        for (var k = 0; k < count; k++)
         {
-            var a = 2 * Math.PI * j * hour / 24;
-            row[c] = Math.Cos(a);
-            row[c + 1] = Math.Sin(a);
+            target[2 * k] = c;
+            target[(2 * k) + 1] = s;
+            (c, s) = ((c * c1) - (s * s1), (s * c1) + (c * s1));
         }
     }
 }

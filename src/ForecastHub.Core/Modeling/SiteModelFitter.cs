@@ -98,12 +98,13 @@ public static class SiteModelFitter
         }
 
         var levelOnly = design.Columns == 1;
-        var x = levelOnly ? null : design.Matrix(window.Times);
+        var x = levelOnly ? null : design.ColumnMajor(window.Times);
         double[] coefficients;
         double[] stdErrors;
         double residualSd;
         string estimation;
         OrderSelectionResult selection;
+        ArModel ar;
         double[] anomalies;
         if (levelOnly)
         {
@@ -112,6 +113,7 @@ public static class SiteModelFitter
             coefficients = [mean];
             anomalies = y.Select(v => v - mean).ToArray();
             selection = Select(window, anomalies, settings);
+            ar = selection.Model;
             var phiSum = selection.Model.Coefficients.Sum();
             stdErrors = [Math.Sqrt(selection.Model.InnovationVariance / n) / Math.Abs(1 - phiSum)];
             residualSd = Math.Sqrt(anomalies.Sum(a => a * a) / (n - 1));
@@ -122,18 +124,19 @@ public static class SiteModelFitter
             var ols = HarmonicRegression.Ols(x!, y);
             anomalies = Residuals(x!, y, ols.Coefficients);
             selection = Select(window, anomalies, settings);
+            ar = selection.Model;
             (coefficients, stdErrors, residualSd, estimation) = (ols.Coefficients, ols.StdErrors, ols.Sigma, "ols");
             if (selection.ChosenOrder > 0)
             {
+                // The order is chosen on the OLS anomalies; the AR is then re-estimated at that order on the GLS anomalies.
                 var gls = HarmonicRegression.Gls(x!, y, window.Segments, selection.Model.Coefficients);
                 anomalies = Residuals(x!, y, gls.Coefficients);
-                selection = Select(window, anomalies, settings);
+                ar = ArFit.Fit(window.Split(anomalies), selection.ChosenOrder, settings.Method);
                 (coefficients, stdErrors, estimation) = (gls.Coefficients, gls.StdErrors, "gls");
                 residualSd = Math.Sqrt(anomalies.Sum(a => a * a) / (n - design.Columns));
             }
         }
 
-        var ar = selection.Model;
         var names = design.TermNames();
         var climatology = new ClimatologyFit(
             settings.Seasonality,
@@ -144,7 +147,7 @@ public static class SiteModelFitter
             n);
         var anomalySegments = window.Split(anomalies);
         var residuals = ArFit.Residuals(ar, anomalySegments);
-        var varianceSeason = FitVarianceSeason(window, residuals, ar.Order, design);
+        var varianceSeason = FitVarianceSeason(window, residuals, ar.Order, design, x);
         var residualDiagnostics = diagnostics ? Diagnose(residuals, ar.Order, cadence) : new ResidualDiagnostics(null, null, ResidualSummary.Of(residuals));
         var acfLags = Math.Min(Math.Max(selection.MaxOrder, 1), n - 1);
         var acf = diagnostics ? Autocorrelation.Acf(anomalySegments, acfLags).Skip(1).Select((r, k) => new LagValue(k + 1, r)).ToArray() : [];
@@ -155,48 +158,56 @@ public static class SiteModelFitter
     private static OrderSelectionResult Select(SeriesWindow window, double[] anomalies, ModelSettings settings) =>
         OrderSelection.Select(window.Split(anomalies), settings.Method, settings.OrderPolicy, settings.MaxOrder);
 
-    private static double[] Residuals(double[,] x, double[] y, double[] beta)
+    private static double[] Residuals(double[][] x, double[] y, double[] beta)
     {
-        var r = new double[y.Length];
-        for (var i = 0; i < y.Length; i++)
+        var r = (double[])y.Clone();
+        for (var c = 0; c < beta.Length; c++)
         {
-            var fit = 0.0;
-            for (var c = 0; c < beta.Length; c++)
+            var column = x[c];
+            for (var i = 0; i < r.Length; i++)
             {
-                fit += x[i, c] * beta[c];
+                r[i] -= beta[c] * column[i];
             }
-
-            r[i] = y[i] - fit;
         }
 
         return r;
     }
 
-    /// <summary>Harmonics (at most 2 annual, 2 diurnal) on the squared one-step residuals; see <see cref="VarianceSeason"/>.</summary>
-    private static VarianceSeason FitVarianceSeason(SeriesWindow window, IReadOnlyList<double[]> residuals, int order, HarmonicDesign design)
+    /// <summary>Harmonics (at most 2 annual, 2 diurnal) on the squared one-step residuals; see <see cref="VarianceSeason"/>.
+    /// Its design columns are a subset of the climatology's, so they are sliced from <paramref name="x"/>.</summary>
+    private static VarianceSeason FitVarianceSeason(SeriesWindow window, IReadOnlyList<double[]> residuals, int order, HarmonicDesign design, double[][]? x)
     {
         var vDesign = design with { AnnualHarmonics = Math.Min(design.AnnualHarmonics, 2), DiurnalHarmonics = Math.Min(design.DiurnalHarmonics, 2) };
         const double floor = 0.2;
-        var times = new List<DateTimeOffset>();
-        var squares = new List<double>();
-        for (var s = 0; s < window.Segments.Length; s++)
-        {
-            var (start, _) = window.Segments[s];
-            for (var k = 0; k < residuals[s].Length; k++)
-            {
-                times.Add(window.Times[start + order + k]);
-                squares.Add(residuals[s][k] * residuals[s][k]);
-            }
-        }
-
-        var meanSquare = squares.Count > 0 ? squares.Average() : 0;
-        if (vDesign.Columns == 1 || !(meanSquare > 0) || squares.Count < 10 * vDesign.Columns)
+        var squares = residuals.SelectMany(r => r.Select(e => e * e)).ToArray();
+        var meanSquare = squares.Length > 0 ? squares.Average() : 0;
+        if (x is null || vDesign.Columns == 1 || !(meanSquare > 0) || squares.Length < 10 * vDesign.Columns)
         {
             return new VarianceSeason(vDesign with { AnnualHarmonics = 0, DiurnalHarmonics = 0 }, [1.0], floor);
         }
 
-        var fit = HarmonicRegression.Ols(vDesign.Matrix(times), squares.Select(v => v / meanSquare).ToArray());
-        return new VarianceSeason(vDesign, fit.Coefficients, floor);
+        var source = Enumerable.Range(0, 1 + (2 * vDesign.AnnualHarmonics))
+            .Concat(Enumerable.Range(1 + (2 * design.AnnualHarmonics), 2 * vDesign.DiurnalHarmonics))
+            .ToArray();
+        var columns = source.Select(c => new double[squares.Length]).ToArray();
+        var row = 0;
+        for (var s = 0; s < window.Segments.Length; s++)
+        {
+            var first = window.Segments[s].Start + order;
+            for (var c = 0; c < source.Length; c++)
+            {
+                x[source[c]].AsSpan(first, residuals[s].Length).CopyTo(columns[c].AsSpan(row));
+            }
+
+            row += residuals[s].Length;
+        }
+
+        for (var i = 0; i < squares.Length; i++)
+        {
+            squares[i] /= meanSquare;
+        }
+
+        return new VarianceSeason(vDesign, HarmonicRegression.Ols(columns, squares).Coefficients, floor);
     }
 
     /// <summary>Ljung-Box on p + 24 lags (hourly) or p + 10 (daily), df = lags - p (common practice, no source).</summary>

@@ -20,7 +20,7 @@ public sealed class HarmonicRegressionTests(ITestOutputHelper output)
         var grid = SeattleWeather.Grid(dates, y, DailyStatistic.Mean);
         var design = new HarmonicDesign(GridCadence.Daily, SeattleWeather.Zone, 2, 0);
 
-        var fit = HarmonicRegression.Ols(design.Matrix(grid.Times), grid.Values);
+        var fit = HarmonicRegression.Ols(design.ColumnMajor(grid.Times), grid.Values);
 
         var reference = ReferenceFixture.Load("climatology-seattle.json").GetProperty(column);
         Assert.Equal(reference.GetProperty("terms").EnumerateArray().Select(t => t.GetString()), design.TermNames());
@@ -36,7 +36,7 @@ public sealed class HarmonicRegressionTests(ITestOutputHelper output)
         var times = Enumerable.Range(0, y.Length).Select(i => t0.AddHours(i)).ToArray();
         var design = new HarmonicDesign(GridCadence.Hourly, "Europe/Berlin", 2, 3);
 
-        var fit = HarmonicRegression.Ols(design.Matrix(times), y);
+        var fit = HarmonicRegression.Ols(design.ColumnMajor(times), y);
 
         AssertClose(fixture.GetProperty("lm"), fit, 1e-9);
     }
@@ -50,7 +50,7 @@ public sealed class HarmonicRegressionTests(ITestOutputHelper output)
         var design = new HarmonicDesign(GridCadence.Daily, SeattleWeather.Zone, 2, 0);
         var reference = ReferenceFixture.Load("climatology-seattle.json").GetProperty("arimaXregTrain").GetProperty("tempMax");
         var ar1 = reference.GetProperty("ar1").GetDouble();
-        var x = design.Matrix(grid.Times);
+        var x = design.ColumnMajor(grid.Times);
 
         var ols = HarmonicRegression.Ols(x, grid.Values);
         var gls = HarmonicRegression.Gls(x, grid.Values, [(0, grid.Count)], [ar1]);
@@ -75,8 +75,8 @@ public sealed class HarmonicRegressionTests(ITestOutputHelper output)
         var design = new HarmonicDesign(GridCadence.Daily, "UTC", 2, 0);
         var values = times.Select((_, i) => Math.Sin(i)).ToArray();
 
-        var fit = HarmonicRegression.Ols(design.Matrix(times), values);
-        var tooFew = Assert.Throws<SeriesException>(() => HarmonicRegression.Ols(design.Matrix(times[..5]), values[..5]));
+        var fit = HarmonicRegression.Ols(design.ColumnMajor(times), values);
+        var tooFew = Assert.Throws<SeriesException>(() => HarmonicRegression.Ols(design.ColumnMajor(times[..5]), values[..5]));
 
         Assert.Equal(5, fit.Coefficients.Length);
         Assert.Equal(SeriesProblem.TooShort, tooFew.Problem);
@@ -89,7 +89,7 @@ public sealed class HarmonicRegressionTests(ITestOutputHelper output)
         var design = new HarmonicDesign(GridCadence.Hourly, "UTC", 0, 1);
         var values = times.Select((_, i) => i == 7 ? double.NaN : i).ToArray();
 
-        var e = Assert.Throws<SeriesException>(() => HarmonicRegression.Ols(design.Matrix(times), values));
+        var e = Assert.Throws<SeriesException>(() => HarmonicRegression.Ols(design.ColumnMajor(times), values));
 
         Assert.Equal(SeriesProblem.NonFinite, e.Problem);
     }

@@ -1,0 +1,38 @@
+#!/usr/bin/env bash
+# Times ForecastHub's whole site-model fit of 87,600 hourly points against R doing lm on the same
+# harmonic design + ar.burg(order.max = 48) + Box.test on the same data, in one run.
+# Usage (from anywhere):  tests/benchmarks/fit-vs-r.sh      Target: ours <= 0.5 x R.
+set -euo pipefail
+cd "$(dirname "$0")/../.."
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+export FORECASTHUB_BENCH_CSV="$work/series.csv"
+
+dotnet run -c Release --project tests/ForecastHub.Benchmarks -- fit | tee "$work/ours.txt"
+ours=$(grep -o 'fit_ms=[0-9.]*' "$work/ours.txt" | cut -d= -f2)
+
+cat > "$work/fit.R" <<'RSCRIPT'
+x <- read.csv(Sys.getenv("FORECASTHUB_BENCH_CSV"))
+# Same design as ForecastHub.Core.Climatology.HarmonicDesign: local standard time of Europe/Berlin (UTC+1).
+s <- as.POSIXlt(x$epoch + 3600, origin = "1970-01-01", tz = "UTC")
+hour <- s$hour + s$min / 60
+doy <- s$yday + hour / 24
+X <- cbind(cos(2 * pi * doy / 365.25), sin(2 * pi * doy / 365.25), cos(4 * pi * doy / 365.25), sin(4 * pi * doy / 365.25),
+           cos(2 * pi * hour / 24), sin(2 * pi * hour / 24), cos(4 * pi * hour / 24), sin(4 * pi * hour / 24),
+           cos(6 * pi * hour / 24), sin(6 * pi * hour / 24))
+one <- function() {
+  f <- lm(x$value ~ X)
+  a <- ar.burg(residuals(f), order.max = 48)
+  b <- Box.test(na.omit(a$resid), lag = a$order + 24, type = "Ljung-Box", fitdf = a$order)
+  a$order
+}
+one()
+t <- sapply(1:7, function(i) system.time(one())[["elapsed"]])
+cat(sprintf("R: %s; AR(%d); median %.1f ms over 7 fits\n", R.version.string, one(), 1000 * median(t)))
+cat(sprintf("RESULT r_ms=%.1f\n", 1000 * median(t)))
+RSCRIPT
+Rscript "$work/fit.R" | tee "$work/r.txt"
+r=$(grep -o 'r_ms=[0-9.]*' "$work/r.txt" | cut -d= -f2)
+ratio=$(awk -v a="$ours" -v b="$r" 'BEGIN { printf "%.3f", a / b }')
+echo "ours ${ours} ms, R ${r} ms, ratio ${ratio} (target <= 0.5); load average: $(cut -d' ' -f1-3 /proc/loadavg)"
+awk -v q="$ratio" 'BEGIN { exit (q <= 0.5 ? 0 : 1) }'
