@@ -1,12 +1,19 @@
 namespace ForecastHub.Core.Modeling;
 
-/// <summary>Seeded standard normal draws: xoshiro256** (Blackman and Vigna 2018) seeded by splitmix64, and the
-/// Marsaglia polar method. Reproducible across platforms for a given seed.</summary>
+/// <summary>
+/// Seeded standard normal draws: xoshiro256** bits (Blackman and Vigna 2018) seeded by splitmix64,
+/// turned into normals by the 128-layer ziggurat (Marsaglia and Tsang 2000, in Doornik's 2005
+/// ZIGNOR form, which avoids the correlated-bits flaw of the original). Reproducible for a seed.
+/// </summary>
 internal sealed class GaussianSampler
 {
+    private const int Layers = 128;
+    private const double TailStart = 3.442619855899;
+    private const double LayerArea = 9.91256303526217e-3;
+    private static readonly double[] X = LayerEdges();
+    private static readonly double[] Ratio = Enumerable.Range(0, Layers).Select(i => X[i + 1] / X[i]).ToArray();
+
     private ulong s0, s1, s2, s3;
-    private double spare;
-    private bool hasSpare;
 
     public GaussianSampler(int seed)
     {
@@ -19,25 +26,58 @@ internal sealed class GaussianSampler
 
     public double Next()
     {
-        if (hasSpare)
+        while (true)
         {
-            hasSpare = false;
-            return spare;
-        }
+            var bits = NextBits();
+            var u = (2.0 * (bits >> 11) * (1.0 / (1UL << 53))) - 1;
+            var i = (int)(bits & (Layers - 1));
+            if (Math.Abs(u) < Ratio[i])
+            {
+                return u * X[i];
+            }
 
-        double u, v, s;
+            if (i == 0)
+            {
+                return Tail(u < 0);
+            }
+
+            var x = u * X[i];
+            var f0 = Math.Exp(-0.5 * ((X[i] * X[i]) - (x * x)));
+            var f1 = Math.Exp(-0.5 * ((X[i + 1] * X[i + 1]) - (x * x)));
+            if (f1 + (Uniform() * (f0 - f1)) < 1.0)
+            {
+                return x;
+            }
+        }
+    }
+
+    private double Tail(bool negative)
+    {
+        double x, y;
         do
         {
-            u = 2 * Uniform() - 1;
-            v = 2 * Uniform() - 1;
-            s = u * u + v * v;
+            x = Math.Log(1 - Uniform()) / TailStart;
+            y = Math.Log(1 - Uniform());
         }
-        while (s >= 1 || s == 0);
+        while (-2 * y < x * x);
 
-        var f = Math.Sqrt(-2 * Math.Log(s) / s);
-        spare = v * f;
-        hasSpare = true;
-        return u * f;
+        return negative ? x - TailStart : TailStart - x;
+    }
+
+    private static double[] LayerEdges()
+    {
+        var x = new double[Layers + 1];
+        var f = Math.Exp(-0.5 * TailStart * TailStart);
+        x[0] = LayerArea / f;
+        x[1] = TailStart;
+        x[Layers] = 0;
+        for (var i = 2; i < Layers; i++)
+        {
+            x[i] = Math.Sqrt(-2 * Math.Log((LayerArea / x[i - 1]) + f));
+            f = Math.Exp(-0.5 * x[i] * x[i]);
+        }
+
+        return x;
     }
 
     private double Uniform() => (NextBits() >> 11) * (1.0 / (1UL << 53));

@@ -8,7 +8,8 @@ namespace ForecastHub.Core.Modeling;
 /// Monte Carlo paths of the anomaly: deviations d_k = sum phi_i d_{k-i} + s_k eps_k from the mean
 /// path (d = 0 up to the origin), eps standard normal, s_k = c sigma sqrt(g_k) with c the interval
 /// calibration's spread ratio. Computes per path the min, max and mean of mean_k + d_k over
-/// horizons first..last (1-based), vectorised across paths.
+/// horizons first..last (1-based), vectorised across paths. Paths come in antithetic pairs (eps and
+/// -eps), which halves the draws and lowers the variance of the estimated mean.
 /// </summary>
 internal static class NextDaySimulation
 {
@@ -18,7 +19,8 @@ internal static class NextDaySimulation
         var phi = ar.Coefficients.ToArray();
         var sampler = new GaussianSampler(seed);
         var width = Vector<double>.Count;
-        var stride = (paths + width - 1) / width * width;
+        var stride = (paths + (2 * width) - 1) / (2 * width) * (2 * width);
+        var half = stride / 2;
         var buffer = ArrayPool<double>.Shared.Rent(last * stride);
         var d = buffer.AsSpan(0, last * stride);
         var min = new double[stride];
@@ -32,9 +34,10 @@ internal static class NextDaySimulation
             {
                 var row = d.Slice(k * stride, stride);
                 var scale = inflation * Math.Sqrt(ar.InnovationVariance * g[k]);
-                for (var j = 0; j < stride; j++)
+                for (var j = 0; j < half; j++)
                 {
                     row[j] = scale * sampler.Next();
+                    row[half + j] = -row[j];
                 }
 
                 for (var i = 1; i <= Math.Min(k, p); i++)
