@@ -96,9 +96,9 @@ internal sealed class ServerProcess : IAsyncDisposable
                     return since.Elapsed;
                 }
             }
-            catch (HttpRequestException)
+            catch (Exception e) when (e is HttpRequestException or TaskCanceledException)
             {
-                // Not listening yet.
+                // Not listening yet, or too busy starting to answer within the probe's timeout.
             }
 
             await Task.Delay(10);
