@@ -2,6 +2,7 @@ using System.Globalization;
 using System.Text;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Hosting;
+using ForecastHub.Api.Metrics;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
 using ForecastHub.Core.Quality;
@@ -34,7 +35,7 @@ public static class ObservationsEndpoints
 
     public static async Task<Results<Ok<ObservationsAnswer>, ProblemHttpResult>> Post(
         string siteId, HttpRequest request, [FromQuery] string? unit, [FromQuery] string? onConflict,
-        IReadingStore readings, TimeProvider clock, CancellationToken cancellationToken)
+        IReadingStore readings, ServiceMetrics metrics, TimeProvider clock, CancellationToken cancellationToken)
     {
         if (!SiteRules.IsValidSiteId(siteId))
         {
@@ -77,6 +78,7 @@ public static class ObservationsEndpoints
         }
 
         var (valid, rejected) = ReadingValidation.Validate(rows, bodyUnit ?? unit ?? TemperatureUnits.Celsius, clock.GetUtcNow());
+        metrics.Readings.Inc(rejected.Count, "rejected");
         var policy = onConflict == "replace" ? ConflictPolicy.Replace : ConflictPolicy.Reject;
         var result = await readings.IngestAsync(siteId, valid, policy, clock.GetUtcNow(), cancellationToken).ConfigureAwait(false);
         if (result is null)
