@@ -1,4 +1,5 @@
 using ForecastHub.Api.Auth;
+using ForecastHub.Api.CommandLine;
 using ForecastHub.Api.Dashboard;
 using ForecastHub.Api.Demo;
 using ForecastHub.Api.Health;
@@ -12,6 +13,11 @@ using ForecastHub.Api.Sites;
 if (HealthProbe.IsRequested(args))
 {
     return await HealthProbe.RunAsync(args, Console.Out);
+}
+
+if (OfflineVerbs.IsRequested(args))
+{
+    return await OfflineVerbs.RunAsync(args, Console.Out, Console.Error, TimeProvider.System);
 }
 
 args = DemoMode.WithoutFlag(args, out var demoFlag);

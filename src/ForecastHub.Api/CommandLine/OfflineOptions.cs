@@ -1,0 +1,120 @@
+using System.Globalization;
+
+namespace ForecastHub.Api.CommandLine;
+
+/// <summary>What <c>fit</c> and <c>backtest</c> were asked to do. Null cadence or zone: chosen from the file.</summary>
+public sealed record OfflineOptions(
+    string Verb,
+    string InputPath,
+    string? OutputPath,
+    string? Cadence,
+    string? TimeZone,
+    string DailyStatistic,
+    string Seasonality,
+    string Method,
+    string OrderPolicy,
+    int MaxOrder,
+    int? FitWindowDays,
+    string IntervalMethod,
+    int? TestDays,
+    int RefitEveryDays)
+{
+    public const string Usage = """
+        Usage: ForecastHub.Api fit|backtest FILE.csv [options]
+
+        FILE.csv holds a header line 'time,value' (or 'time,value,unit'), then one reading per line:
+        an ISO 8601 time with an offset, and the value in degrees C (or the row's unit: C, F, K).
+
+        Options (the defaults are the service's defaults for a new site):
+          --cadence hourly|daily       grid step (default: from the median spacing of the times)
+          --time-zone ZONE             IANA zone for local days and hours (default: UTC)
+          --daily-statistic mean|min|max   statistic of a daily grid (default: mean)
+          --seasonality auto|none|annual|annual-diurnal   (default: auto)
+          --method burg|yule-walker|least-squares|max-likelihood   (default: burg)
+          --order-policy pacf-aic|aic|aicc|bic|pacf       (default: pacf-aic)
+          --max-order N                upper limit on the AR order (default: 48)
+          --fit-window-days N          days of history fitted (default: 400 hourly, 1461 daily)
+          --interval-method calibrated|gaussian          (default: calibrated)
+          --test-days N                days at the end scored by the backtest (default: fit 30, backtest 90)
+          --refit-every-days N         backtest refit interval (default: 7)
+          --out FILE.json              JSON report (default: beside the input, FILE.fit.json / FILE.backtest.json)
+
+        The text report goes to standard output; exit code 0 on success, 2 on bad input.
+        """;
+
+    private static readonly Dictionary<string, string[]> Choices = new(StringComparer.Ordinal)
+    {
+        ["--cadence"] = ["hourly", "daily"],
+        ["--daily-statistic"] = ["mean", "min", "max"],
+        ["--seasonality"] = ["auto", "none", "annual", "annual-diurnal"],
+        ["--method"] = ["burg", "yule-walker", "least-squares", "max-likelihood"],
+        ["--order-policy"] = ["pacf-aic", "aic", "aicc", "bic", "pacf"],
+        ["--interval-method"] = ["calibrated", "gaussian"],
+    };
+
+    private static readonly string[] Numbers = ["--max-order", "--fit-window-days", "--test-days", "--refit-every-days"];
+
+    private static readonly string[] Texts = ["--time-zone", "--out"];
+
+    /// <summary>Reads the arguments after the verb; an error names the bad option.</summary>
+    public static (OfflineOptions? Options, string? Error) Parse(string verb, IReadOnlyList<string> args)
+    {
+        ArgumentNullException.ThrowIfNull(args);
+        string? input = null;
+        var values = new Dictionary<string, string>(StringComparer.Ordinal);
+        for (var i = 0; i < args.Count; i++)
+        {
+            var arg = args[i];
+            if (!arg.StartsWith("--", StringComparison.Ordinal))
+            {
+                if (input is not null)
+                {
+                    return (null, $"only one input file is read; '{arg}' is a second one.");
+                }
+                input = arg;
+                continue;
+            }
+            var (name, value) = arg.Contains('=', StringComparison.Ordinal)
+                ? (arg[..arg.IndexOf('=', StringComparison.Ordinal)], arg[(arg.IndexOf('=', StringComparison.Ordinal) + 1)..])
+                : (arg, i + 1 < args.Count ? args[++i] : null);
+            if (!Choices.ContainsKey(name) && !Numbers.Contains(name) && !Texts.Contains(name))
+            {
+                return (null, $"unknown option '{name}'.");
+            }
+            if (value is null)
+            {
+                return (null, $"option '{name}' needs a value.");
+            }
+            if (Choices.TryGetValue(name, out var allowed) && !allowed.Contains(value))
+            {
+                return (null, $"option '{name}' must be one of {string.Join(", ", allowed)}, not '{value}'.");
+            }
+            if (Numbers.Contains(name) && (!int.TryParse(value, NumberStyles.None, CultureInfo.InvariantCulture, out var n) || n < 1))
+            {
+                return (null, $"option '{name}' must be a whole number of at least 1, not '{value}'.");
+            }
+            values[name] = value;
+        }
+        if (input is null)
+        {
+            return (null, "name the CSV file to read.");
+        }
+        int? Number(string name) => values.TryGetValue(name, out var v) ? int.Parse(v, CultureInfo.InvariantCulture) : null;
+        string Text(string name, string fallback) => values.GetValueOrDefault(name, fallback);
+        return (new OfflineOptions(
+            verb,
+            input,
+            values.GetValueOrDefault("--out"),
+            values.GetValueOrDefault("--cadence"),
+            values.GetValueOrDefault("--time-zone"),
+            Text("--daily-statistic", "mean"),
+            Text("--seasonality", "auto"),
+            Text("--method", "burg"),
+            Text("--order-policy", "pacf-aic"),
+            Number("--max-order") ?? 48,
+            Number("--fit-window-days"),
+            Text("--interval-method", "calibrated"),
+            Number("--test-days"),
+            Number("--refit-every-days") ?? 7), null);
+    }
+}
