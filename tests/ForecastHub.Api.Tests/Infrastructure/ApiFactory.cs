@@ -3,6 +3,7 @@ using Microsoft.AspNetCore.Hosting;
 using Microsoft.AspNetCore.TestHost;
 using Microsoft.AspNetCore.Mvc.Testing;
 using Microsoft.Data.Sqlite;
+using Microsoft.Extensions.Configuration;
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.Extensions.Time.Testing;
 
@@ -36,10 +37,8 @@ public sealed class ApiFactory : WebApplicationFactory<Program>
         builder.UseSetting("Auth:AdminKey", AdminKey);
         builder.UseSetting("Auth:AllowAnonymousRead", AllowAnonymousRead ? "true" : "false");
         builder.UseSetting("Serilog:MinimumLevel:Default", "Warning");
-        foreach (var (key, value) in Settings)
-        {
-            builder.UseSetting(key, value);
-        }
+        // An in-memory source rather than UseSetting: nested keys (Serilog:WriteTo:0:Name) keep null parents.
+        builder.ConfigureAppConfiguration(config => config.AddInMemoryCollection(Settings));
         builder.ConfigureServices(services => services.AddSingleton<TimeProvider>(Clock));
         if (TestServices is not null)
         {
