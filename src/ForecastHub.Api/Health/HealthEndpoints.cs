@@ -12,7 +12,8 @@ public static class HealthEndpoints
         var group = routes.MapGroup("/health").WithTags("Health").AllowAnonymous();
         group.MapGet("/live", Live).WithName("Live").WithSummary("The process is up.");
         group.MapGet("/ready", Ready).WithName("Ready")
-            .WithSummary("Storage is reachable and every migration of this build is applied.");
+            .WithSummary("Storage is reachable and every migration of this build is applied.")
+            .ProducesProblem(StatusCodes.Status503ServiceUnavailable);
         return group;
     }
 

@@ -33,11 +33,14 @@ public static partial class KeysEndpoints
         group.MapPost("/", Create).WithName("CreateKey")
             .WithSummary("Create an API key; the answer is the only time its secret is shown.")
             .Accepts<KeyBody>("application/json")
-            .WithRequestBodyLimit(MaxBodyBytes);
-        group.MapGet("/", List).WithName("ListKeys").WithSummary("List API keys by id, one page at a time, without their secrets.");
+            .WithRequestBodyLimit(MaxBodyBytes)
+            .ProducesProblem(StatusCodes.Status409Conflict);
+        group.MapGet("/", List).WithName("ListKeys").WithSummary("List API keys by id, one page at a time, without their secrets.")
+            .ProducesProblem(StatusCodes.Status400BadRequest);
         group.MapGet("/{keyId}", Get).WithName("GetKey").WithSummary("Read one API key without its secret.");
         group.MapDelete("/{keyId}", Revoke).WithName("RevokeKey")
-            .WithSummary("Revoke an API key; it stops working at once and stays listed with its revocation time.");
+            .WithSummary("Revoke an API key; it stops working at once and stays listed with its revocation time.")
+            .ProducesProblem(StatusCodes.Status409Conflict);
         return group;
     }
 

@@ -1,5 +1,6 @@
 using System.Text.Json;
 using ForecastHub.Api.Auth;
+using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Problems;
 using ForecastHub.Storage.Sites;
 using Microsoft.AspNetCore.Http.HttpResults;
@@ -24,11 +25,14 @@ public static class SitesEndpoints
     {
         var group = routes.MapGroup("/sites").WithTags("Sites").RequireAuthorization(AuthPolicies.Read);
         group.MapPost("/", Create).WithName("CreateSite").WithSummary("Create a site.")
+            .Accepts<SiteBody>("application/json").WithRequestBodyLimit(MaxBodyBytes).ProducesProblem(StatusCodes.Status409Conflict)
             .RequireAuthorization(AuthPolicies.Admin);
-        group.MapGet("/", List).WithName("ListSites").WithSummary("List sites by id, one page at a time.");
+        group.MapGet("/", List).WithName("ListSites").WithSummary("List sites by id, one page at a time.")
+            .ProducesProblem(StatusCodes.Status400BadRequest);
         group.MapGet("/{siteId}", Get).WithName("GetSite").WithSummary("Read a site and its settings.");
         group.MapPatch("/{siteId}", Update).WithName("UpdateSite")
             .WithSummary("Change a site's settings; a change of anything but the name raises settingsVersion.")
+            .Accepts<SiteBody>("application/json").WithRequestBodyLimit(MaxBodyBytes)
             .RequireAuthorization(AuthPolicies.Admin);
         group.MapDelete("/{siteId}", Delete).WithName("DeleteSite").WithSummary("Delete a site with all its data.")
             .RequireAuthorization(AuthPolicies.Admin);

@@ -1,0 +1,133 @@
+using System.Text.Json;
+using System.Text.Json.Nodes;
+using ForecastHub.Api.Tests.Infrastructure;
+using ForecastHub.Api.Tests.TestSupport;
+using Microsoft.AspNetCore.Routing;
+using Microsoft.Extensions.DependencyInjection;
+
+namespace ForecastHub.Api.Tests.OpenApi;
+
+/// <summary>
+/// The committed openapi/forecasthub-v1.json is the contract. When an endpoint changes on purpose,
+/// regenerate it with the command in <see cref="RegenerateCommand"/> and commit the diff.
+/// </summary>
+public sealed class OpenApiContractTests
+{
+    public const string UpdateVariable = "FORECASTHUB_UPDATE_OPENAPI";
+    public const string RegenerateCommand =
+        UpdateVariable + "=1 dotnet test tests/ForecastHub.Api.Tests --filter FullyQualifiedName~OpenApiContractTests";
+
+    private static readonly string CommittedPath = RepoFiles.PathOf("openapi", "forecasthub-v1.json");
+
+    [Fact]
+    public async Task ServedDocumentEqualsTheCommittedContract()
+    {
+        var served = Canonical(await ServedDocument());
+
+        if (Environment.GetEnvironmentVariable(UpdateVariable) == "1")
+        {
+            await File.WriteAllTextAsync(CommittedPath, served);
+        }
+        var committed = File.Exists(CommittedPath) ? await File.ReadAllTextAsync(CommittedPath) : "";
+
+        Assert.True(committed == served,
+            $"The served OpenAPI document differs from openapi/forecasthub-v1.json{FirstDifference(committed, served)}. " +
+            $"If the change is intended, regenerate the file and commit it: {RegenerateCommand}");
+    }
+
+    [Fact]
+    public async Task EveryOperationHasANameASummaryAndProblemAnswers()
+    {
+        var document = JsonNode.Parse(await ServedDocument())!;
+        var operations = Operations(document).ToList();
+
+        Assert.NotEmpty(operations);
+        var ids = new HashSet<string>(StringComparer.Ordinal);
+        foreach (var (name, operation) in operations)
+        {
+            var id = (string?)operation["operationId"];
+            Assert.False(string.IsNullOrEmpty(id), $"{name} has no name: add .WithName(...)");
+            Assert.True(ids.Add(id!), $"{name} repeats the operation name {id}");
+            Assert.False(string.IsNullOrEmpty((string?)operation["summary"]), $"{name} has no summary: add .WithSummary(...)");
+            var responses = operation["responses"]!.AsObject();
+            Assert.Contains(responses, r => r.Key.StartsWith('2'));
+            foreach (var (code, response) in responses.Where(r => r.Key[0] is '4' or '5'))
+            {
+                Assert.True(response!["content"]?["application/problem+json"] is not null, $"{name} answers {code} without a problem+json schema");
+            }
+            if (operation["security"] is JsonArray { Count: > 0 })
+            {
+                Assert.True(responses.ContainsKey("401") && responses.ContainsKey("403"), $"{name} needs a key but does not list 401 and 403");
+            }
+        }
+    }
+
+    [Fact]
+    public async Task DocumentDescribesEveryApiEndpointAndTheBearerScheme()
+    {
+        await using var factory = new ApiFactory();
+        using var client = factory.CreateClient();
+        var document = JsonNode.Parse(await client.GetStringAsync(new Uri("/swagger/v1/swagger.json", UriKind.Relative)))!;
+        var described = Operations(document).Select(o => o.Name).ToHashSet(StringComparer.Ordinal);
+
+        var api = factory.Services.GetRequiredService<EndpointDataSource>().Endpoints.OfType<RouteEndpoint>()
+            .Where(e => e.RoutePattern.RawText?.StartsWith("/api/", StringComparison.Ordinal) == true)
+            .SelectMany(e => e.Metadata.GetMetadata<HttpMethodMetadata>()!.HttpMethods.Select(m => $"{m} /{e.RoutePattern.RawText!.Trim('/')}"))
+            .ToList();
+
+        Assert.NotEmpty(api);
+        Assert.Subset(described, api.ToHashSet(StringComparer.Ordinal));
+        var bearer = document["components"]!["securitySchemes"]!["Bearer"]!;
+        Assert.Equal("http", (string?)bearer["type"]);
+        Assert.Equal("bearer", (string?)bearer["scheme"]);
+    }
+
+    [Fact]
+    public async Task SwaggerUiIsServedAtSwagger()
+    {
+        await using var factory = new ApiFactory();
+        using var client = factory.CreateClient();
+
+        var page = await client.GetStringAsync(new Uri("/swagger/index.html", UriKind.Relative));
+        var config = await client.GetStringAsync(new Uri("/swagger/index.js", UriKind.Relative));
+
+        Assert.Contains("swagger-ui", page, StringComparison.Ordinal);
+        Assert.Contains("/swagger/v1/swagger.json", config, StringComparison.Ordinal);
+    }
+
+    private static async Task<string> ServedDocument()
+    {
+        await using var factory = new ApiFactory();
+        using var client = factory.CreateClient();
+        return await client.GetStringAsync(new Uri("/swagger/v1/swagger.json", UriKind.Relative));
+    }
+
+    private static IEnumerable<(string Name, JsonObject Operation)> Operations(JsonNode document) =>
+        document["paths"]!.AsObject().SelectMany(path => path.Value!.AsObject()
+            .Where(op => op.Value is JsonObject && op.Key is "get" or "post" or "put" or "patch" or "delete")
+            .Select(op => ($"{op.Key.ToUpperInvariant()} {path.Key.TrimEnd('/')}", op.Value!.AsObject())));
+
+    /// <summary>Indented with LF line ends and a final newline, so the file diffs well in review.</summary>
+    private static string Canonical(string json) =>
+        JsonNode.Parse(json)!.ToJsonString(new JsonSerializerOptions { WriteIndented = true }).Replace("\r\n", "\n", StringComparison.Ordinal) + "\n";
+
+    private static string FirstDifference(string committed, string served)
+    {
+        if (committed.Length == 0)
+        {
+            return " (the committed file is missing or empty)";
+        }
+        var a = committed.Split('\n');
+        var b = served.Split('\n');
+        for (var i = 0; i < Math.Max(a.Length, b.Length); i++)
+        {
+            var left = i < a.Length ? a[i] : "<end>";
+            var right = i < b.Length ? b[i] : "<end>";
+            if (left != right)
+            {
+                return $" from line {i + 1}: committed '{left.Trim()}', served '{right.Trim()}'";
+            }
+        }
+        return "";
+    }
+}
