@@ -24,3 +24,10 @@ public sealed record GridPage(string SiteId, string Resolution, string Cadence, 
 /// <summary>A reading as sent, before validation: the raw time text, the value if it was a number,
 /// the row's own unit, or why the row could not even be read.</summary>
 internal readonly record struct RawReading(int Index, int? Line, string? Time, double? Value, string? Unit, string? Error);
+
+/// <summary>The JSON body of a post as the OpenAPI document shows it; the handler parses the body
+/// itself, strictly, and also reads <c>text/csv</c> (<c>time,value[,unit]</c>).</summary>
+public sealed record ObservationsBody(string? Unit, IReadOnlyList<ReadingBody> Readings);
+
+/// <summary>One reading: ISO 8601 time with an offset, and the value in the body's unit.</summary>
+public sealed record ReadingBody(string Time, double Value);

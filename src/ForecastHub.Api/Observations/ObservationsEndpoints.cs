@@ -26,6 +26,7 @@ public static class ObservationsEndpoints
         group.MapPost("/", Post).WithName("PostObservations")
             .WithSummary("Store readings (JSON or text/csv); answers per-row outcomes. Retrying a batch is safe.")
             .RequireAuthorization(AuthPolicies.Ingest)
+            .Accepts<ObservationsBody>("application/json", "text/csv")
             .WithRequestBodyLimit(MaxBodyBytes);
         group.MapGet("/", ObservationQueries.Get).WithName("GetObservations")
             .WithSummary("Stored readings (resolution=raw) or the site's regular grid (resolution=grid), JSON or CSV, paged by 'next'.")

@@ -9,7 +9,8 @@ namespace ForecastHub.Api.OpenApi;
 /// <summary>
 /// Adds what every endpoint shares by convention, so new endpoints are described without extra
 /// work: the Bearer requirement and 401/403/429 on endpoints that need a key, 404 where the route
-/// names a site or key, 400/413/415 where a body is accepted, and problem+json on each of them.
+/// names a site or key, 400 where query parameters are read, 400/413/415 where a body is accepted,
+/// and problem+json on each of them.
 /// </summary>
 public sealed class ProblemResponsesFilter : IOperationFilter
 {
@@ -42,6 +43,11 @@ public sealed class ProblemResponsesFilter : IOperationFilter
         if (route.Contains("{siteId}", StringComparison.Ordinal) || route.Contains("{keyId}", StringComparison.Ordinal))
         {
             Add(operation, context, StatusCodes.Status404NotFound, "No such site or key.");
+        }
+
+        if (operation.Parameters?.Any(p => p.In == ParameterLocation.Query) == true)
+        {
+            Add(operation, context, StatusCodes.Status400BadRequest, "A query parameter is invalid; the problem names it.");
         }
 
         if (operation.RequestBody is not null || context.ApiDescription.SupportedRequestFormats.Count > 0)

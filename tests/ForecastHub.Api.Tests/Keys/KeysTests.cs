@@ -189,4 +189,24 @@ public sealed class KeysTests
 
         Assert.Equal(issued.Select(k => k.Id).Order(StringComparer.Ordinal), seen);
     }
+
+    [Fact]
+    public async Task IngestKeyWithoutSitesMayPostToEverySite()
+    {
+        await using var factory = new ApiFactory();
+        using var admin = factory.CreateAdminClient();
+        using var client = factory.CreateClient();
+        await admin.CreateSite(Some.Site("orchard-1"));
+        await admin.CreateSite(Some.Site("orchard-2"));
+        var key = await admin.IssueKey("ingest");
+        var readings = Some.ReadingsBody(Some.HourlyReadings(3, ApiFactory.Now));
+
+        foreach (var site in new[] { "orchard-1", "orchard-2" })
+        {
+            using var request = new HttpRequestMessage(HttpMethod.Post, Some.Observations(site)) { Content = JsonContent.Create(readings) };
+            using var response = await client.SendAsync(request.With(key.Secret));
+
+            Assert.Equal(HttpStatusCode.OK, response.StatusCode);
+        }
+    }
 }
