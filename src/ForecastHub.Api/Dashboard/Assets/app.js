@@ -3,6 +3,8 @@
 
 const KEY_STORAGE = "forecasthub.apiKey";
 const HISTORY_HOURS = 72;
+// Each card costs two calls; more sites than this are counted but not drawn (rate limits, page size).
+const MAX_CARDS = 24;
 const LEVELS = [80, 95];
 const state = { sites: [], selected: null, below: 0, above: null };
 
@@ -115,11 +117,12 @@ async function loadFleet() {
     summary.textContent = "No sites yet. Create one with POST /api/v1/sites.";
     return;
   }
-  const details = await Promise.all(state.sites.map(siteOverview));
+  const details = await Promise.all(state.sites.slice(0, MAX_CARDS).map(siteOverview));
   const counts = {};
   details.forEach(d => { counts[d.state] = (counts[d.state] || 0) + 1; });
   summary.textContent = `${state.sites.length} site${state.sites.length === 1 ? "" : "s"}: ` +
-    Object.entries(counts).map(([s, n]) => `${n} ${STATE_LABELS[s] || s}`).join(", ");
+    Object.entries(counts).map(([s, n]) => `${n} ${STATE_LABELS[s] || s}`).join(", ") +
+    (state.sites.length > MAX_CARDS ? ` (the first ${MAX_CARDS} shown)` : "");
   for (const d of details) list.appendChild(siteCard(d));
   const wanted = new URLSearchParams(location.hash.slice(1)).get("site");
   const first = details.find(d => d.site.id === wanted) || details[0];
