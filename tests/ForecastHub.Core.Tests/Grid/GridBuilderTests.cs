@@ -215,3 +215,21 @@ public sealed class GridBuilderTests
         Assert.Equal(grid.Segments, copy.Segments);
     }
 }
+
+public sealed class GridUntilTests
+{
+    [Fact]
+    public void UntilDropsLaterStepsAndUndoesInterpolationThatUsedThem()
+    {
+        var values = new[] { 1.0, 2, double.NaN, double.NaN, 5, 6 };
+        var grid = SomeGrid.HourlyGrid(values);
+
+        var known = grid.Until(3);
+
+        Assert.Equal(4, known.Count);
+        Assert.True(grid.Interpolated[2]);
+        Assert.True(double.IsNaN(known.Values[2]) && double.IsNaN(known.Values[3]));
+        Assert.Equal(new GridSegment(0, 2, grid.Times[0], grid.Times[1]), Assert.Single(known.Segments));
+        Assert.Equal(1, known.LastValueIndex);
+    }
+}

@@ -71,3 +71,35 @@ public sealed class ScoresTests
         Assert.Equal(3.25, h.Intervals[0].MeanWidth);
     }
 }
+
+public sealed class BacktestEdgeTests
+{
+    [Fact]
+    public void BacktestWithNoOriginInTheTestSpanReportsZeroOriginsAndNaNScores()
+    {
+        var grid = ForecastHub.Core.Tests.Support.SomeGrid.DailyGrid(SomeAr.ArSeries(100, [0.5], mean: 3));
+
+        var result = Backtest.Run(grid, new ForecastHub.Core.Modeling.ModelSettings(), new BacktestOptions { TestFrom = grid.Times[^1].AddDays(10) });
+
+        Assert.Equal(0, result.Origins);
+        Assert.Null(result.From);
+        Assert.True(double.IsNaN(result.Horizons[0].Mae));
+    }
+
+    [Fact]
+    public void BacktestNeverLetsAFitSeeDataAfterItsOrigin()
+    {
+        var values = SomeAr.ArSeries(200, [0.6], mean: 3);
+        var grid = ForecastHub.Core.Tests.Support.SomeGrid.DailyGrid(values);
+        var changedFuture = ForecastHub.Core.Tests.Support.SomeGrid.DailyGrid(values.Select((v, i) => i >= 180 ? v + 50 : v).ToArray());
+        var options = new BacktestOptions { TestFrom = grid.Times[180], TestTo = grid.Times[181], RefitEveryDays = 1 };
+        var settings = new ForecastHub.Core.Modeling.ModelSettings { IntervalMethod = ForecastHub.Core.Modeling.IntervalMethod.Gaussian };
+
+        var a = Backtest.Run(grid, settings, options);
+        var b = Backtest.Run(changedFuture, settings, options);
+
+        Assert.Equal(1, a.Origins);
+        Assert.Equal(Math.Abs(a.Horizons[0].Bias - 50), b.Horizons[0].Mae, 9);
+        Assert.Equal(a.Horizons[0].Bias - 50, b.Horizons[0].Bias, 9);
+    }
+}
