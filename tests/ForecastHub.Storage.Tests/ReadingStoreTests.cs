@@ -55,4 +55,22 @@ public sealed class ReadingStoreTests
         Assert.Null(await store.IngestAsync("site-b", DailyReadings(0, 1), ConflictPolicy.Reject, Received));
         Assert.Equal(0, db.Scalar<int>("SELECT count(*) FROM readings;"));
     }
+
+    [Fact]
+    public async Task StoredValuesReadBackBitForBit()
+    {
+        var (db, store) = await WithSite();
+        using var _ = db;
+        var random = new Random(3);
+        var values = Enumerable.Range(0, 5_000)
+            .Select(i => i % 2 == 0 ? Math.Round((random.NextDouble() * 150) - 90, 2) : ((random.NextDouble() * 150) - 90) / 7)
+            .ToArray();
+        var incoming = values.Select((v, i) => new IncomingReading(i, i * 60_000L, v, (v * 9 / 5) + 32, "F")).ToArray();
+
+        await store.IngestAsync("site-a", incoming, ConflictPolicy.Reject, Received);
+
+        var stored = await store.ReadAsync("site-a", long.MinValue, long.MaxValue, null, 10_000);
+        Assert.Equal(incoming.Select(r => (r.TimeMs, r.ValueC, r.OriginalValue, r.OriginalUnit)),
+            stored!.Select(r => (r.TimeMs, r.ValueC, r.OriginalValue, r.OriginalUnit)));
+    }
 }

@@ -25,10 +25,13 @@ public static class IngestPlanner
         ArgumentNullException.ThrowIfNull(incoming);
         ArgumentNullException.ThrowIfNull(limits);
 
-        var byTime = new SortedDictionary<long, Slot>();
+        // Slots: the stored readings first, then each new time once; a map finds a time's slot.
+        var slots = new List<Slot>(stored.Count + incoming.Count);
+        var slotOf = new Dictionary<long, int>(stored.Count + incoming.Count);
         foreach (var s in stored)
         {
-            byTime[s.TimeMs] = new Slot(s, IsStored: true, Changed: false);
+            slotOf[s.TimeMs] = slots.Count;
+            slots.Add(new Slot(s, IsStored: true, Changed: false));
         }
         var kinds = new ReadingOutcomeKind[incoming.Count];
         var storedValues = new double?[incoming.Count];
@@ -36,12 +39,14 @@ public static class IngestPlanner
         {
             var r = incoming[i];
             var reading = new StoredReading(r.TimeMs, r.ValueC, r.OriginalValue, r.OriginalUnit, QualityFlags.None);
-            if (!byTime.TryGetValue(r.TimeMs, out var slot))
+            if (!slotOf.TryGetValue(r.TimeMs, out var at))
             {
-                byTime[r.TimeMs] = new Slot(reading, IsStored: false, Changed: true);
+                slotOf[r.TimeMs] = slots.Count;
+                slots.Add(new Slot(reading, IsStored: false, Changed: true));
                 kinds[i] = ReadingOutcomeKind.Accepted;
                 continue;
             }
+            var slot = slots[at];
             storedValues[i] = slot.Reading.ValueC;
             if (Math.Abs(slot.Reading.ValueC - r.ValueC) <= SameValueTolerance)
             {
@@ -49,7 +54,7 @@ public static class IngestPlanner
             }
             else if (policy == ConflictPolicy.Replace)
             {
-                byTime[r.TimeMs] = slot with { Reading = reading, Changed = true };
+                slots[at] = slot with { Reading = reading, Changed = true };
                 kinds[i] = ReadingOutcomeKind.Replaced;
             }
             else
@@ -58,8 +63,13 @@ public static class IngestPlanner
             }
         }
 
-        var series = byTime.Values.ToArray();
-        var points = series.Select(s => new QualityPoint(s.Reading.Time, s.Reading.ValueC)).ToArray();
+        var series = slots.ToArray();
+        Array.Sort(series.Select(x => x.Reading.TimeMs).ToArray(), series);
+        var points = new QualityPoint[series.Length];
+        for (var j = 0; j < series.Length; j++)
+        {
+            points[j] = new QualityPoint(series[j].Reading.Time, series[j].Reading.ValueC);
+        }
         var computed = QualityChecks.Evaluate(points, limits);
         var inserts = new List<StoredReading>();
         var updates = new List<StoredReading>();
