@@ -25,7 +25,7 @@ public static class ForecastEndpoints
     /// <param name="levels">Interval levels in percent, comma-separated (default 80,95).</param>
     /// <param name="below">Thresholds in degrees C for the chance that the next local day's minimum drops below each.</param>
     /// <param name="above">Thresholds in degrees C for the chance that the next local day's maximum exceeds each.</param>
-    public static async Task<Results<Ok<ForecastResponse>, ProblemHttpResult>> GetForecast(
+    public static async Task<Results<SerializedOk<ForecastResponse>, ProblemHttpResult>> GetForecast(
         string siteId, string? steps, string? levels, string? below, string? above,
         ISiteStore sites, ForecastService forecasts, CancellationToken cancellationToken)
     {
@@ -41,8 +41,8 @@ public static class ForecastEndpoints
             return ApiProblems.BadRequest(field!, error!);
         }
 
-        var (forecast, unavailable) = await forecasts.GetAsync(site, query, cancellationToken);
-        return forecast is null ? ApiProblems.Conflict(unavailable!.Detail) : TypedResults.Ok(forecast);
+        var (json, unavailable) = await forecasts.GetJsonAsync(site, query, cancellationToken);
+        return json is { } bytes ? new SerializedOk<ForecastResponse>(bytes) : ApiProblems.Conflict(unavailable!.Detail);
     }
 
     public static async Task<Results<ContentHttpResult, ProblemHttpResult>> GetForecastChart(

@@ -1,9 +1,12 @@
 using System.Collections.Concurrent;
 using System.Diagnostics;
+using System.Text.Json;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Api.Models;
 using ForecastHub.Storage.Sites;
+using Microsoft.AspNetCore.Http.Json;
+using Microsoft.Extensions.Options;
 
 namespace ForecastHub.Api.Forecasts;
 
@@ -13,7 +16,9 @@ public sealed record ForecastUnavailable(string Detail);
 /// <summary>
 /// Forecasts from the serving model and the latest stored data. Answers are kept in memory per
 /// site, keyed by the site's data and model versions, the current grid step and the query, so a
-/// repeated request costs a dictionary look-up; new data or a new model starts a new key.
+/// repeated request costs a dictionary look-up; new data or a new model starts a new key. The JSON
+/// answer is kept serialised beside it (the bytes the host's JSON options make), so a hit writes
+/// stored bytes instead of serialising about 10 KB again.
 /// </summary>
 public sealed class ForecastService(
     ModelService models,
@@ -22,6 +27,7 @@ public sealed class ForecastService(
     SiteVersions versions,
     ModelHealthService health,
     ServiceMetrics metrics,
+    IOptions<JsonOptions> json,
     TimeProvider clock)
 {
     /// <summary>Hourly forecasts condition on this much recent data (enough for any AR order the settings allow).</summary>
@@ -37,6 +43,21 @@ public sealed class ForecastService(
     private readonly ConcurrentDictionary<string, SiteEntry> cache = new(StringComparer.Ordinal);
 
     public async Task<(ForecastResponse? Forecast, ForecastUnavailable? Unavailable)> GetAsync(
+        SiteRecord site, ForecastQuery query, CancellationToken cancellationToken)
+    {
+        var (cached, unavailable) = await GetCachedAsync(site, query, cancellationToken);
+        return (cached?.Response, unavailable);
+    }
+
+    /// <summary>The same answer as <see cref="GetAsync"/>, as the UTF-8 JSON the endpoint writes.</summary>
+    public async Task<(ReadOnlyMemory<byte>? Json, ForecastUnavailable? Unavailable)> GetJsonAsync(
+        SiteRecord site, ForecastQuery query, CancellationToken cancellationToken)
+    {
+        var (cached, unavailable) = await GetCachedAsync(site, query, cancellationToken);
+        return (cached?.Json(json.Value.SerializerOptions), unavailable);
+    }
+
+    private async Task<(CachedForecast? Forecast, ForecastUnavailable? Unavailable)> GetCachedAsync(
         SiteRecord site, ForecastQuery query, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(site);
@@ -63,13 +84,14 @@ public sealed class ForecastService(
         }
 
         var forecast = await ComputeAsync(site, model, query, now, cancellationToken);
-        if (forecast is not null && entry.Answers.Count < MaxEntriesPerSite)
+        metrics.ForecastDuration.Observe(watch.Elapsed.TotalSeconds, "miss");
+        if (forecast is null)
         {
-            entry.Answers.TryAdd(query.Key, forecast);
+            return (null, new ForecastUnavailable("The site has no stored data to forecast from."));
         }
 
-        metrics.ForecastDuration.Observe(watch.Elapsed.TotalSeconds, "miss");
-        return (forecast, forecast is null ? new ForecastUnavailable("The site has no stored data to forecast from.") : null);
+        var computed = new CachedForecast(forecast);
+        return (entry.Answers.Count < MaxEntriesPerSite ? entry.Answers.GetOrAdd(query.Key, computed) : computed, null);
     }
 
     private async Task<ForecastResponse?> ComputeAsync(SiteRecord site, ServingModel model, ForecastQuery query, DateTimeOffset now, CancellationToken cancellationToken)
@@ -117,9 +139,20 @@ public sealed class ForecastService(
 
     private sealed class SiteEntry(long dataVersion, long modelVersion, DateTimeOffset step)
     {
-        public ConcurrentDictionary<string, ForecastResponse> Answers { get; } = new(StringComparer.Ordinal);
+        public ConcurrentDictionary<string, CachedForecast> Answers { get; } = new(StringComparer.Ordinal);
 
         public bool Matches(long data, long model, DateTimeOffset currentStep) =>
             data == dataVersion && model == modelVersion && currentStep == step;
+    }
+
+    /// <summary>One computed answer; its JSON is made on first use and then reused.</summary>
+    private sealed class CachedForecast(ForecastResponse response)
+    {
+        private byte[]? json;
+
+        public ForecastResponse Response { get; } = response;
+
+        // A race serialises twice and keeps either copy: both are the same bytes.
+        public byte[] Json(JsonSerializerOptions options) => json ??= JsonSerializer.SerializeToUtf8Bytes(Response, options);
     }
 }

@@ -2,6 +2,7 @@ using ForecastHub.Api.Forecasts;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Api.Models;
+using ForecastHub.Api.Sites;
 using ForecastHub.Api.Verification;
 using ForecastHub.Core.Health;
 using ForecastHub.Storage;
@@ -20,7 +21,7 @@ public static class ModelServicesSetup
     /// <summary>
     /// Models, background refits, forecasts, verification, model health and metrics. Call after
     /// <c>AddForecastHubStorage</c>: the reading and site stores are wrapped so that new data and
-    /// settings changes reach the refit queue and the caches.
+    /// settings changes reach the refit queue and the caches; site records are kept in memory.
     /// </summary>
     public static IServiceCollection AddForecastHubModels(this IServiceCollection services)
     {
@@ -43,6 +44,7 @@ public static class ModelServicesSetup
         services.AddSingleton<IReadingSummaryStore, SqliteReadingSummaryStore>();
         Wrap<IReadingStore>(services, (sp, inner) => new NotifyingReadingStore(inner,
             sp.GetRequiredService<SiteVersions>(), sp.GetRequiredService<RefitQueue>(), sp.GetRequiredService<ServiceMetrics>()));
+        Wrap<ISiteStore>(services, (_, inner) => new CachedSiteStore(inner));
         Wrap<ISiteStore>(services, (sp, inner) => new NotifyingSiteStore(inner,
             sp.GetRequiredService<SiteVersions>(), sp.GetRequiredService<RefitQueue>(), sp.GetRequiredService<ModelService>()));
 
