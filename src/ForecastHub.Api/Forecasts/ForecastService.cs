@@ -50,7 +50,7 @@ public sealed class ForecastService(
     }
 
     /// <summary>The same answer as <see cref="GetAsync"/>, as the UTF-8 JSON the endpoint writes.</summary>
-    public async Task<(ReadOnlyMemory<byte>? Json, ForecastUnavailable? Unavailable)> GetJsonAsync(
+    public async Task<(byte[]? Json, ForecastUnavailable? Unavailable)> GetJsonAsync(
         SiteRecord site, ForecastQuery query, CancellationToken cancellationToken)
     {
         var (cached, unavailable) = await GetCachedAsync(site, query, cancellationToken);
