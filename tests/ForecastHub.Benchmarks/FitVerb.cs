@@ -42,6 +42,7 @@ internal sealed class FitVerb : IBenchmarkVerb
         output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"fit gaussian: median {gaussian:F1} ms wall, {gaussianCpu:F1} ms CPU over 7 fits"));
         var (calibrated, calibratedCpu) = Time(() => SiteModelFitter.Fit(grid, Settings with { IntervalMethod = IntervalMethod.Calibrated }), 3);
         output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"fit calibrated (default, 2 extra fold fits): median {calibrated:F1} ms wall, {calibratedCpu:F1} ms CPU over 3 fits"));
+        FitStages.Report(grid, output, 15);
         output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"RESULT fit_ms={gaussian:F1} fit_cpu_ms={gaussianCpu:F1}"));
         return 0;
     }

@@ -1,3 +1,4 @@
+using System.Numerics;
 using ForecastHub.Core.Correlation;
 using ForecastHub.Core.Series;
 
@@ -9,6 +10,15 @@ namespace ForecastHub.Core.Autoregression;
 /// </summary>
 internal static class BurgEstimator
 {
+    /// <summary>Rows per chunk of the update pass: the chunk's u and v stay in L1 for the sums that follow.</summary>
+    private const int ChunkRows = 1024;
+
+    /// <remarks>
+    /// Storage: v[t] = b_{p-1}(t) and u[t] = f_{p-1}(t - 1) (u shifted by one, length n + 1), so the order-p
+    /// update u_p(t) = u_{p-1}(t-1) - phi v(t), v_p(t) = v(t) - phi u_{p-1}(t-1) reads u[t], v[t] and writes
+    /// v[t], u[t + 1]: element-wise and vectorisable when run from the top down, and the next order's
+    /// sums are sum v[t] u[t] and sum v[t]^2 + u[t]^2 over t &gt;= p + 1, in the same places.
+    /// </remarks>
     public static LevinsonPath Path(SegmentSummary summary, int maxOrder, BurgVariance varianceMethod)
     {
         var segments = summary.Segments;
@@ -19,13 +29,14 @@ internal static class BurgEstimator
         {
             var x = segments[s];
             var n = x.Length;
-            var u = new double[n];
-            var v = new double[n];
+            var u = GC.AllocateUninitializedArray<double>(n + 1);
+            var v = GC.AllocateUninitializedArray<double>(n);
+            u[0] = 0;
             for (var t = 0; t < n; t++)
             {
-                // R stores the series reversed; kept so sums run in the same order.
-                u[t] = v[t] = x[n - 1 - t] - summary.Mean;
-                sumSquares += u[t] * u[t];
+                // R stores the series reversed; kept so the recursion runs over the same arrangement.
+                v[t] = u[t + 1] = x[n - 1 - t] - summary.Mean;
+                sumSquares += v[t] * v[t];
             }
 
             forward[s] = u;
@@ -38,18 +49,16 @@ internal static class BurgEstimator
         var partials = new double[maxOrder];
         coefficients[0] = [];
         recursion[0] = energy[0] = sumSquares / summary.Count;
+        var withEnergy = varianceMethod == BurgVariance.ErrorEnergy;
+
         // Order-1 sums; later orders get theirs from the update pass of the order before.
         var numerator = 0.0;
         var denominator = 0.0;
         for (var s = 0; s < segments.Count; s++)
         {
-            var u = forward[s];
-            var v = backward[s];
-            for (var t = 1; t < u.Length; t++)
-            {
-                numerator += v[t] * u[t - 1];
-                denominator += v[t] * v[t] + u[t - 1] * u[t - 1];
-            }
+            var (num, den) = Sums(backward[s], forward[s], 1, backward[s].Length);
+            numerator += num;
+            denominator += den;
         }
 
         for (var p = 1; p <= maxOrder; p++)
@@ -71,33 +80,100 @@ internal static class BurgEstimator
             {
                 var u = forward[s];
                 var v = backward[s];
+                var n = v.Length;
 
-                // Descending t keeps u[t - 1] at its previous-order value, as R's copy u0 does; once u[t]
-                // is updated, v[t + 1] and u[t] are final for order p and give the order-(p+1) sums at t + 1.
-                for (var t = u.Length - 1; t >= p; t--)
+                // Chunks from the top down: after a chunk [lo, hi] is updated, v[lo..hi] and u[lo+1..hi+1] are final
+                // (v[hi+1] from the chunk above), so the next order's sums over [lo+1, hi+1] can be taken while in cache.
+                for (var hi = n - 1; hi >= p; hi -= ChunkRows)
                 {
-                    var uPrevious = u[t - 1];
-                    var uNew = uPrevious - phi * v[t];
-                    var vNew = v[t] - phi * uPrevious;
-                    u[t] = uNew;
-                    v[t] = vNew;
-                    errorSum += vNew * vNew + uNew * uNew;
-                    if (t + 1 < u.Length)
-                    {
-                        var vNext = v[t + 1];
-                        numerator += vNext * uNew;
-                        denominator += vNext * vNext + uNew * uNew;
-                    }
+                    var lo = Math.Max(p, hi - ChunkRows + 1);
+                    errorSum += Update(u, v, lo, hi, phi, withEnergy);
+                    var (num, den) = Sums(v, u, lo + 1, Math.Min(hi + 2, n));
+                    numerator += num;
+                    denominator += den;
                 }
 
-                rows += Math.Max(0, u.Length - p);
+                rows += Math.Max(0, n - p);
             }
 
             recursion[p] = recursion[p - 1] * (1 - phi * phi);
             energy[p] = errorSum / (2.0 * rows);
         }
 
-        return new LevinsonPath(coefficients, varianceMethod == BurgVariance.ErrorEnergy ? energy : recursion, partials);
+        return new LevinsonPath(coefficients, withEnergy ? energy : recursion, partials);
+    }
+
+    /// <summary>Order update for t = hi down to lo (see the storage remark); returns sum of the new squared errors when asked.</summary>
+    private static double Update(double[] u, double[] v, int lo, int hi, double phi, bool withEnergy)
+    {
+        var width = Vector<double>.Count;
+        var k = new Vector<double>(phi);
+        var energy = Vector<double>.Zero;
+        var t = hi - width + 1;
+        for (; t >= lo; t -= width)
+        {
+            // Loads before stores: u[t+1 .. t+width] overlaps only this block's own reads and the block above's.
+            var a = new Vector<double>(u, t);
+            var b = new Vector<double>(v, t);
+            var uNew = a - (k * b);
+            var vNew = b - (k * a);
+            vNew.CopyTo(v, t);
+            uNew.CopyTo(u, t + 1);
+            if (withEnergy)
+            {
+                energy += (vNew * vNew) + (uNew * uNew);
+            }
+        }
+
+        var sum = Vector.Sum(energy);
+        for (var i = t + width - 1; i >= lo; i--)
+        {
+            var a = u[i];
+            var uNew = a - (phi * v[i]);
+            var vNew = v[i] - (phi * a);
+            v[i] = vNew;
+            u[i + 1] = uNew;
+            sum += (vNew * vNew) + (uNew * uNew);
+        }
+
+        return withEnergy ? sum : 0;
+    }
+
+    /// <summary>sum v[t] u[t] and sum v[t]^2 + u[t]^2 over t in [from, to).</summary>
+    private static (double Numerator, double Denominator) Sums(double[] v, double[] u, int from, int to)
+    {
+        if (to <= from)
+        {
+            return (0, 0);
+        }
+
+        var width = Vector<double>.Count;
+        var num0 = Vector<double>.Zero;
+        var num1 = Vector<double>.Zero;
+        var den0 = Vector<double>.Zero;
+        var den1 = Vector<double>.Zero;
+        var t = from;
+        for (; t + (2 * width) <= to; t += 2 * width)
+        {
+            var v0 = new Vector<double>(v, t);
+            var u0 = new Vector<double>(u, t);
+            var v1 = new Vector<double>(v, t + width);
+            var u1 = new Vector<double>(u, t + width);
+            num0 += v0 * u0;
+            num1 += v1 * u1;
+            den0 += (v0 * v0) + (u0 * u0);
+            den1 += (v1 * v1) + (u1 * u1);
+        }
+
+        var numerator = Vector.Sum(num0 + num1);
+        var denominator = Vector.Sum(den0 + den1);
+        for (; t < to; t++)
+        {
+            numerator += v[t] * u[t];
+            denominator += (v[t] * v[t]) + (u[t] * u[t]);
+        }
+
+        return (numerator, denominator);
     }
 
     /// <summary>R 4.2 reports Burg's var.pred without the n/(n-p-1) factor; standard errors as R asy.var.coef.</summary>
