@@ -37,20 +37,33 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
     public double[][] ColumnMajor(IReadOnlyList<DateTimeOffset> times)
     {
         ArgumentNullException.ThrowIfNull(times);
-        var zone = GridBuilder.FindZone(TimeZone);
+        var rows = new RowFiller(this);
+        var n = times.Count;
         var columns = new double[Columns][];
         for (var c = 0; c < columns.Length; c++)
         {
-            columns[c] = new double[times.Count];
+            columns[c] = GC.AllocateUninitializedArray<double>(n);
         }
 
-        Span<double> row = stackalloc double[Columns];
-        for (var i = 0; i < times.Count; i++)
+        // Row by row into a small row-major scratch, then transposed column by column (contiguous writes).
+        const int chunk = 512;
+        var width = Columns;
+        var scratch = new double[chunk * width];
+        for (var start = 0; start < n; start += chunk)
         {
-            Fill(times[i], zone, row);
-            for (var c = 0; c < row.Length; c++)
+            var length = Math.Min(chunk, n - start);
+            for (var i = 0; i < length; i++)
             {
-                columns[c][i] = row[c];
+                rows.Fill(times[start + i], scratch.AsSpan(i * width, width));
+            }
+
+            for (var c = 0; c < width; c++)
+            {
+                var column = columns[c].AsSpan(start, length);
+                for (var i = 0; i < column.Length; i++)
+                {
+                    column[i] = scratch[(i * width) + c];
+                }
             }
         }
 
@@ -62,42 +75,28 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
     {
         ArgumentNullException.ThrowIfNull(times);
         ArgumentNullException.ThrowIfNull(coefficients);
-        var zone = GridBuilder.FindZone(TimeZone);
+        var rows = new RowFiller(this);
         Span<double> row = stackalloc double[Columns];
+        Span<double> beta = stackalloc double[Columns];
+        for (var c = 0; c < beta.Length; c++)
+        {
+            beta[c] = coefficients[c];
+        }
+
         var result = new double[times.Count];
         for (var i = 0; i < times.Count; i++)
         {
-            Fill(times[i], zone, row);
+            rows.Fill(times[i], row);
             var sum = 0.0;
             for (var c = 0; c < row.Length; c++)
             {
-                sum += row[c] * coefficients[c];
+                sum += row[c] * beta[c];
             }
 
             result[i] = sum;
         }
 
         return result;
-    }
-
-    internal void Fill(DateTimeOffset time, TimeZoneInfo zone, Span<double> row)
-    {
-        double doy;
-        var hour = 0.0;
-        if (Cadence == GridCadence.Daily)
-        {
-            doy = GridBuilder.LocalDate(time, zone).DayOfYear - 1;
-        }
-        else
-        {
-            var s = time.UtcDateTime + zone.BaseUtcOffset;
-            hour = s.Hour + s.Minute / 60.0;
-            doy = s.DayOfYear - 1 + hour / 24;
-        }
-
-        row[0] = 1;
-        Harmonics(2 * Math.PI * doy / YearDays, AnnualHarmonics, row[1..]);
-        Harmonics(2 * Math.PI * hour / 24, DiurnalHarmonics, row[(1 + 2 * AnnualHarmonics)..]);
     }
 
     /// <summary>cos/sin(k a) for k = 1..count by the angle-addition recurrence (two trig calls per row).</summary>
@@ -115,6 +114,74 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
             target[2 * k] = c;
             target[(2 * k) + 1] = s;
             (c, s) = ((c * c1) - (s * s1), (s * c1) + (c * s1));
+        }
+    }
+
+    /// <summary>
+    /// Design rows for a run of times. Hourly: the local standard time is taken from ticks, with the
+    /// current year's first day cached and the diurnal terms cached per minute of the day; the same
+    /// numbers as DateTime's Hour, Minute and DayOfYear, without their calendar arithmetic per row.
+    /// </summary>
+    private sealed class RowFiller
+    {
+        private const int MinutesPerDay = 24 * 60;
+        private readonly HarmonicDesign design;
+        private readonly TimeZoneInfo zone;
+        private readonly long offsetTicks;
+        private readonly int annualColumns;
+        private double[]? diurnal;
+        private bool[]? diurnalKnown;
+        private long yearFirstDay = long.MaxValue;
+        private long nextYearFirstDay = long.MinValue;
+
+        public RowFiller(HarmonicDesign design)
+        {
+            this.design = design;
+            zone = GridBuilder.FindZone(design.TimeZone);
+            offsetTicks = zone.BaseUtcOffset.Ticks;
+            annualColumns = 2 * design.AnnualHarmonics;
+        }
+
+        public void Fill(DateTimeOffset time, Span<double> row)
+        {
+            row[0] = 1;
+            if (design.Cadence == GridCadence.Daily)
+            {
+                double doy = GridBuilder.LocalDate(time, zone).DayOfYear - 1;
+                Harmonics(2 * Math.PI * doy / YearDays, design.AnnualHarmonics, row[1..]);
+                Harmonics(0, design.DiurnalHarmonics, row[(1 + annualColumns)..]);
+                return;
+            }
+
+            var ticks = time.UtcTicks + offsetTicks;
+            var day = ticks / TimeSpan.TicksPerDay;
+            var minuteOfDay = (int)(ticks % TimeSpan.TicksPerDay / TimeSpan.TicksPerMinute);
+            if (day < yearFirstDay || day >= nextYearFirstDay)
+            {
+                var year = new DateTime(day * TimeSpan.TicksPerDay, DateTimeKind.Unspecified).Year;
+                yearFirstDay = new DateTime(year, 1, 1).Ticks / TimeSpan.TicksPerDay;
+                nextYearFirstDay = year < DateTime.MaxValue.Year ? new DateTime(year + 1, 1, 1).Ticks / TimeSpan.TicksPerDay : long.MaxValue;
+            }
+
+            var hour = (minuteOfDay / 60) + (minuteOfDay % 60 / 60.0);
+            var doyHourly = day - yearFirstDay + (hour / 24);
+            Harmonics(2 * Math.PI * doyHourly / YearDays, design.AnnualHarmonics, row[1..]);
+            DiurnalTerms(minuteOfDay, hour).CopyTo(row[(1 + annualColumns)..]);
+        }
+
+        private ReadOnlySpan<double> DiurnalTerms(int minuteOfDay, double hour)
+        {
+            var width = 2 * design.DiurnalHarmonics;
+            diurnal ??= new double[MinutesPerDay * width];
+            diurnalKnown ??= new bool[MinutesPerDay];
+            var terms = diurnal.AsSpan(minuteOfDay * width, width);
+            if (!diurnalKnown[minuteOfDay])
+            {
+                Harmonics(2 * Math.PI * hour / 24, design.DiurnalHarmonics, terms);
+                diurnalKnown[minuteOfDay] = true;
+            }
+
+            return terms;
         }
     }
 }

@@ -3,9 +3,10 @@ using System.Runtime.InteropServices;
 
 namespace ForecastHub.Core.Linear;
 
-/// <summary>Vectorised dot product for recursions and lagged sums (independent lanes break the add latency chain).</summary>
+/// <summary>Vectorised dot product and axpy for recursions, lagged sums and Householder steps.</summary>
 internal static class SpanMath
 {
+    /// <summary>sum a_i b_i over a's length; four independent vector lanes break the add latency chain on long spans.</summary>
     public static double Dot(ReadOnlySpan<double> a, ReadOnlySpan<double> b)
     {
         var n = a.Length;
@@ -17,19 +18,23 @@ internal static class SpanMath
             var vb = MemoryMarshal.Cast<double, Vector<double>>(b[..n]);
             var acc0 = Vector<double>.Zero;
             var acc1 = Vector<double>.Zero;
+            var acc2 = Vector<double>.Zero;
+            var acc3 = Vector<double>.Zero;
             var v = 0;
-            for (; v + 1 < va.Length; v += 2)
+            for (; v + 3 < va.Length; v += 4)
             {
                 acc0 += va[v] * vb[v];
                 acc1 += va[v + 1] * vb[v + 1];
+                acc2 += va[v + 2] * vb[v + 2];
+                acc3 += va[v + 3] * vb[v + 3];
             }
 
-            if (v < va.Length)
+            for (; v < va.Length; v++)
             {
                 acc0 += va[v] * vb[v];
             }
 
-            sum = Vector.Sum(acc0 + acc1);
+            sum = Vector.Sum((acc0 + acc1) + (acc2 + acc3));
             i = va.Length * Vector<double>.Count;
         }
 
@@ -39,5 +44,29 @@ internal static class SpanMath
         }
 
         return sum;
+    }
+
+    /// <summary>y += alpha x over x's length.</summary>
+    public static void Axpy(double alpha, ReadOnlySpan<double> x, Span<double> y)
+    {
+        var n = x.Length;
+        var i = 0;
+        if (Vector.IsHardwareAccelerated && n >= Vector<double>.Count)
+        {
+            var vx = MemoryMarshal.Cast<double, Vector<double>>(x);
+            var vy = MemoryMarshal.Cast<double, Vector<double>>(y[..n]);
+            var a = new Vector<double>(alpha);
+            for (var v = 0; v < vx.Length; v++)
+            {
+                vy[v] += a * vx[v];
+            }
+
+            i = vx.Length * Vector<double>.Count;
+        }
+
+        for (; i < n; i++)
+        {
+            y[i] += alpha * x[i];
+        }
     }
 }

@@ -3,6 +3,7 @@ using ForecastHub.Core.Climatology;
 using ForecastHub.Core.Correlation;
 using ForecastHub.Core.Diagnostics;
 using ForecastHub.Core.Grid;
+using ForecastHub.Core.Linear;
 using ForecastHub.Core.Selection;
 using ForecastHub.Core.Series;
 
@@ -163,25 +164,29 @@ public static class SiteModelFitter
         var r = (double[])y.Clone();
         for (var c = 0; c < beta.Length; c++)
         {
-            var column = x[c];
-            for (var i = 0; i < r.Length; i++)
-            {
-                r[i] -= beta[c] * column[i];
-            }
+            SpanMath.Axpy(-beta[c], x[c], r);
         }
 
         return r;
     }
 
     /// <summary>Harmonics (at most 2 annual, 2 diurnal) on the squared one-step residuals; see <see cref="VarianceSeason"/>.
-    /// Its design columns are a subset of the climatology's, so they are sliced from <paramref name="x"/>.</summary>
+    /// Its design columns are a subset of the climatology's, so their rows are copied from <paramref name="x"/>
+    /// straight into the QR's blocks.</summary>
     private static VarianceSeason FitVarianceSeason(SeriesWindow window, IReadOnlyList<double[]> residuals, int order, HarmonicDesign design, double[][]? x)
     {
         var vDesign = design with { AnnualHarmonics = Math.Min(design.AnnualHarmonics, 2), DiurnalHarmonics = Math.Min(design.DiurnalHarmonics, 2) };
         const double floor = 0.2;
-        var squares = residuals.SelectMany(r => r.Select(e => e * e)).ToArray();
-        var meanSquare = squares.Length > 0 ? squares.Average() : 0;
-        if (x is null || vDesign.Columns == 1 || !(meanSquare > 0) || squares.Length < 10 * vDesign.Columns)
+        var count = 0;
+        var sumSquares = 0.0;
+        foreach (var segment in residuals)
+        {
+            count += segment.Length;
+            sumSquares += SpanMath.Dot(segment, segment);
+        }
+
+        var meanSquare = count > 0 ? sumSquares / count : 0;
+        if (x is null || vDesign.Columns == 1 || !(meanSquare > 0) || count < 10 * vDesign.Columns)
         {
             return new VarianceSeason(vDesign with { AnnualHarmonics = 0, DiurnalHarmonics = 0 }, [1.0], floor);
         }
@@ -189,25 +194,31 @@ public static class SiteModelFitter
         var source = Enumerable.Range(0, 1 + (2 * vDesign.AnnualHarmonics))
             .Concat(Enumerable.Range(1 + (2 * design.AnnualHarmonics), 2 * vDesign.DiurnalHarmonics))
             .ToArray();
-        var columns = source.Select(c => new double[squares.Length]).ToArray();
-        var row = 0;
+        var k = source.Length;
+        var qr = new TallSkinnyQr(k + 1);
         for (var s = 0; s < window.Segments.Length; s++)
         {
+            var e = residuals[s];
             var first = window.Segments[s].Start + order;
-            for (var c = 0; c < source.Length; c++)
+            for (var i = 0; i < e.Length; i += TallSkinnyQr.BlockRows)
             {
-                x[source[c]].AsSpan(first, residuals[s].Length).CopyTo(columns[c].AsSpan(row));
+                var rows = Math.Min(TallSkinnyQr.BlockRows, e.Length - i);
+                for (var c = 0; c < k; c++)
+                {
+                    x[source[c]].AsSpan(first + i, rows).CopyTo(qr.Block(c));
+                }
+
+                var target = qr.Block(k);
+                for (var r = 0; r < rows; r++)
+                {
+                    target[r] = e[i + r] * e[i + r] / meanSquare;
+                }
+
+                qr.Commit(rows);
             }
-
-            row += residuals[s].Length;
         }
 
-        for (var i = 0; i < squares.Length; i++)
-        {
-            squares[i] /= meanSquare;
-        }
-
-        return new VarianceSeason(vDesign, HarmonicRegression.Ols(columns, squares).Coefficients, floor);
+        return new VarianceSeason(vDesign, HarmonicRegression.Solve(qr).Coefficients, floor);
     }
 
     /// <summary>Ljung-Box on p + 24 lags (hourly) or p + 10 (daily), df = lags - p (common practice, no source).</summary>

@@ -68,6 +68,65 @@ public sealed class HarmonicRegressionTests(ITestOutputHelper output)
         }
     }
 
+    [Theory]
+    [InlineData("Europe/Berlin")]
+    [InlineData("America/St_Johns")]
+    public void HourlyDesignRowsEqualTheCalendarDefinitionAcrossYearEndsLeapDaysAndMinutes(string zoneId)
+    {
+        // Every 37 minutes over 2015-12-30 .. 2017-01-02 (a leap year, two year ends, a :30 zone offset).
+        var times = Enumerable.Range(0, 1500 * 24 * 60 / 37 / 4).Select(i => new DateTimeOffset(2015, 12, 30, 0, 0, 0, TimeSpan.Zero).AddMinutes(37.0 * i)).ToArray();
+        var design = new HarmonicDesign(GridCadence.Hourly, zoneId, 2, 3);
+        var zone = TimeZoneInfo.FindSystemTimeZoneById(zoneId);
+
+        var x = design.ColumnMajor(times);
+
+        for (var i = 0; i < times.Length; i++)
+        {
+            // The documented definition: local standard time s, hour = hour(s) + minute(s)/60, doy = dayOfYear(s) - 1 + hour/24.
+            var s = times[i].UtcDateTime + zone.BaseUtcOffset;
+            var hour = s.Hour + s.Minute / 60.0;
+            var doy = s.DayOfYear - 1 + hour / 24;
+            Assert.Equal(1.0, x[0][i]);
+            for (var k = 1; k <= 2; k++)
+            {
+                Assert.Equal(Math.Cos(2 * Math.PI * k * doy / HarmonicDesign.YearDays), x[2 * k - 1][i], 1e-12);
+                Assert.Equal(Math.Sin(2 * Math.PI * k * doy / HarmonicDesign.YearDays), x[2 * k][i], 1e-12);
+            }
+
+            for (var j = 1; j <= 3; j++)
+            {
+                Assert.Equal(Math.Cos(2 * Math.PI * j * hour / 24), x[4 + 2 * j - 1][i], 1e-12);
+                Assert.Equal(Math.Sin(2 * Math.PI * j * hour / 24), x[4 + 2 * j][i], 1e-12);
+            }
+        }
+    }
+
+    [Fact]
+    public void GlsOverTwoSegmentsEqualsOlsOnExplicitlyPrewhitenedRows()
+    {
+        // Segment lengths that are not multiples of the QR block, so blocks end inside and at segment ends.
+        var times = Enumerable.Range(0, 3000).Select(i => SomeGrid.Start.AddHours(i)).ToArray();
+        var design = new HarmonicDesign(GridCadence.Hourly, "UTC", 0, 3);
+        var x = design.ColumnMajor(times);
+        var random = new Random(11);
+        var y = times.Select((_, i) => 5 + 3 * x[1][i] + random.NextDouble()).ToArray();
+        (int Start, int Length)[] segments = [(0, 1301), (1301, 1699)];
+        double[] phi = [0.6, -0.2, 0.1];
+
+        var gls = HarmonicRegression.Gls(x, y, segments, phi);
+
+        double[] Whiten(double[] v) => [.. segments.SelectMany(seg => Enumerable.Range(seg.Start + phi.Length, seg.Length - phi.Length)
+            .Select(t => v[t] - phi[0] * v[t - 1] - phi[1] * v[t - 2] - phi[2] * v[t - 3]))];
+        var ols = HarmonicRegression.Ols(x.Select(Whiten).ToArray(), Whiten(y));
+        Assert.Equal(ols.Df, gls.Df);
+        Assert.Equal(ols.Sigma, gls.Sigma, 1e-12);
+        for (var i = 0; i < ols.Coefficients.Length; i++)
+        {
+            Assert.Equal(ols.Coefficients[i], gls.Coefficients[i], 1e-10);
+            Assert.Equal(ols.StdErrors[i], gls.StdErrors[i], 1e-12);
+        }
+    }
+
     [Fact]
     public void AnnualTermsOnAFewDaysAreRefusedAsTooShort()
     {
