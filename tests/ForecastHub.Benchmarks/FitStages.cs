@@ -35,6 +35,7 @@ internal static class FitStages
         var squares = residuals[0].Select(e => e * e).ToArray();
         double[][] vColumns = [.. Enumerable.Range(0, 5).Concat(Enumerable.Range(5, 4)).Select(c => x[c][ar.Order..])];
         stages.Add(("whole SiteModelFitter.Fit", () => SiteModelFitter.Fit(grid, FitVerb.Settings)));
+        stages.Add(("whole fit, calibrated", () => SiteModelFitter.Fit(grid, FitVerb.Settings with { IntervalMethod = IntervalMethod.Calibrated })));
         stages.Add(("design (11 columns)", () => design.ColumnMajor(times)));
         stages.Add(("OLS QR 87,600 x 11", () => HarmonicRegression.Ols(x, y)));
         stages.Add(("anomalies", () => Subtract(x, y, ols.Coefficients)));

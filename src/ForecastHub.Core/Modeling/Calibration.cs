@@ -1,5 +1,6 @@
 using ForecastHub.Core.Forecasting;
 using ForecastHub.Core.Grid;
+using ForecastHub.Core.Linear;
 using ForecastHub.Core.Series;
 using MathNet.Numerics.Distributions;
 
@@ -54,7 +55,9 @@ public static class Calibration
         return row[i - 1] + w * (row[i] - row[i - 1]);
     }
 
-    internal static CalibrationTable? Build(SeriesWindow window, SiteModel model, ModelSettings settings, List<string> notes)
+    /// <param name="x">The climatology design columns at the window's times (null for a level-only design): fold
+    /// fits take their prefixes, and the fold models' climatology and variance factors are combinations of them.</param>
+    internal static CalibrationTable? Build(SeriesWindow window, SiteModel model, ModelSettings settings, double[][]? x, List<string> notes)
     {
         var horizons = Horizons(model.Cadence);
         var errors = Enumerable.Range(0, horizons).Select(_ => new List<double>()).ToArray();
@@ -68,7 +71,8 @@ public static class Calibration
             SiteModel fold;
             try
             {
-                fold = SiteModelFitter.FitCore(window.Prefix(trainCount), model.Cadence, model.TimeZone, settings, model.Climatology.Design, [], diagnostics: false);
+                var prefix = x?.Select(column => column[..trainCount]).ToArray();
+                fold = SiteModelFitter.FitCore(window.Prefix(trainCount), model.Cadence, model.TimeZone, settings, model.Climatology.Design, prefix, [], diagnostics: false);
             }
             catch (SeriesException)
             {
@@ -76,7 +80,7 @@ public static class Calibration
             }
 
             folds++;
-            origins += CollectErrors(window, fold, trainCount - 1, testEnd - 1, errors);
+            origins += CollectErrors(window, fold, x, trainCount - 1, testEnd - 1, errors);
         }
 
         var total = errors.Sum(e => e.Count);
@@ -89,13 +93,17 @@ public static class Calibration
         return new CalibrationTable(Probabilities, QuantileRows(errors), total, origins, folds);
     }
 
-    private static int CollectErrors(SeriesWindow window, SiteModel fold, int firstOrigin, int lastOrigin, List<double>[] errors)
+    private static int CollectErrors(SeriesWindow window, SiteModel fold, double[][]? x, int firstOrigin, int lastOrigin, List<double>[] errors)
     {
         var ar = fold.Ar;
         var horizons = errors.Length;
-        var climatology = fold.Climatology.Mean(window.Times);
-        var g = fold.VarianceSeason.Factors(window.Times);
-        var anomalies = window.Values.Select((v, i) => v - climatology[i]).ToArray();
+        var (anomalies, g) = MeanAndFactors(window, fold, x);
+        for (var i = 0; i < anomalies.Length; i++)
+        {
+            // The climatology mean is replaced by the anomaly in place.
+            anomalies[i] = window.Values[i] - anomalies[i];
+        }
+
         var psi = ArForecast.PsiWeights(ar.Coefficients, horizons);
         var mean = new double[horizons];
         var sd = new double[horizons];
@@ -123,6 +131,38 @@ public static class Calibration
         }
 
         return count;
+    }
+
+    /// <summary>The fold model's climatology mean and variance factors at the window's times; from the design columns
+    /// when given (the same sums, term by term, as HarmonicDesign.Evaluate), else from the times.</summary>
+    private static (double[] Mean, double[] Factors) MeanAndFactors(SeriesWindow window, SiteModel fold, double[][]? x)
+    {
+        if (x is null)
+        {
+            return (fold.Climatology.Mean(window.Times), fold.VarianceSeason.Factors(window.Times));
+        }
+
+        var mean = new double[window.Count];
+        var terms = fold.Climatology.Terms;
+        for (var c = 0; c < terms.Count; c++)
+        {
+            SpanMath.Axpy(terms[c].Coefficient, x[c], mean);
+        }
+
+        var season = fold.VarianceSeason;
+        var g = new double[window.Count];
+        var source = SiteModelFitter.VarianceColumns(fold.Climatology.Design, season.Design);
+        for (var c = 0; c < source.Length; c++)
+        {
+            SpanMath.Axpy(season.Coefficients[c], x[source[c]], g);
+        }
+
+        for (var i = 0; i < g.Length; i++)
+        {
+            g[i] = Math.Max(season.Floor, g[i]);
+        }
+
+        return (mean, g);
     }
 
     private static double[][] QuantileRows(List<double>[] errors)

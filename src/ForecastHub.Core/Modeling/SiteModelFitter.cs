@@ -40,10 +40,11 @@ public static class SiteModelFitter
         var window = SeriesWindow.FromGrid(grid, settings.FitWindowDays);
         var notes = new List<string>();
         var design = ResolveDesign(window, grid.Cadence, grid.TimeZone, settings.Seasonality, notes);
-        var model = FitCore(window, grid.Cadence, grid.TimeZone, settings, design, notes, diagnostics: true);
+        var x = design.Columns == 1 ? null : design.ColumnMajor(window.Times);
+        var model = FitCore(window, grid.Cadence, grid.TimeZone, settings, design, x, notes, diagnostics: true);
         if (settings.IntervalMethod == IntervalMethod.Calibrated)
         {
-            var table = Calibration.Build(window, model, settings, notes);
+            var table = Calibration.Build(window, model, settings, x, notes);
             model = model with { Calibration = table };
         }
 
@@ -76,7 +77,8 @@ public static class SiteModelFitter
         return new HarmonicDesign(cadence, timeZone, annual, diurnal);
     }
 
-    internal static SiteModel FitCore(SeriesWindow window, GridCadence cadence, string timeZone, ModelSettings settings, HarmonicDesign design, List<string> notes, bool diagnostics)
+    /// <param name="x">The design columns at the window's times (null for a level-only design).</param>
+    internal static SiteModel FitCore(SeriesWindow window, GridCadence cadence, string timeZone, ModelSettings settings, HarmonicDesign design, double[][]? x, List<string> notes, bool diagnostics)
     {
         var n = window.Count;
         if (n < Math.Max(MinimumPoints, design.Columns + 2))
@@ -99,7 +101,6 @@ public static class SiteModelFitter
         }
 
         var levelOnly = design.Columns == 1;
-        var x = levelOnly ? null : design.ColumnMajor(window.Times);
         double[] coefficients;
         double[] stdErrors;
         double residualSd;
@@ -191,9 +192,7 @@ public static class SiteModelFitter
             return new VarianceSeason(vDesign with { AnnualHarmonics = 0, DiurnalHarmonics = 0 }, [1.0], floor);
         }
 
-        var source = Enumerable.Range(0, 1 + (2 * vDesign.AnnualHarmonics))
-            .Concat(Enumerable.Range(1 + (2 * design.AnnualHarmonics), 2 * vDesign.DiurnalHarmonics))
-            .ToArray();
+        var source = VarianceColumns(design, vDesign);
         var k = source.Length;
         var qr = new TallSkinnyQr(k + 1);
         for (var s = 0; s < window.Segments.Length; s++)
@@ -220,6 +219,10 @@ public static class SiteModelFitter
 
         return new VarianceSeason(vDesign, HarmonicRegression.Solve(qr).Coefficients, floor);
     }
+
+    /// <summary>Indices of the variance design's columns (level, its annual and diurnal terms) among the climatology's.</summary>
+    internal static int[] VarianceColumns(HarmonicDesign climatology, HarmonicDesign variance) =>
+        [.. Enumerable.Range(0, 1 + (2 * variance.AnnualHarmonics)).Concat(Enumerable.Range(1 + (2 * climatology.AnnualHarmonics), 2 * variance.DiurnalHarmonics))];
 
     /// <summary>Ljung-Box on p + 24 lags (hourly) or p + 10 (daily), df = lags - p (common practice, no source).</summary>
     private static ResidualDiagnostics Diagnose(IReadOnlyList<double[]> residuals, int order, GridCadence cadence)
