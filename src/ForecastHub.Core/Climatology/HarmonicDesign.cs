@@ -38,32 +38,19 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
     {
         ArgumentNullException.ThrowIfNull(times);
         var rows = new RowFiller(this);
-        var n = times.Count;
         var columns = new double[Columns][];
         for (var c = 0; c < columns.Length; c++)
         {
-            columns[c] = GC.AllocateUninitializedArray<double>(n);
+            columns[c] = GC.AllocateUninitializedArray<double>(times.Count);
         }
 
-        // Row by row into a small row-major scratch, then transposed column by column (contiguous writes).
-        const int chunk = 512;
-        var width = Columns;
-        var scratch = new double[chunk * width];
-        for (var start = 0; start < n; start += chunk)
+        Span<double> row = stackalloc double[Columns];
+        for (var i = 0; i < times.Count; i++)
         {
-            var length = Math.Min(chunk, n - start);
-            for (var i = 0; i < length; i++)
+            rows.Fill(times[i], row);
+            for (var c = 0; c < row.Length; c++)
             {
-                rows.Fill(times[start + i], scratch.AsSpan(i * width, width));
-            }
-
-            for (var c = 0; c < width; c++)
-            {
-                var column = columns[c].AsSpan(start, length);
-                for (var i = 0; i < column.Length; i++)
-                {
-                    column[i] = scratch[(i * width) + c];
-                }
+                columns[c][i] = row[c];
             }
         }
 
@@ -99,15 +86,9 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
         return result;
     }
 
-    /// <summary>cos/sin(k a) for k = 1..count by the angle-addition recurrence (two trig calls per row).</summary>
-    private static void Harmonics(double angle, int count, Span<double> target)
+    /// <summary>cos/sin(k a) for k = 1..count by the angle-addition recurrence, from cos/sin(a).</summary>
+    private static void Harmonics(double c1, double s1, int count, Span<double> target)
     {
-        if (count == 0)
-        {
-            return;
-        }
-
-        var (s1, c1) = Math.SinCos(angle);
         var (c, s) = (c1, s1);
         for (var k = 0; k < count; k++)
         {
@@ -118,9 +99,13 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
     }
 
     /// <summary>
-    /// Design rows for a run of times. Hourly: the local standard time is taken from ticks, with the
-    /// current year's first day cached and the diurnal terms cached per minute of the day; the same
-    /// numbers as DateTime's Hour, Minute and DayOfYear, without their calendar arithmetic per row.
+    /// Design rows for a run of times without calendar arithmetic or trig calls per row. A time is
+    /// reduced to (0-based day of year d, minute of the day m): hourly from the ticks of local
+    /// standard time with the current year's first day cached (the same numbers as DateTime's
+    /// DayOfYear, Hour and Minute), daily from the local date with m = 0. The annual angle
+    /// 2 pi (d + hour/24) / 365.25 is the sum of a per-day and a per-minute angle, so its cos/sin come
+    /// from two small tables by the addition formula (within an ulp or two of direct calls); the
+    /// diurnal terms are tabulated per minute of the day.
     /// </summary>
     private sealed class RowFiller
     {
@@ -128,9 +113,11 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
         private readonly HarmonicDesign design;
         private readonly TimeZoneInfo zone;
         private readonly long offsetTicks;
-        private readonly int annualColumns;
-        private double[]? diurnal;
-        private bool[]? diurnalKnown;
+        private readonly double[] dayCos = new double[367];
+        private readonly double[] daySin = new double[367];
+        private readonly double[] minuteCos = new double[MinutesPerDay];
+        private readonly double[] minuteSin = new double[MinutesPerDay];
+        private readonly double[] diurnal;
         private long yearFirstDay = long.MaxValue;
         private long nextYearFirstDay = long.MinValue;
 
@@ -139,23 +126,40 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
             this.design = design;
             zone = GridBuilder.FindZone(design.TimeZone);
             offsetTicks = zone.BaseUtcOffset.Ticks;
-            annualColumns = 2 * design.AnnualHarmonics;
+            for (var d = 0; d < dayCos.Length; d++)
+            {
+                (daySin[d], dayCos[d]) = Math.SinCos(2 * Math.PI * d / YearDays);
+            }
+
+            var width = 2 * design.DiurnalHarmonics;
+            diurnal = new double[MinutesPerDay * width];
+            for (var m = 0; m < MinutesPerDay; m++)
+            {
+                var hour = (m / 60) + (m % 60 / 60.0);
+                (minuteSin[m], minuteCos[m]) = Math.SinCos(2 * Math.PI * (hour / 24) / YearDays);
+                var (s1, c1) = Math.SinCos(2 * Math.PI * hour / 24);
+                Harmonics(c1, s1, design.DiurnalHarmonics, diurnal.AsSpan(m * width, width));
+            }
         }
 
         public void Fill(DateTimeOffset time, Span<double> row)
         {
+            var (day, minute) = design.Cadence == GridCadence.Daily ? (GridBuilder.LocalDate(time, zone).DayOfYear - 1, 0) : Hourly(time);
             row[0] = 1;
-            if (design.Cadence == GridCadence.Daily)
+            if (design.AnnualHarmonics > 0)
             {
-                double doy = GridBuilder.LocalDate(time, zone).DayOfYear - 1;
-                Harmonics(2 * Math.PI * doy / YearDays, design.AnnualHarmonics, row[1..]);
-                Harmonics(0, design.DiurnalHarmonics, row[(1 + annualColumns)..]);
-                return;
+                var (cd, sd, cm, sm) = (dayCos[day], daySin[day], minuteCos[minute], minuteSin[minute]);
+                Harmonics((cd * cm) - (sd * sm), (sd * cm) + (cd * sm), design.AnnualHarmonics, row[1..]);
             }
 
+            var width = 2 * design.DiurnalHarmonics;
+            diurnal.AsSpan(minute * width, width).CopyTo(row[(1 + (2 * design.AnnualHarmonics))..]);
+        }
+
+        private (int Day, int Minute) Hourly(DateTimeOffset time)
+        {
             var ticks = time.UtcTicks + offsetTicks;
             var day = ticks / TimeSpan.TicksPerDay;
-            var minuteOfDay = (int)(ticks % TimeSpan.TicksPerDay / TimeSpan.TicksPerMinute);
             if (day < yearFirstDay || day >= nextYearFirstDay)
             {
                 var year = new DateTime(day * TimeSpan.TicksPerDay, DateTimeKind.Unspecified).Year;
@@ -163,25 +167,7 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
                 nextYearFirstDay = year < DateTime.MaxValue.Year ? new DateTime(year + 1, 1, 1).Ticks / TimeSpan.TicksPerDay : long.MaxValue;
             }
 
-            var hour = (minuteOfDay / 60) + (minuteOfDay % 60 / 60.0);
-            var doyHourly = day - yearFirstDay + (hour / 24);
-            Harmonics(2 * Math.PI * doyHourly / YearDays, design.AnnualHarmonics, row[1..]);
-            DiurnalTerms(minuteOfDay, hour).CopyTo(row[(1 + annualColumns)..]);
-        }
-
-        private ReadOnlySpan<double> DiurnalTerms(int minuteOfDay, double hour)
-        {
-            var width = 2 * design.DiurnalHarmonics;
-            diurnal ??= new double[MinutesPerDay * width];
-            diurnalKnown ??= new bool[MinutesPerDay];
-            var terms = diurnal.AsSpan(minuteOfDay * width, width);
-            if (!diurnalKnown[minuteOfDay])
-            {
-                Harmonics(2 * Math.PI * hour / 24, design.DiurnalHarmonics, terms);
-                diurnalKnown[minuteOfDay] = true;
-            }
-
-            return terms;
+            return ((int)(day - yearFirstDay), (int)(ticks % TimeSpan.TicksPerDay / TimeSpan.TicksPerMinute));
         }
     }
 }
