@@ -1,3 +1,4 @@
+using System.Buffers;
 using System.Numerics;
 using ForecastHub.Core.Correlation;
 using ForecastHub.Core.Series;
@@ -29,8 +30,9 @@ internal static class BurgEstimator
         {
             var x = segments[s];
             var n = x.Length;
-            var u = GC.AllocateUninitializedArray<double>(n + 1);
-            var v = GC.AllocateUninitializedArray<double>(n);
+            // Pooled scratch (a fit runs Burg on long series twice); only the first n + 1 and n elements are used.
+            var u = ArrayPool<double>.Shared.Rent(n + 1);
+            var v = ArrayPool<double>.Shared.Rent(n);
             u[0] = 0;
             for (var t = 0; t < n; t++)
             {
@@ -56,7 +58,7 @@ internal static class BurgEstimator
         var denominator = 0.0;
         for (var s = 0; s < segments.Count; s++)
         {
-            var (num, den) = Sums(backward[s], forward[s], 1, backward[s].Length);
+            var (num, den) = Sums(backward[s], forward[s], 1, segments[s].Length);
             numerator += num;
             denominator += den;
         }
@@ -80,7 +82,7 @@ internal static class BurgEstimator
             {
                 var u = forward[s];
                 var v = backward[s];
-                var n = v.Length;
+                var n = segments[s].Length;
 
                 // Chunks from the top down: after a chunk [lo, hi] is updated, v[lo..hi] and u[lo+1..hi+1] are final
                 // (v[hi+1] from the chunk above), so the next order's sums over [lo+1, hi+1] can be taken while in cache.
@@ -98,6 +100,12 @@ internal static class BurgEstimator
 
             recursion[p] = recursion[p - 1] * (1 - phi * phi);
             energy[p] = errorSum / (2.0 * rows);
+        }
+
+        for (var s = 0; s < segments.Count; s++)
+        {
+            ArrayPool<double>.Shared.Return(forward[s]);
+            ArrayPool<double>.Shared.Return(backward[s]);
         }
 
         return new LevinsonPath(coefficients, withEnergy ? energy : recursion, partials);

@@ -1,3 +1,4 @@
+using System.Buffers;
 using ForecastHub.Core.Linear;
 using ForecastHub.Core.Series;
 using MathNet.Numerics.Distributions;
@@ -66,7 +67,10 @@ public static class Autocorrelation
         foreach (var segment in summary.Segments)
         {
             var n = segment.Length;
-            var centered = new double[n];
+
+            // A pooled scratch: fits call this several times on long series, and fresh large arrays cost page faults.
+            var rented = ArrayPool<double>.Shared.Rent(n);
+            var centered = rented.AsSpan(0, n);
             for (var t = 0; t < n; t++)
             {
                 centered[t] = segment[t] - mean;
@@ -75,8 +79,10 @@ public static class Autocorrelation
             var lags = Math.Min(maxLag, n - 1);
             for (var k = 0; k <= lags; k++)
             {
-                c[k] += SpanMath.Dot(centered.AsSpan(0, n - k), centered.AsSpan(k));
+                c[k] += SpanMath.Dot(centered[..(n - k)], centered[k..]);
             }
+
+            ArrayPool<double>.Shared.Return(rented);
         }
 
         for (var k = 0; k <= maxLag; k++)

@@ -28,9 +28,9 @@ internal sealed class SeriesWindow
     {
         var last = grid.LastValueIndex;
         var from = grid.Times[last].AddDays(-windowDays);
-        var times = new List<DateTimeOffset>();
-        var values = new List<double>();
-        var interpolated = new List<bool>();
+        var times = new List<DateTimeOffset>(grid.Count);
+        var values = new List<double>(grid.Count);
+        var interpolated = new List<bool>(grid.Count);
         var segments = new List<(int, int)>();
         foreach (var s in grid.Segments)
         {
