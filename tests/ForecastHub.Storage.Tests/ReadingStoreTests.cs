@@ -62,15 +62,40 @@ public sealed class ReadingStoreTests
         var (db, store) = await WithSite();
         using var _ = db;
         var random = new Random(3);
-        var values = Enumerable.Range(0, 5_000)
+        // Not a multiple of the rows per INSERT statement, so the last, shorter statement is covered too.
+        var values = Enumerable.Range(0, 5_037)
             .Select(i => i % 2 == 0 ? Math.Round((random.NextDouble() * 150) - 90, 2) : ((random.NextDouble() * 150) - 90) / 7)
             .ToArray();
-        var incoming = values.Select((v, i) => new IncomingReading(i, i * 60_000L, v, (v * 9 / 5) + 32, "F")).ToArray();
+        var incoming = values.Select((v, i) => i % 3 == 0
+            ? new IncomingReading(i, i * 60_000L, v, v + 273.15, "K")
+            : new IncomingReading(i, i * 60_000L, v, (v * 9 / 5) + 32, "F")).ToArray();
 
         await store.IngestAsync("site-a", incoming, ConflictPolicy.Reject, Received);
 
         var stored = await store.ReadAsync("site-a", long.MinValue, long.MaxValue, null, 10_000);
         Assert.Equal(incoming.Select(r => (r.TimeMs, r.ValueC, r.OriginalValue, r.OriginalUnit)),
             stored!.Select(r => (r.TimeMs, r.ValueC, r.OriginalValue, r.OriginalUnit)));
+    }
+
+    [Theory]
+    [InlineData(1)]
+    [InlineData(99)]
+    [InlineData(100)]
+    [InlineData(101)]
+    [InlineData(250)]
+    public async Task EveryNewReadingIsStoredWithItsFlagsAndReceiptTimeWhateverTheBatchSize(int count)
+    {
+        var (db, store) = await WithSite();
+        using var _ = db;
+        // One reading above the site's limit (60 C), so one stored row carries a flag.
+        var values = Enumerable.Range(0, count).Select(i => i == count / 2 ? 61.0 : 10.0 + (i % 5)).ToArray();
+
+        await store.IngestAsync("site-a", DailyReadings(0, values), ConflictPolicy.Reject, Received);
+
+        Assert.Equal(count, db.Scalar<int>("SELECT count(*) FROM readings;"));
+        Assert.Equal(count, db.Scalar<int>($"SELECT count(*) FROM readings WHERE received_at_ms = {Received.ToUnixTimeMilliseconds()};"));
+        var stored = await store.ReadAsync("site-a", long.MinValue, long.MaxValue, null, 1_000);
+        Assert.Equal(values, stored!.Select(r => r.ValueC));
+        Assert.Equal([count / 2], stored!.Select((r, i) => (r, i)).Where(x => x.r.Flags == QualityFlags.OutOfRange).Select(x => x.i));
     }
 }

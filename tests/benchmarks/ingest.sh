@@ -32,12 +32,12 @@ done
 
 cpu_ticks() { awk '{ print $14 + $15 }' "/proc/$pid/stat"; }
 ticks_before=$(cpu_ticks)
-service_out=$(FORECASTHUB_URL="$url" FORECASTHUB_KEY="$key" \
+service_out=$(FORECASTHUB_URL="$url" FORECASTHUB_KEY="$key" FORECASTHUB_PID="$pid" \
   dotnet tests/ForecastHub.Benchmarks/bin/Release/net10.0/ForecastHub.Benchmarks.dll ingest)
 echo "$service_out" | grep -v '^service_rate='
 service_rate=$(echo "$service_out" | sed -n 's/^service_rate=//p')
 ticks=$(( $(cpu_ticks) - ticks_before ))
-echo "service CPU (user+system) for the run: $(awk -v t="$ticks" -v hz="$(getconf CLK_TCK)" 'BEGIN { printf "%.1f", t / hz }') s"
+echo "service CPU (user+system) for the whole run, with site set-up, warm-up and start-up compilation: $(awk -v t="$ticks" -v hz="$(getconf CLK_TCK)" 'BEGIN { printf "%.1f", t / hz }') s"
 kill "$pid"; pid=""
 
 engine_ms=$(sqlite3 "$work/engine.db" <<'SQL' | tail -1
