@@ -10,9 +10,11 @@ namespace ForecastHub.Core.Diagnostics;
 /// </summary>
 public static class JarqueBera
 {
-    public static JarqueBeraResult Test(IReadOnlyList<double[]> residuals)
+    public static JarqueBeraResult Test(IReadOnlyList<double[]> residuals) => Test(ResidualSummary.Of(residuals));
+
+    /// <summary>From moments already computed (a fit reports them too, so the residuals are read once).</summary>
+    internal static JarqueBeraResult Test(ResidualSummary moments)
     {
-        var moments = ResidualSummary.Of(residuals);
         if (moments.Sd == 0)
         {
             throw new SeriesException(SeriesProblem.Constant, "Constant residuals have no skewness or kurtosis.");

@@ -230,7 +230,7 @@ public static class SiteModelFitter
         var summary = ResidualSummary.Of(residuals);
         var lags = order + (cadence == GridCadence.Hourly ? 24 : 10);
         var ljungBox = summary.Count > lags + 1 && summary.Sd > 0 ? LjungBox.Test(residuals, lags, order) : null;
-        var jarqueBera = summary.Sd > 0 ? JarqueBera.Test(residuals) : null;
+        var jarqueBera = summary.Sd > 0 ? JarqueBera.Test(summary) : null;
         return new ResidualDiagnostics(ljungBox, jarqueBera, summary);
     }
 }
