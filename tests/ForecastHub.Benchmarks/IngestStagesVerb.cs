@@ -91,11 +91,10 @@ internal sealed class IngestStagesVerb : IBenchmarkVerb
         clock.Restart();
         var read = await RequestBody.ReadAsync(context.Request, ObservationsEndpoints.MaxBodyBytes, CancellationToken.None).ConfigureAwait(false);
         Step("body read");
-        using var document = RequestBody.ParseJson(read!, out _);
-        var (rows, unit, _, _, _) = JsonReadings.Parse(document!.RootElement, ObservationsEndpoints.MaxReadings);
-        Step("JSON parse (JsonDocument + rows)");
-        var (valid, _) = ReadingValidation.Validate(rows!, unit ?? TemperatureUnits.Celsius, now);
-        Step("validation (times, units)");
+        var valid = Utf8JsonReadings.TryRead(read!, null, now, ObservationsEndpoints.MaxReadings)!.Valid;
+        Step("JSON read + row rules (fast path)");
+        _ = ObservationsEndpoints.ReadJsonStrict(read!, null, now);
+        Step("(strict path instead: JsonDocument)");
 
         using var connection = database.Open();
         using var transaction = connection.BeginTransaction(deferred: false);

@@ -77,6 +77,69 @@ public static class IsoTime
         return true;
     }
 
+    /// <summary>
+    /// Fast path for the common shape <c>YYYY-MM-DDTHH:MM:SS[.f{1,9}](Z|+HH:MM|-HH:MM)</c> read straight
+    /// from UTF-8 (years 0002-9998): the instant in UTC milliseconds, truncated like
+    /// <see cref="TryParse"/>. False for anything else, valid or not: the caller then runs the full
+    /// parser, which owns every rejection and its message.
+    /// </summary>
+    public static bool TryParseCommonUtf8(ReadOnlySpan<byte> s, out long utcMs)
+    {
+        utcMs = 0;
+        if (s.Length < 20 || s[4] != '-' || s[7] != '-' || s[10] != 'T' || s[13] != ':' || s[16] != ':'
+            || !Digits(s, 0, 4, out var year) || !Digits(s, 5, 2, out var month) || !Digits(s, 8, 2, out var day)
+            || !Digits(s, 11, 2, out var hour) || !Digits(s, 14, 2, out var minute) || !Digits(s, 17, 2, out var second))
+        {
+            return false;
+        }
+        var i = 19;
+        var fractionMs = 0;
+        if (s[i] == '.')
+        {
+            var start = ++i;
+            while (i < s.Length && char.IsAsciiDigit((char)s[i]))
+            {
+                if (i - start < 3)
+                {
+                    fractionMs = (fractionMs * 10) + (s[i] - '0');
+                }
+                i++;
+            }
+            if (i == start || i - start > 9)
+            {
+                return false;
+            }
+            for (var k = i - start; k < 3; k++)
+            {
+                fractionMs *= 10;
+            }
+        }
+        int offsetMinutes;
+        if (i == s.Length - 1 && s[i] == 'Z')
+        {
+            offsetMinutes = 0;
+        }
+        else if (i == s.Length - 6 && (s[i] == '+' || s[i] == '-') && s[i + 3] == ':'
+                 && Digits(s, i + 1, 2, out var offsetHours) && Digits(s, i + 4, 2, out var offsetMins)
+                 && offsetMins <= 59 && (offsetHours < 14 || (offsetHours == 14 && offsetMins == 0)))
+        {
+            offsetMinutes = (s[i] == '-' ? -1 : 1) * ((offsetHours * 60) + offsetMins);
+        }
+        else
+        {
+            return false;
+        }
+        if (year is < 2 or > 9998 || month is < 1 or > 12 || day < 1 || day > DateTime.DaysInMonth(year, month)
+            || hour > 23 || minute > 59 || second > 59)
+        {
+            return false;
+        }
+        var localMs = (new DateTime(year, month, day, hour, minute, second, DateTimeKind.Unspecified).Ticks - DateTime.UnixEpoch.Ticks)
+            / TimeSpan.TicksPerMillisecond;
+        utcMs = localMs + fractionMs - (offsetMinutes * 60_000L);
+        return true;
+    }
+
     /// <summary>The form every answer uses: UTC with milliseconds only when there are some.</summary>
     public static string Format(DateTimeOffset time) =>
         time.UtcDateTime.ToString(time.Millisecond == 0 ? "yyyy-MM-dd'T'HH:mm:ss'Z'" : "yyyy-MM-dd'T'HH:mm:ss.fff'Z'",
@@ -135,6 +198,20 @@ public static class IsoTime
         for (var k = start; k < start + count; k++)
         {
             if (!char.IsAsciiDigit(s[k]))
+            {
+                return false;
+            }
+            value = (value * 10) + (s[k] - '0');
+        }
+        return true;
+    }
+
+    private static bool Digits(ReadOnlySpan<byte> s, int start, int count, out int value)
+    {
+        value = 0;
+        for (var k = start; k < start + count; k++)
+        {
+            if (!char.IsAsciiDigit((char)s[k]))
             {
                 return false;
             }

@@ -1,3 +1,5 @@
+using ForecastHub.Storage.Readings;
+
 namespace ForecastHub.Api.Observations;
 
 /// <summary>Answer to a post: how many readings were stored new, were already there, replaced an
@@ -24,6 +26,11 @@ public sealed record GridPage(string SiteId, string Resolution, string Cadence, 
 /// <summary>A reading as sent, before validation: the raw time text, the value if it was a number,
 /// the row's own unit, or why the row could not even be read.</summary>
 internal readonly record struct RawReading(int Index, int? Line, string? Time, double? Value, string? Unit, string? Error);
+
+/// <summary>A request's readings after the row rules: how many rows were sent, the valid readings
+/// (with their request index), the refused rows, and the time text and CSV line of a row by index.</summary>
+internal sealed record ReadingBatch(int Count, List<IncomingReading> Valid, List<RejectedReading> Rejected,
+    Func<int, string?> TimeText, Func<int, int?> Line);
 
 /// <summary>The JSON body of a post as the OpenAPI document shows it; the handler parses the body
 /// itself, strictly, and also reads <c>text/csv</c> (<c>time,value[,unit]</c>).</summary>

@@ -60,37 +60,24 @@ public static class ObservationsEndpoints
         {
             return ApiProblems.TooLarge($"The body is larger than {MaxBodyBytes / (1024 * 1024)} MiB; send at most {MaxReadings} readings per request.");
         }
-        var (rows, bodyUnit, problem) = isJson ? ParseJson(body) : ParseCsv(body);
+        var now = clock.GetUtcNow();
+        var (batch, problem) = isJson ? ReadJson(body, unit, now) : ReadCsv(body, unit, now);
         if (problem is not null)
         {
             return problem;
         }
-        if (bodyUnit is not null && !TemperatureUnits.IsKnown(bodyUnit))
-        {
-            return ApiProblems.BadRequest("unit", $"unit '{IsoTime.Clip(bodyUnit)}' is not known: {TemperatureUnits.UnknownUnitMessage}");
-        }
-        if (bodyUnit is not null && unit is not null && bodyUnit != unit)
-        {
-            return ApiProblems.BadRequest("unit", $"The body says unit '{bodyUnit}' but ?unit= says '{unit}'; send one.");
-        }
-        if (rows!.Count == 0)
-        {
-            return ApiProblems.BadRequest("readings", "The request holds no readings.");
-        }
-
-        var (valid, rejected) = ReadingValidation.Validate(rows, bodyUnit ?? unit ?? TemperatureUnits.Celsius, clock.GetUtcNow());
-        metrics.Readings.Inc(rejected.Count, "rejected");
+        metrics.Readings.Inc(batch!.Rejected.Count, "rejected");
         var policy = onConflict == "replace" ? ConflictPolicy.Replace : ConflictPolicy.Reject;
-        var result = await readings.IngestAsync(siteId, valid, policy, clock.GetUtcNow(), cancellationToken).ConfigureAwait(false);
+        var result = await readings.IngestAsync(siteId, batch.Valid, policy, clock.GetUtcNow(), cancellationToken).ConfigureAwait(false);
         if (result is null)
         {
             return SitesEndpoints.NoSuchSite(siteId);
         }
-        var answer = Summarise(rows, valid, rejected, result);
+        var answer = Summarise(batch, result);
         if (answer.Accepted + answer.Duplicates + answer.Replaced == 0)
         {
             return TypedResults.Problem(statusCode: StatusCodes.Status422UnprocessableEntity, title: "No reading stored",
-                detail: $"Every one of the {rows.Count} readings was rejected; see 'rejected' for each row's reason.",
+                detail: $"Every one of the {batch.Count} readings was rejected; see 'rejected' for each row's reason.",
                 extensions: new Dictionary<string, object?>
                 {
                     ["accepted"] = 0, ["duplicates"] = 0, ["replaced"] = 0, ["flagged"] = 0, ["rejected"] = answer.Rejected,
@@ -99,9 +86,9 @@ public static class ObservationsEndpoints
         return TypedResults.Ok(answer);
     }
 
-    private static ObservationsAnswer Summarise(IReadOnlyList<RawReading> rows, List<IncomingReading> valid,
-        List<RejectedReading> rejected, IngestResult result)
+    private static ObservationsAnswer Summarise(ReadingBatch batch, IngestResult result)
     {
+        var (valid, rejected) = (batch.Valid, batch.Rejected);
         int accepted = 0, duplicates = 0, replaced = 0, flagged = 0;
         for (var i = 0; i < valid.Count; i++)
         {
@@ -118,8 +105,8 @@ public static class ObservationsEndpoints
                     replaced++;
                     break;
                 case ReadingOutcomeKind.Conflict:
-                    var row = rows[valid[i].Index];
-                    rejected.Add(new RejectedReading(row.Index, row.Line, row.Time, string.Create(CultureInfo.InvariantCulture,
+                    var index = valid[i].Index;
+                    rejected.Add(new RejectedReading(index, batch.Line(index), batch.TimeText(index), string.Create(CultureInfo.InvariantCulture,
                         $"conflict: {outcome.StoredValueC:0.###} C is already stored for this time; send ?onConflict=replace to overwrite it.")));
                     continue;
             }
@@ -130,6 +117,40 @@ public static class ObservationsEndpoints
         }
         rejected.Sort((a, b) => a.Index.CompareTo(b.Index));
         return new ObservationsAnswer(accepted, duplicates, replaced, flagged, rejected);
+    }
+
+    // The fast reader for the usual JSON body; the strict parser for CSV and for every other JSON body.
+    private static (ReadingBatch? Batch, ProblemHttpResult? Problem) ReadJson(byte[] body, string? queryUnit, DateTimeOffset now) =>
+        Utf8JsonReadings.TryRead(body, queryUnit, now, MaxReadings) is { } batch ? (batch, null) : ReadJsonStrict(body, queryUnit, now);
+
+    internal static (ReadingBatch? Batch, ProblemHttpResult? Problem) ReadJsonStrict(byte[] body, string? queryUnit, DateTimeOffset now) =>
+        Validate(ParseJson(body), queryUnit, now);
+
+    private static (ReadingBatch? Batch, ProblemHttpResult? Problem) ReadCsv(byte[] body, string? queryUnit, DateTimeOffset now) =>
+        Validate(ParseCsv(body), queryUnit, now);
+
+    private static (ReadingBatch? Batch, ProblemHttpResult? Problem) Validate(
+        (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) parsed, string? unit, DateTimeOffset now)
+    {
+        var (rows, bodyUnit, problem) = parsed;
+        if (problem is not null)
+        {
+            return (null, problem);
+        }
+        if (bodyUnit is not null && !TemperatureUnits.IsKnown(bodyUnit))
+        {
+            return (null, ApiProblems.BadRequest("unit", $"unit '{IsoTime.Clip(bodyUnit)}' is not known: {TemperatureUnits.UnknownUnitMessage}"));
+        }
+        if (bodyUnit is not null && unit is not null && bodyUnit != unit)
+        {
+            return (null, ApiProblems.BadRequest("unit", $"The body says unit '{bodyUnit}' but ?unit= says '{unit}'; send one."));
+        }
+        if (rows!.Count == 0)
+        {
+            return (null, ApiProblems.BadRequest("readings", "The request holds no readings."));
+        }
+        var (valid, rejected) = ReadingValidation.Validate(rows, bodyUnit ?? unit ?? TemperatureUnits.Celsius, now);
+        return (new ReadingBatch(rows.Count, valid, rejected, i => rows[i].Time, i => rows[i].Line), null);
     }
 
     private static (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) ParseJson(byte[] body)

@@ -31,7 +31,7 @@ internal static class ReadingValidation
         return (valid, rejected);
     }
 
-    private static string? Clip(string? time) => time is null ? null : IsoTime.Clip(time);
+    public static string? Clip(string? time) => time is null ? null : IsoTime.Clip(time);
 
     private static string? Check(RawReading row, string defaultUnit, DateTimeOffset latest, out IncomingReading reading)
     {
@@ -44,24 +44,30 @@ internal static class ReadingValidation
         {
             return timeError;
         }
-        if (time > latest)
+        return CheckRead(row.Index, time.ToUnixTimeMilliseconds(), row.Value!.Value, row.Unit ?? defaultUnit, latest, out reading);
+    }
+
+    /// <summary>The rules after the time has been read: at most <see cref="MaxAhead"/> past the clock
+    /// (<paramref name="latest"/> = now + MaxAhead), a known unit, inside the physical range.</summary>
+    public static string? CheckRead(int index, long timeMs, double value, string unit, DateTimeOffset latest, out IncomingReading reading)
+    {
+        reading = default;
+        if ((timeMs * TimeSpan.TicksPerMillisecond) + DateTime.UnixEpoch.Ticks > latest.UtcTicks)
         {
             return string.Create(CultureInfo.InvariantCulture,
                 $"time is more than {MaxAhead.TotalMinutes} minutes ahead of the server clock ({IsoTime.Format(latest - MaxAhead)}); check the logger's clock and offset.");
         }
-        var unit = row.Unit ?? defaultUnit;
         if (!TemperatureUnits.IsKnown(unit))
         {
             return $"unit '{IsoTime.Clip(unit)}' is not known: {TemperatureUnits.UnknownUnitMessage}";
         }
-        var value = row.Value!.Value;
         var celsius = TemperatureUnits.ToCelsius(value, unit);
         if (celsius < SiteRules.PhysicalMinC || celsius > SiteRules.PhysicalMaxC)
         {
             return string.Create(CultureInfo.InvariantCulture,
                 $"value {value} {unit} is {celsius:0.##} C, outside the physical range {SiteRules.PhysicalMinC}..{SiteRules.PhysicalMaxC} C; check the unit.");
         }
-        reading = new IncomingReading(row.Index, time.ToUnixTimeMilliseconds(), celsius, value, unit);
+        reading = new IncomingReading(index, timeMs, celsius, value, unit);
         return null;
     }
 }
