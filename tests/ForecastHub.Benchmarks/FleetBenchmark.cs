@@ -56,8 +56,7 @@ internal static partial class FleetBenchmark
                 using var forecast = await server.Client.GetAsync(new Uri("/api/v1/sites/site-0000/forecast", UriKind.Relative));
                 var firstForecast = watch.Elapsed;
                 output.WriteLine(Invariant($"cold start with {options.Sites} stored models: ready after {ready.TotalMilliseconds:F0} ms; first forecast ({(int)forecast.StatusCode}) after {firstForecast.TotalMilliseconds:F0} ms"));
-                met = refitSeconds <= 60 && peakRss <= 400 && ready.TotalSeconds <= 3;
-                output.WriteLine(Invariant($"targets: refit <= 60 s: {(refitSeconds <= 60 ? "met" : "MISSED")}; peak RSS <= 400 MiB: {(peakRss <= 400 ? "met" : "MISSED")}; ready <= 3 s: {(ready.TotalSeconds <= 3 ? "met" : "MISSED")}"));
+                met = Verdict(options, refitSeconds, peakRss, ready, output);
             }
 
             return met ? 0 : 1;
@@ -67,6 +66,26 @@ internal static partial class FleetBenchmark
             Microsoft.Data.Sqlite.SqliteConnection.ClearAllPools();
             folder.Delete(recursive: true);
         }
+    }
+
+    /// <summary>
+    /// The targets are for 1,000 sites x 365 days. A smaller run is judged on the refit time scaled by
+    /// its share of the work (fits cost about the same per site-year); RSS and cold start are not
+    /// judged, since neither scales in proportion.
+    /// </summary>
+    private static bool Verdict(BenchmarkOptions options, double refitSeconds, double peakRss, TimeSpan ready, TextWriter output)
+    {
+        static string Mark(bool ok) => ok ? "met" : "MISSED";
+        if (options.Sites >= 1000 && options.Days >= 365)
+        {
+            output.WriteLine(Invariant($"targets: refit <= 60 s: {Mark(refitSeconds <= 60)}; peak RSS <= 400 MiB: {Mark(peakRss <= 400)}; ready <= 3 s: {Mark(ready.TotalSeconds <= 3)}"));
+            return refitSeconds <= 60 && peakRss <= 400 && ready.TotalSeconds <= 3;
+        }
+
+        var share = options.Sites / 1000.0 * (options.Days / 365.0);
+        var refitTarget = 60 * share;
+        output.WriteLine(Invariant($"targets (scaled to {options.Sites} sites x {options.Days} days, {share:P1} of the target's work): refit <= {refitTarget:F1} s: {Mark(refitSeconds <= refitTarget)}; peak RSS <= 400 MiB and ready <= 3 s: not applicable (defined for 1,000 sites x 365 days)"));
+        return refitSeconds <= refitTarget;
     }
 
     private static async Task<double> FitsAsync(ServerProcess server)

@@ -66,7 +66,6 @@ internal sealed class ServerProcess : IAsyncDisposable
             info.ArgumentList.Add(arg);
         }
 
-        info.Environment["DOTNET_gcServer"] = "0";
         var process = Process.Start(info)!;
 
         // Drain the logs so the child never blocks on a full pipe.

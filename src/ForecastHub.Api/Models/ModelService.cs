@@ -16,7 +16,9 @@ public sealed record RefitOutcome(ServingModel? Model, string? Error, bool NotEn
 
 /// <summary>
 /// The serving models: fits a site (one fit per site at a time), stores the result, and hands out
-/// the stored model, loading it from storage on first use after a restart.
+/// the stored model, loading it from storage on first use (after a restart, or after a background
+/// fit that was evicted). At most <see cref="MaxLoadedModels"/> parsed models stay in
+/// memory, so a fleet sweep does not keep every site's model.
 /// </summary>
 public sealed partial class ModelService(
     IModelStore store,
@@ -29,6 +31,9 @@ public sealed partial class ModelService(
     TimeProvider clock,
     ILogger<ModelService> logger)
 {
+    /// <summary>Parsed models kept in memory; beyond this an arbitrary one is dropped and read again when next used.</summary>
+    public const int MaxLoadedModels = 500;
+
     private readonly ConcurrentDictionary<string, ServingModel> loaded = new(StringComparer.Ordinal);
     private readonly ConcurrentDictionary<string, SemaphoreSlim> siteLocks = new(StringComparer.Ordinal);
     private readonly ConcurrentDictionary<string, TaskCompletionSource<RefitOutcome>> waiters = new(StringComparer.Ordinal);
@@ -62,7 +67,8 @@ public sealed partial class ModelService(
             return null;
         }
 
-        var model = new ServingModel(stored, modeling.Read(stored.ModelJson));
+        var model = ServingModel.From(stored, modeling.Read(stored.ModelJson));
+        MakeRoom();
         return loaded.GetOrAdd(site.Id, model);
     }
 
@@ -128,8 +134,7 @@ public sealed partial class ModelService(
             var message = $"{error.GetType().Name}: {error.Message}";
             await store.RecordFailureAsync(new FitAttempt(site.Id, now, Failed: true, Error: message), cancellationToken);
             versions.ModelChanged(site.Id);
-            loaded.TryGetValue(site.Id, out var previous);
-            return new RefitOutcome(previous, message, NotEnoughData: false);
+            return new RefitOutcome(await GetAsync(site, cancellationToken), message, NotEnoughData: false);
         }
 
         watch.Stop();
@@ -140,13 +145,24 @@ public sealed partial class ModelService(
             return new RefitOutcome(null, "The site was deleted during the fit.", NotEnoughData: false);
         }
 
-        var serving = new ServingModel(stored, fitted.Model);
+        var serving = ServingModel.From(stored, fitted.Model);
+
+        // Set (not added) under the site's lock, so a lazy load of the older stored model cannot win.
+        MakeRoom();
         loaded[site.Id] = serving;
         versions.ModelChanged(site.Id);
         metrics.Fits.Inc(1, "ok");
         metrics.FitDuration.Observe(watch.Elapsed.TotalSeconds);
         LogFitted(logger, site.Id, reason, stored.FitDurationMs, grid.ObservedCount);
         return new RefitOutcome(serving, null, NotEnoughData: false);
+    }
+
+    private void MakeRoom()
+    {
+        while (loaded.Count >= MaxLoadedModels && loaded.Keys.FirstOrDefault() is { } victim)
+        {
+            loaded.TryRemove(victim, out _);
+        }
     }
 
     /// <summary>Drops the in-memory copy of a deleted site's model.</summary>
@@ -159,8 +175,15 @@ public sealed partial class ModelService(
     private static partial void LogFitted(ILogger logger, string siteId, RefitReason reason, double durationMs, int points);
 }
 
-/// <summary>A stored model with its parsed form, ready to forecast.</summary>
-public sealed record ServingModel(StoredModel Stored, Core.Modeling.SiteModel Model);
+/// <summary>A stored model's facts with its parsed form, ready to forecast; the JSON text is not kept (<c>Stored.ModelJson</c> is empty).</summary>
+public sealed record ServingModel(StoredModel Stored, Core.Modeling.SiteModel Model)
+{
+    public static ServingModel From(StoredModel stored, Core.Modeling.SiteModel model)
+    {
+        ArgumentNullException.ThrowIfNull(stored);
+        return new ServingModel(stored with { ModelJson = string.Empty }, model);
+    }
+}
 
 /// <summary>What the modeling pipeline produced for the store.</summary>
 public sealed record FittedSiteModel(Core.Modeling.SiteModel Model, string Json, double? ResidualPValue, DateTimeOffset DataEnd);
