@@ -23,7 +23,7 @@ public sealed record QualityBody(double? MinC, double? MaxC, double? MaxStepCPer
 public sealed record ModelBody(string? Seasonality, string? Method, string? OrderPolicy, int? MaxOrder, int? FitWindowDays, string? IntervalMethod);
 
 /// <summary>A site as the API shows it.</summary>
-public sealed record SiteResponse(
+public record SiteResponse(
     string Id,
     string Name,
     string TimeZone,
@@ -54,8 +54,17 @@ public sealed record QualityResponse(double MinC, double MaxC, double MaxStepCPe
 
 public sealed record ModelResponse(string Seasonality, string Method, string OrderPolicy, int MaxOrder, int FitWindowDays, string IntervalMethod);
 
+/// <summary>A site in the list, with its model-health state (the <c>state</c> of <c>GET .../health</c>).</summary>
+public sealed record ListedSiteResponse(SiteResponse Site, string HealthState)
+    : SiteResponse(Site ?? throw new ArgumentNullException(nameof(Site)))
+{
+    // The site's fields stay at the top level of the JSON; this one is only the constructor's input.
+    [System.Text.Json.Serialization.JsonIgnore]
+    public SiteResponse Site { get; init; } = Site;
+}
+
 /// <summary>One page of sites; <c>next</c> is the link to the following page, null on the last.</summary>
-public sealed record SiteList(IReadOnlyList<SiteResponse> Sites, string? Next);
+public sealed record SiteList(IReadOnlyList<ListedSiteResponse> Sites, string? Next);
 
 internal static class QualityDefaults
 {

@@ -1,5 +1,6 @@
 using System.Text.Json;
 using ForecastHub.Api.Auth;
+using ForecastHub.Api.Health;
 using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Problems;
 using ForecastHub.Storage.Sites;
@@ -27,7 +28,7 @@ public static class SitesEndpoints
         group.MapPost("/", Create).WithName("CreateSite").WithSummary("Create a site.")
             .Accepts<SiteBody>("application/json").WithRequestBodyLimit(MaxBodyBytes).ProducesProblem(StatusCodes.Status409Conflict)
             .RequireAuthorization(AuthPolicies.Admin);
-        group.MapGet("/", List).WithName("ListSites").WithSummary("List sites by id, one page at a time.")
+        group.MapGet("/", List).WithName("ListSites").WithSummary("List sites by id, one page at a time, each with its model-health state.")
             .ProducesProblem(StatusCodes.Status400BadRequest);
         group.MapGet("/{siteId}", Get).WithName("GetSite").WithSummary("Read a site and its settings.");
         group.MapPatch("/{siteId}", Update).WithName("UpdateSite")
@@ -61,7 +62,7 @@ public static class SitesEndpoints
     }
 
     public static async Task<Results<Ok<SiteList>, ProblemHttpResult>> List(
-        ISiteStore sites, [FromQuery] string? after, [FromQuery] string? limit, CancellationToken cancellationToken)
+        ISiteStore sites, ModelHealthService health, [FromQuery] string? after, [FromQuery] string? limit, CancellationToken cancellationToken)
     {
         var pageSize = DefaultPageSize;
         if (limit is not null && (!int.TryParse(limit, out pageSize) || pageSize < 1 || pageSize > MaxPageSize))
@@ -69,7 +70,14 @@ public static class SitesEndpoints
             return ApiProblems.BadRequest("limit", $"limit must be a whole number from 1 to {MaxPageSize}.");
         }
         var page = await sites.ListAsync(after, pageSize + 1, cancellationToken).ConfigureAwait(false);
-        var shown = page.Take(pageSize).Select(SiteResponse.From).ToList();
+        var shown = new List<ListedSiteResponse>(Math.Min(page.Count, pageSize));
+        foreach (var site in page.Take(pageSize))
+        {
+            // The same rules as GET .../health; a few indexed reads per site, no history is read.
+            var assessment = await health.EvaluateAsync(site, cancellationToken).ConfigureAwait(false);
+            shown.Add(new ListedSiteResponse(SiteResponse.From(site), assessment.State));
+        }
+
         var next = page.Count > pageSize
             ? $"/api/v1/sites?after={Uri.EscapeDataString(shown[^1].Id)}&limit={pageSize}"
             : null;
