@@ -1,3 +1,4 @@
+using System.Collections.Concurrent;
 using ForecastHub.Core.Grid;
 
 namespace ForecastHub.Core.Climatology;
@@ -110,36 +111,40 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
     private sealed class RowFiller
     {
         private const int MinutesPerDay = 24 * 60;
+
+        // Shared by every design and thread (filled once): a forecast evaluates a handful of times per call.
+        private static readonly double[] DayCos = new double[367];
+        private static readonly double[] DaySin = new double[367];
+        private static readonly double[] MinuteCos = new double[MinutesPerDay];
+        private static readonly double[] MinuteSin = new double[MinutesPerDay];
+        private static readonly ConcurrentDictionary<int, double[]> DiurnalTables = new();
+
         private readonly HarmonicDesign design;
         private readonly TimeZoneInfo zone;
         private readonly long offsetTicks;
-        private readonly double[] dayCos = new double[367];
-        private readonly double[] daySin = new double[367];
-        private readonly double[] minuteCos = new double[MinutesPerDay];
-        private readonly double[] minuteSin = new double[MinutesPerDay];
         private readonly double[] diurnal;
         private long yearFirstDay = long.MaxValue;
         private long nextYearFirstDay = long.MinValue;
+
+        static RowFiller()
+        {
+            for (var d = 0; d < DayCos.Length; d++)
+            {
+                (DaySin[d], DayCos[d]) = Math.SinCos(2 * Math.PI * d / YearDays);
+            }
+
+            for (var m = 0; m < MinutesPerDay; m++)
+            {
+                (MinuteSin[m], MinuteCos[m]) = Math.SinCos(2 * Math.PI * (Hour(m) / 24) / YearDays);
+            }
+        }
 
         public RowFiller(HarmonicDesign design)
         {
             this.design = design;
             zone = GridBuilder.FindZone(design.TimeZone);
             offsetTicks = zone.BaseUtcOffset.Ticks;
-            for (var d = 0; d < dayCos.Length; d++)
-            {
-                (daySin[d], dayCos[d]) = Math.SinCos(2 * Math.PI * d / YearDays);
-            }
-
-            var width = 2 * design.DiurnalHarmonics;
-            diurnal = new double[MinutesPerDay * width];
-            for (var m = 0; m < MinutesPerDay; m++)
-            {
-                var hour = (m / 60) + (m % 60 / 60.0);
-                (minuteSin[m], minuteCos[m]) = Math.SinCos(2 * Math.PI * (hour / 24) / YearDays);
-                var (s1, c1) = Math.SinCos(2 * Math.PI * hour / 24);
-                Harmonics(c1, s1, design.DiurnalHarmonics, diurnal.AsSpan(m * width, width));
-            }
+            diurnal = DiurnalTables.GetOrAdd(design.DiurnalHarmonics, DiurnalTable);
         }
 
         public void Fill(DateTimeOffset time, Span<double> row)
@@ -148,12 +153,29 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
             row[0] = 1;
             if (design.AnnualHarmonics > 0)
             {
-                var (cd, sd, cm, sm) = (dayCos[day], daySin[day], minuteCos[minute], minuteSin[minute]);
+                var (cd, sd, cm, sm) = (DayCos[day], DaySin[day], MinuteCos[minute], MinuteSin[minute]);
                 Harmonics((cd * cm) - (sd * sm), (sd * cm) + (cd * sm), design.AnnualHarmonics, row[1..]);
             }
 
             var width = 2 * design.DiurnalHarmonics;
             diurnal.AsSpan(minute * width, width).CopyTo(row[(1 + (2 * design.AnnualHarmonics))..]);
+        }
+
+        /// <summary>hour(s) + minute(s)/60 for minute m of the day.</summary>
+        private static double Hour(int minute) => (minute / 60) + (minute % 60 / 60.0);
+
+        /// <summary>cos/sin(2 pi j hour / 24), j = 1..count, for every minute of the day.</summary>
+        private static double[] DiurnalTable(int count)
+        {
+            var width = 2 * count;
+            var table = new double[MinutesPerDay * width];
+            for (var m = 0; m < MinutesPerDay && width > 0; m++)
+            {
+                var (s1, c1) = Math.SinCos(2 * Math.PI * Hour(m) / 24);
+                Harmonics(c1, s1, count, table.AsSpan(m * width, width));
+            }
+
+            return table;
         }
 
         private (int Day, int Minute) Hourly(DateTimeOffset time)
