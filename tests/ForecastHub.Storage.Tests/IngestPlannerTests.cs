@@ -79,4 +79,27 @@ public sealed class IngestPlannerTests
 
         Assert.Empty(plan.Updates);
     }
+
+    [Theory]
+    [InlineData(ConflictPolicy.Reject)]
+    [InlineData(ConflictPolicy.Replace)]
+    public void SortedBatchesGetTheSamePlanAsTheGeneralPath(ConflictPolicy policy)
+    {
+        var random = new Random(5);
+        for (var trial = 0; trial < 300; trial++)
+        {
+            // Stored and new hours interleave and overlap; values repeat so flat lines, duplicates and conflicts occur.
+            var hours = Enumerable.Range(0, 60).Where(_ => random.Next(3) > 0).ToArray();
+            var stored = hours.Where(_ => random.Next(2) == 0)
+                .Select(h => Stored(h, random.Next(4) * 7.5, random.Next(4) == 0 ? QualityFlags.OutOfRange : QualityFlags.None)).ToArray();
+            var incoming = hours.Where(_ => random.Next(2) == 0).Select((h, i) => In(i, h, random.Next(4) * 7.5)).ToArray();
+
+            var sorted = IngestPlanner.Plan(stored, incoming, policy, QualityLimits.Default);
+            var general = IngestPlanner.PlanAnyOrder(stored, incoming, policy, QualityLimits.Default);
+
+            Assert.Equal(general.Inserts, sorted.Inserts);
+            Assert.Equal(general.Updates, sorted.Updates);
+            Assert.Equal(general.Outcomes, sorted.Outcomes);
+        }
+    }
 }

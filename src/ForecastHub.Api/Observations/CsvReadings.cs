@@ -6,8 +6,9 @@ namespace ForecastHub.Api.Observations;
 /// <summary>
 /// Strict CSV (RFC 4180): UTF-8 with or without BOM, CRLF or LF line ends, a required header
 /// <c>time,value</c> or <c>time,value,unit</c> (any case), comma separators, fields optionally in
-/// double quotes with <c>""</c> for a quote. Blank lines are skipped. A bad row is refused alone,
-/// with its line number; a bad header or non-text body refuses the whole body.
+/// double quotes with <c>""</c> for a quote; a quoted field may hold line breaks, which then belong
+/// to the field. Blank lines are skipped. A bad row is refused alone, with the line number its record
+/// starts on; a bad header or non-text body refuses the whole body.
 /// </summary>
 internal static class CsvReadings
 {
@@ -32,18 +33,17 @@ internal static class CsvReadings
         {
             return (null, "The body contains NUL characters; it is not CSV text.", false);
         }
-        var lines = text.Split('\n');
-        var header = lines[0].TrimEnd('\r');
+        var records = Records(text);
+        var header = records[0].Text;
         var headerError = CheckHeader(header, out var columns);
         if (headerError is not null)
         {
             return (null, headerError, false);
         }
         var rows = new List<RawReading>();
-        for (var n = 1; n < lines.Length; n++)
+        foreach (var (record, line) in records.Skip(1))
         {
-            var line = lines[n].TrimEnd('\r');
-            if (line.Trim().Length == 0)
+            if (record.Trim().Length == 0)
             {
                 continue;
             }
@@ -51,9 +51,51 @@ internal static class CsvReadings
             {
                 return (null, $"More than {maxReadings} readings in one request.", true);
             }
-            rows.Add(ParseRow(line, rows.Count, n + 1, columns));
+            rows.Add(ParseRow(record, rows.Count, line, columns));
         }
         return (rows, null, false);
+    }
+
+    // The records of the body (each without its line end) and the line each starts on. A line break
+    // ends a record unless it is inside a quoted field, which opens only at the start of a field.
+    private static List<(string Text, int Line)> Records(string text)
+    {
+        var records = new List<(string, int)>();
+        int start = 0, line = 1, startLine = 1;
+        bool quoted = false, fieldStart = true;
+        for (var i = 0; i < text.Length; i++)
+        {
+            var c = text[i];
+            if (quoted)
+            {
+                if (c == '"' && i + 1 < text.Length && text[i + 1] == '"')
+                {
+                    i++; // a doubled quote stays inside the field
+                }
+                else if (c == '"')
+                {
+                    quoted = false;
+                }
+                else if (c == '\n')
+                {
+                    line++;
+                }
+                continue;
+            }
+            if (c == '"' && fieldStart)
+            {
+                quoted = true;
+            }
+            else if (c == '\n')
+            {
+                records.Add((text[start..i].TrimEnd('\r'), startLine));
+                start = i + 1;
+                startLine = ++line;
+            }
+            fieldStart = c is ',' or '\n';
+        }
+        records.Add((text[start..].TrimEnd('\r'), startLine));
+        return records;
     }
 
     private static string? CheckHeader(string header, out int columns)
@@ -117,7 +159,7 @@ internal static class CsvReadings
                 {
                     if (i >= line.Length)
                     {
-                        error = "a quoted field is not closed on its line.";
+                        error = "a quoted field is not closed (its closing quote is missing).";
                         return null;
                     }
                     if (line[i] == '"')

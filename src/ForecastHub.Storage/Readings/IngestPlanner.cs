@@ -24,7 +24,15 @@ public static class IngestPlanner
         ArgumentNullException.ThrowIfNull(stored);
         ArgumentNullException.ThrowIfNull(incoming);
         ArgumentNullException.ThrowIfNull(limits);
+        return IsStrictlyIncreasing(stored, s => s.TimeMs) && IsStrictlyIncreasing(incoming, r => r.TimeMs)
+            ? PlanSorted(stored, incoming, policy, limits)
+            : PlanAnyOrder(stored, incoming, policy, limits);
+    }
 
+    /// <summary>The general plan: any order, repeats inside the batch taken one after another.</summary>
+    internal static IngestPlan PlanAnyOrder(IReadOnlyList<StoredReading> stored, IReadOnlyList<IncomingReading> incoming,
+        ConflictPolicy policy, QualityLimits limits)
+    {
         // Slots: the stored readings first, then each new time once; a map finds a time's slot.
         var slots = new List<Slot>(stored.Count + incoming.Count);
         var slotOf = new Dictionary<long, int>(stored.Count + incoming.Count);
@@ -65,31 +73,11 @@ public static class IngestPlanner
 
         var series = slots.ToArray();
         Array.Sort(series.Select(x => x.Reading.TimeMs).ToArray(), series);
-        var points = new QualityPoint[series.Length];
-        for (var j = 0; j < series.Length; j++)
-        {
-            points[j] = new QualityPoint(series[j].Reading.Time, series[j].Reading.ValueC);
-        }
-        var computed = QualityChecks.Evaluate(points, limits);
-        var inserts = new List<StoredReading>();
-        var updates = new List<StoredReading>();
+        var (flags, inserts, updates) = Judge(series, limits);
         var flagsByTime = new Dictionary<long, QualityFlags>(series.Length);
         for (var j = 0; j < series.Length; j++)
         {
-            var slot = series[j];
-            var flags = slot.Changed
-                ? computed[j]
-                : slot.Reading.Flags | (computed[j] & (QualityFlags.Spike | QualityFlags.FlatLine));
-            flagsByTime[slot.Reading.TimeMs] = flags;
-            var reading = slot.Reading with { Flags = flags };
-            if (!slot.IsStored)
-            {
-                inserts.Add(reading);
-            }
-            else if (slot.Changed || flags != slot.Reading.Flags)
-            {
-                updates.Add(reading);
-            }
+            flagsByTime[series[j].Reading.TimeMs] = flags[j];
         }
 
         var outcomes = new ReadingOutcome[incoming.Count];
@@ -98,6 +86,96 @@ public static class IngestPlanner
             outcomes[i] = new ReadingOutcome(kinds[i], flagsByTime[incoming[i].TimeMs], storedValues[i]);
         }
         return new IngestPlan(inserts, updates, outcomes);
+    }
+
+    // Batch and neighbourhood both in strictly increasing time (the usual case): one merge, no map.
+    private static IngestPlan PlanSorted(IReadOnlyList<StoredReading> stored, IReadOnlyList<IncomingReading> incoming,
+        ConflictPolicy policy, QualityLimits limits)
+    {
+        var series = new Slot[stored.Count + incoming.Count];
+        var slotOf = new int[incoming.Count];
+        var kinds = new ReadingOutcomeKind[incoming.Count];
+        var storedValues = new double?[incoming.Count];
+        int n = 0, s = 0;
+        for (var i = 0; i < incoming.Count; i++)
+        {
+            var r = incoming[i];
+            while (s < stored.Count && stored[s].TimeMs < r.TimeMs)
+            {
+                series[n++] = new Slot(stored[s++], IsStored: true, Changed: false);
+            }
+            var reading = new StoredReading(r.TimeMs, r.ValueC, r.OriginalValue, r.OriginalUnit, QualityFlags.None);
+            slotOf[i] = n;
+            if (s < stored.Count && stored[s].TimeMs == r.TimeMs)
+            {
+                var old = stored[s++];
+                storedValues[i] = old.ValueC;
+                (kinds[i], series[n++]) = Math.Abs(old.ValueC - r.ValueC) <= SameValueTolerance
+                    ? (ReadingOutcomeKind.Duplicate, new Slot(old, IsStored: true, Changed: false))
+                    : policy == ConflictPolicy.Replace
+                        ? (ReadingOutcomeKind.Replaced, new Slot(reading, IsStored: true, Changed: true))
+                        : (ReadingOutcomeKind.Conflict, new Slot(old, IsStored: true, Changed: false));
+            }
+            else
+            {
+                kinds[i] = ReadingOutcomeKind.Accepted;
+                series[n++] = new Slot(reading, IsStored: false, Changed: true);
+            }
+        }
+        while (s < stored.Count)
+        {
+            series[n++] = new Slot(stored[s++], IsStored: true, Changed: false);
+        }
+        var (flags, inserts, updates) = Judge(series.AsSpan(0, n), limits);
+        var outcomes = new ReadingOutcome[incoming.Count];
+        for (var i = 0; i < incoming.Count; i++)
+        {
+            outcomes[i] = new ReadingOutcome(kinds[i], flags[slotOf[i]], storedValues[i]);
+        }
+        return new IngestPlan(inserts, updates, outcomes);
+    }
+
+    // QC over the time-ordered series; new flags for changed slots, stored slots only gain spike and flat-line.
+    private static (QualityFlags[] Flags, List<StoredReading> Inserts, List<StoredReading> Updates) Judge(ReadOnlySpan<Slot> series, QualityLimits limits)
+    {
+        var points = new QualityPoint[series.Length];
+        for (var j = 0; j < series.Length; j++)
+        {
+            points[j] = new QualityPoint(series[j].Reading.Time, series[j].Reading.ValueC);
+        }
+        var computed = QualityChecks.Evaluate(points, limits);
+        var flags = new QualityFlags[series.Length];
+        var inserts = new List<StoredReading>(series.Length);
+        var updates = new List<StoredReading>();
+        for (var j = 0; j < series.Length; j++)
+        {
+            var slot = series[j];
+            flags[j] = slot.Changed
+                ? computed[j]
+                : slot.Reading.Flags | (computed[j] & (QualityFlags.Spike | QualityFlags.FlatLine));
+            var reading = slot.Reading with { Flags = flags[j] };
+            if (!slot.IsStored)
+            {
+                inserts.Add(reading);
+            }
+            else if (slot.Changed || flags[j] != slot.Reading.Flags)
+            {
+                updates.Add(reading);
+            }
+        }
+        return (flags, inserts, updates);
+    }
+
+    private static bool IsStrictlyIncreasing<T>(IReadOnlyList<T> items, Func<T, long> time)
+    {
+        for (var i = 1; i < items.Count; i++)
+        {
+            if (time(items[i]) <= time(items[i - 1]))
+            {
+                return false;
+            }
+        }
+        return true;
     }
 
     private readonly record struct Slot(StoredReading Reading, bool IsStored, bool Changed);
