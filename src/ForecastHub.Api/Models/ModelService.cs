@@ -17,7 +17,7 @@ public sealed record RefitOutcome(ServingModel? Model, string? Error, bool NotEn
 /// <summary>
 /// The serving models: fits a site (one fit per site at a time), stores the result, and hands out
 /// the stored model, loading it from storage on first use (after a restart, or after a background
-/// fit that was evicted). At most <see cref="MaxLoadedModels"/> parsed models stay in
+/// fit that was evicted). At most <see cref="RefitOptions.MaxLoadedModels"/> parsed models stay in
 /// memory, so a fleet sweep does not keep every site's model.
 /// </summary>
 public sealed partial class ModelService(
@@ -31,9 +31,6 @@ public sealed partial class ModelService(
     TimeProvider clock,
     ILogger<ModelService> logger)
 {
-    /// <summary>Parsed models kept in memory; beyond this an arbitrary one is dropped and read again when next used.</summary>
-    public const int MaxLoadedModels = 500;
-
     private readonly ConcurrentDictionary<string, ServingModel> loaded = new(StringComparer.Ordinal);
     private readonly ConcurrentDictionary<string, SemaphoreSlim> siteLocks = new(StringComparer.Ordinal);
     private readonly ConcurrentDictionary<string, TaskCompletionSource<RefitOutcome>> waiters = new(StringComparer.Ordinal);
@@ -159,7 +156,7 @@ public sealed partial class ModelService(
 
     private void MakeRoom()
     {
-        while (loaded.Count >= MaxLoadedModels && loaded.Keys.FirstOrDefault() is { } victim)
+        while (loaded.Count >= refitOptions.Value.MaxLoadedModels && loaded.Keys.FirstOrDefault() is { } victim)
         {
             loaded.TryRemove(victim, out _);
         }

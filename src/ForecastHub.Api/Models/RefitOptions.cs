@@ -20,6 +20,9 @@ public sealed class RefitOptions
     /// <summary>How often every site is checked (model age, day-ahead archive, live scores).</summary>
     public TimeSpan SweepInterval { get; set; } = TimeSpan.FromHours(1);
 
+    /// <summary>Parsed models kept in memory; beyond this an arbitrary one is dropped and read again from storage when next used.</summary>
+    public int MaxLoadedModels { get; set; } = 500;
+
     /// <summary>Throws naming the first setting out of range; called at start.</summary>
     public void Validate()
     {
@@ -31,6 +34,11 @@ public sealed class RefitOptions
         if (NewPointsHourly < 1 || NewPointsDaily < 1)
         {
             throw new ArgumentException("Refit:NewPointsHourly and Refit:NewPointsDaily must be at least 1.", nameof(NewPointsHourly));
+        }
+
+        if (MaxLoadedModels is < 1 or > 1_000_000)
+        {
+            throw new ArgumentException("Refit:MaxLoadedModels must be between 1 and 1000000.", nameof(MaxLoadedModels));
         }
 
         if (ModelMaxAge <= TimeSpan.Zero || SweepInterval <= TimeSpan.Zero)

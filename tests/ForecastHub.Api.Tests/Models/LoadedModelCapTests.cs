@@ -1,0 +1,44 @@
+using ForecastHub.Api.Tests.Infrastructure;
+
+namespace ForecastHub.Api.Tests.Models;
+
+/// <summary><c>Refit:MaxLoadedModels</c>: models beyond the cap are dropped from memory and read
+/// again from storage, answering the same as before; an out-of-range cap stops the start.</summary>
+public sealed class LoadedModelCapTests
+{
+    [Fact]
+    public async Task ModelsBeyondTheCapAreReadAgainFromStorageWithTheSameAnswers()
+    {
+        await using var factory = new ApiFactory { Settings = new Dictionary<string, string?> { ["Refit:MaxLoadedModels"] = "1" } };
+        using var client = factory.CreateAdminClient();
+        string[] sites = ["cap-a", "cap-b", "cap-c"];
+        var before = new Dictionary<string, string>();
+        for (var i = 0; i < sites.Length; i++)
+        {
+            await client.CreateHourlySiteAsync(sites[i]);
+            await factory.IngestAsync(sites[i], ModelScenario.History(factory, days: 10, seed: i + 1));
+            await client.RefitAsync(sites[i]);
+            before[sites[i]] = (await client.GetJsonAsync($"/api/v1/sites/{sites[i]}/model")).GetRawText();
+        }
+
+        // Each read evicts the one model held, so every later read goes back to storage.
+        foreach (var site in sites.Reverse().Concat(sites))
+        {
+            var model = await client.GetJsonAsync($"/api/v1/sites/{site}/model");
+            Assert.Equal(before[site], model.GetRawText());
+        }
+    }
+
+    [Theory]
+    [InlineData("0")]
+    [InlineData("1000001")]
+    public async Task OutOfRangeCapStopsTheStartNamingTheKey(string cap)
+    {
+        await using var factory = new ApiFactory { Settings = new Dictionary<string, string?> { ["Refit:MaxLoadedModels"] = cap } };
+
+        var error = Record.Exception(() => factory.CreateClient());
+
+        Assert.NotNull(error);
+        Assert.Contains("Refit:MaxLoadedModels", error.ToString(), StringComparison.Ordinal);
+    }
+}
