@@ -2,7 +2,7 @@ using System.Diagnostics;
 using System.Globalization;
 using System.Net;
 using System.Net.Http.Headers;
-using System.Net.Sockets;
+using ForecastHub.TestData;
 
 namespace ForecastHub.Benchmarks;
 
@@ -48,7 +48,7 @@ internal sealed class ServerProcess : IAsyncDisposable
 
     public static ServerProcess Start(string apiDll, string databasePath, params string[] extraArgs)
     {
-        var port = FreePort();
+        var port = ChildProcesses.FreeLoopbackPort();
         var info = new ProcessStartInfo("dotnet")
         {
             RedirectStandardOutput = true,
@@ -135,22 +135,10 @@ internal sealed class ServerProcess : IAsyncDisposable
         return stdout.Result;
     }
 
-    private static int FreePort()
-    {
-        using var listener = new TcpListener(IPAddress.Loopback, 0);
-        listener.Start();
-        return ((IPEndPoint)listener.LocalEndpoint).Port;
-    }
-
     public async ValueTask DisposeAsync()
     {
         Client.Dispose();
-        if (!process.HasExited)
-        {
-            process.Kill(entireProcessTree: true);
-            await process.WaitForExitAsync();
-        }
-
+        await ChildProcesses.KillAsync(process);
         process.Dispose();
     }
 }

@@ -1,7 +1,7 @@
 using System.Diagnostics;
 using System.Net;
-using System.Net.Sockets;
 using System.Text;
+using ForecastHub.TestData;
 
 namespace ForecastHub.Browser.Tests;
 
@@ -44,7 +44,7 @@ internal sealed class DemoServer : IAsyncDisposable
     {
         var folder = Path.Combine(Path.GetTempPath(), "forecasthub-browser-" + Guid.NewGuid().ToString("N"));
         Directory.CreateDirectory(folder);
-        var port = FreeLoopbackPort();
+        var port = ChildProcesses.FreeLoopbackPort();
         var start = new ProcessStartInfo("dotnet")
         {
             WorkingDirectory = folder,
@@ -126,21 +126,10 @@ internal sealed class DemoServer : IAsyncDisposable
         }
     }
 
-    private static int FreeLoopbackPort()
-    {
-        using var listener = new TcpListener(IPAddress.Loopback, 0);
-        listener.Start();
-        return ((IPEndPoint)listener.LocalEndpoint).Port;
-    }
-
     public async ValueTask DisposeAsync()
     {
         Client.Dispose();
-        if (!process.HasExited)
-        {
-            process.Kill(entireProcessTree: true);
-            await process.WaitForExitAsync();
-        }
+        await ChildProcesses.KillAsync(process);
         process.Dispose();
         try
         {

@@ -2,7 +2,7 @@ using System.Diagnostics;
 using System.Globalization;
 using System.Net;
 using System.Net.Http.Headers;
-using System.Net.Sockets;
+using ForecastHub.TestData;
 
 namespace ForecastHub.Api.Tests.Infrastructure;
 
@@ -26,7 +26,7 @@ public sealed class ServiceProcess : IAsyncDisposable
 
     public static async Task<ServiceProcess> StartAsync(string databasePath, TimeSpan? readyWithin = null)
     {
-        var port = FreePort();
+        var port = ChildProcesses.FreeLoopbackPort();
         var baseAddress = new Uri($"http://127.0.0.1:{port}/");
         var dll = Path.Combine(AppContext.BaseDirectory, "ForecastHub.Api.dll");
         var start = new ProcessStartInfo("dotnet")
@@ -66,14 +66,7 @@ public sealed class ServiceProcess : IAsyncDisposable
     }
 
     /// <summary>SIGKILL: no shutdown code runs.</summary>
-    public async Task KillAsync()
-    {
-        if (!_process.HasExited)
-        {
-            _process.Kill(entireProcessTree: true);
-        }
-        await _process.WaitForExitAsync();
-    }
+    public Task KillAsync() => ChildProcesses.KillAsync(_process);
 
     public async ValueTask DisposeAsync()
     {
@@ -113,10 +106,4 @@ public sealed class ServiceProcess : IAsyncDisposable
         throw new TimeoutException($"The service was not ready within {within.TotalSeconds.ToString(CultureInfo.InvariantCulture)} s.");
     }
 
-    private static int FreePort()
-    {
-        using var listener = new TcpListener(IPAddress.Loopback, 0);
-        listener.Start();
-        return ((IPEndPoint)listener.LocalEndpoint).Port;
-    }
 }
