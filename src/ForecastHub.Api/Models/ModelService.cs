@@ -156,8 +156,14 @@ public sealed partial class ModelService(
 
     private void MakeRoom()
     {
-        while (loaded.Count >= refitOptions.Value.MaxLoadedModels && loaded.Keys.FirstOrDefault() is { } victim)
+        // Enumerating the dictionary itself takes no snapshot (Keys copies every key per call).
+        foreach (var (victim, _) in loaded)
         {
+            if (loaded.Count < refitOptions.Value.MaxLoadedModels)
+            {
+                break;
+            }
+
             loaded.TryRemove(victim, out _);
         }
     }

@@ -56,18 +56,10 @@ public static class IngestPlanner
             }
             var slot = slots[at];
             storedValues[i] = slot.Reading.ValueC;
-            if (Math.Abs(slot.Reading.ValueC - r.ValueC) <= SameValueTolerance)
-            {
-                kinds[i] = ReadingOutcomeKind.Duplicate;
-            }
-            else if (policy == ConflictPolicy.Replace)
+            kinds[i] = Meet(slot.Reading.ValueC, r.ValueC, policy);
+            if (kinds[i] == ReadingOutcomeKind.Replaced)
             {
                 slots[at] = slot with { Reading = reading, Changed = true };
-                kinds[i] = ReadingOutcomeKind.Replaced;
-            }
-            else
-            {
-                kinds[i] = ReadingOutcomeKind.Conflict;
             }
         }
 
@@ -110,11 +102,10 @@ public static class IngestPlanner
             {
                 var old = stored[s++];
                 storedValues[i] = old.ValueC;
-                (kinds[i], series[n++]) = Math.Abs(old.ValueC - r.ValueC) <= SameValueTolerance
-                    ? (ReadingOutcomeKind.Duplicate, new Slot(old, IsStored: true, Changed: false))
-                    : policy == ConflictPolicy.Replace
-                        ? (ReadingOutcomeKind.Replaced, new Slot(reading, IsStored: true, Changed: true))
-                        : (ReadingOutcomeKind.Conflict, new Slot(old, IsStored: true, Changed: false));
+                kinds[i] = Meet(old.ValueC, r.ValueC, policy);
+                series[n++] = kinds[i] == ReadingOutcomeKind.Replaced
+                    ? new Slot(reading, IsStored: true, Changed: true)
+                    : new Slot(old, IsStored: true, Changed: false);
             }
             else
             {
@@ -134,6 +125,12 @@ public static class IngestPlanner
         }
         return new IngestPlan(inserts, updates, outcomes);
     }
+
+    // A new reading at a time already stored: the same value is a duplicate, another one a conflict or, by policy, a replacement.
+    private static ReadingOutcomeKind Meet(double storedC, double incomingC, ConflictPolicy policy) =>
+        Math.Abs(storedC - incomingC) <= SameValueTolerance ? ReadingOutcomeKind.Duplicate
+        : policy == ConflictPolicy.Replace ? ReadingOutcomeKind.Replaced
+        : ReadingOutcomeKind.Conflict;
 
     // QC over the time-ordered series; new flags for changed slots, stored slots only gain spike and flat-line.
     private static (QualityFlags[] Flags, List<StoredReading> Inserts, List<StoredReading> Updates) Judge(ReadOnlySpan<Slot> series, QualityLimits limits)
