@@ -2,14 +2,20 @@ using ForecastHub.Api.Auth;
 using ForecastHub.Api.CommandLine;
 using ForecastHub.Api.Dashboard;
 using ForecastHub.Api.Demo;
+using ForecastHub.Api.Forecasts;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Keys;
+using ForecastHub.Api.Metrics;
+using ForecastHub.Api.Models;
 using ForecastHub.Api.Observations;
 using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
+using ForecastHub.Api.Verification;
+using ForecastHub.Storage;
 
+// Verbs that run without a web host: the container's health probe and the offline fit/backtest.
 if (HealthProbe.IsRequested(args))
 {
     return await HealthProbe.RunAsync(args, Console.Out);
@@ -23,15 +29,25 @@ if (OfflineVerbs.IsRequested(args))
 args = DemoMode.WithoutFlag(args, out var demoFlag);
 var builder = WebApplication.CreateBuilder(args);
 
+// Plumbing.
 builder.AddForecastHubLogging();
 builder.Services.AddForecastHubProblems();
-builder.Services.AddForecastHubStorage();
-builder.Services.AddForecastHubAuth();
 builder.Services.AddForecastHubRequestLimits();
 builder.Services.AddForecastHubRateLimits();
 builder.Services.AddForecastHubOpenApi();
+
+// Storage first: its migrations run before anything else reads it at start.
+builder.Services.AddSqliteStorage();
+builder.Services.AddForecastHubAuth();
 builder.AddDemoMode(demoFlag);
-builder.Services.AddForecastHubModels();
+
+// Features. AddSites before AddModels: the refit notification wraps the site cache.
+builder.Services.AddServiceMetrics();
+builder.Services.AddSites();
+builder.Services.AddModels();
+builder.Services.AddForecasts();
+builder.Services.AddVerification();
+builder.Services.AddModelHealth();
 
 var app = builder.Build();
 
@@ -43,7 +59,11 @@ var api = app.MapGroup("/api/v1");
 api.MapSites();
 api.MapKeys();
 api.MapObservations();
-app.MapForecastHubModels(api);
+api.MapModels();
+api.MapForecasts();
+api.MapVerification();
+api.MapModelHealth();
+app.MapMetrics();
 
 app.Run();
 return 0;

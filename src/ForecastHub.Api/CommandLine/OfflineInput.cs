@@ -1,6 +1,7 @@
 using ForecastHub.Api.Observations;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Quality;
+using ForecastHub.Core.Settings;
 
 namespace ForecastHub.Api.CommandLine;
 
@@ -77,34 +78,24 @@ internal static class OfflineInput
             ? (z, "--time-zone")
             : ("UTC", "default; give --time-zone with the site's IANA zone for local days and hours");
         var summary = new OfflineInputSummary(options.InputPath, rows.Count, byTime.Count, duplicates, conflicts,
-            flags.Count(f => f != QualityFlags.None), rejected, cadence, cadenceWhy, zone, zoneWhy);
+            flags.Count(f => f != QualityFlags.None), rejected, WireNames.Cadences.Of(cadence), cadenceWhy, zone, zoneWhy);
         return (readings, summary, null);
     }
 
     /// <summary>Hourly when the median spacing of consecutive readings is under 12 hours, daily otherwise.</summary>
-    private static (string Cadence, string Why) ChooseCadence(string? requested, IReadOnlyList<QualityPoint> points)
+    private static (GridCadence Cadence, string Why) ChooseCadence(GridCadence? requested, IReadOnlyList<QualityPoint> points)
     {
-        if (requested is not null)
+        if (requested is { } cadenceGiven)
         {
-            return (requested, "--cadence");
+            return (cadenceGiven, "--cadence");
         }
         if (points.Count < 2)
         {
-            return ("hourly", "default (a single reading has no spacing)");
+            return (GridCadence.Hourly, "default (a single reading has no spacing)");
         }
         var spacings = points.Zip(points.Skip(1), (a, b) => (b.Time - a.Time).TotalHours).Order().ToArray();
         var median = spacings[spacings.Length / 2];
-        var cadence = median < 12 ? "hourly" : "daily";
+        var cadence = median < 12 ? GridCadence.Hourly : GridCadence.Daily;
         return (cadence, $"median spacing of the readings {median:0.##} h");
     }
-
-    public static GridOptions GridOptions(OfflineInputSummary summary, string dailyStatistic) => new(
-        summary.Cadence == "daily" ? GridCadence.Daily : GridCadence.Hourly,
-        summary.TimeZone,
-        dailyStatistic switch
-        {
-            "min" => DailyStatistic.Min,
-            "max" => DailyStatistic.Max,
-            _ => DailyStatistic.Mean,
-        });
 }

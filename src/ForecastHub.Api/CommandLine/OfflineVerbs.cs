@@ -1,11 +1,11 @@
 using System.Diagnostics;
 using System.Text.Json;
 using ForecastHub.Api.Models;
-using ForecastHub.Api.Sites;
 using ForecastHub.Api.Verification;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Quality;
 using ForecastHub.Core.Series;
+using ForecastHub.Core.Settings;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Sites;
 using ModelResponse = ForecastHub.Api.Models.ModelResponse;
@@ -64,7 +64,6 @@ public static class OfflineVerbs
         }
 
         var site = Site(options, input, now);
-        var modeling = new SiteModeling();
         var valid = readings.Where(r => !r.Flagged).ToList();
         var dataEnd = valid.Count > 0 ? valid[^1].Time : readings[^1].Time;
         var grid = SiteGridLoader.Build(site, readings, readings[0].Time, SiteGridLoader.NextStep(site, SiteGridLoader.AlignDown(site, dataEnd)));
@@ -72,10 +71,10 @@ public static class OfflineVerbs
         var stopwatch = Stopwatch.StartNew();
         try
         {
-            var fitted = modeling.Fit(grid, site);
+            var fitted = FittedSiteModel.Fit(grid, site.Model);
             var stored = new StoredModel(SiteId, now, stopwatch.Elapsed.TotalMilliseconds, site.SettingsVersion, fitted.DataEnd,
                 fitted.Model.Window.Points, fitted.ResidualPValue, fitted.Json);
-            model = modeling.Describe(site, new ServingModel(stored, fitted.Model), null);
+            model = ModelMapping.Describe(site, new ServingModel(stored, fitted.Model), null);
         }
         catch (SeriesException e)
         {
@@ -93,11 +92,9 @@ public static class OfflineVerbs
 
     private static SiteRecord Site(OfflineOptions options, OfflineInputSummary input, DateTimeOffset now)
     {
-        var defaults = SiteRules.DefaultModel(input.Cadence);
-        var model = new Storage.Sites.ModelSettings(options.Seasonality, options.Method, options.OrderPolicy, options.MaxOrder,
-            options.FitWindowDays ?? defaults.FitWindowDays, options.IntervalMethod);
-        return new SiteRecord(SiteId, Path.GetFileName(options.InputPath), input.TimeZone, input.Cadence,
-            input.Cadence == "daily" ? options.DailyStatistic : null, null, null, null, QualityLimits.Default, model, now, now);
+        var cadence = WireNames.Cadences.Parse(input.Cadence);
+        return new SiteRecord(SiteId, Path.GetFileName(options.InputPath), input.TimeZone, cadence,
+            cadence == GridCadence.Daily ? options.DailyStatistic : null, null, null, null, QualityLimits.Default, options.Model(cadence), now, now);
     }
 
     private static bool IsKnownZone(string zone)

@@ -1,5 +1,6 @@
 using System.Diagnostics;
-using ForecastHub.Api.Sites;
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
@@ -48,13 +49,13 @@ public sealed class DemoLoader(ISiteStore sites, IReadingStore readings, TimePro
         site.Id,
         site.Name,
         DemoScenario.TimeZone,
-        "hourly",
+        GridCadence.Hourly,
         null,
         null,
         null,
         site.ElevationM,
         site.Kind == DemoSiteKind.ColdStore ? new QualityLimits(MinC: -5, MaxC: 10) : QualityLimits.Default,
-        SiteRules.DefaultModel("hourly"),
+        ModelSettings.DefaultFor(GridCadence.Hourly),
         now,
         now);
 }

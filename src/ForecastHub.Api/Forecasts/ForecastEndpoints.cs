@@ -35,7 +35,7 @@ public static class ForecastEndpoints
             return ApiProblems.NotFound($"There is no site '{siteId}'.");
         }
 
-        var (query, field, error) = ForecastQuery.Parse(SiteGridLoader.IsDaily(site), steps, levels, below, above);
+        var (query, field, error) = ForecastQuery.Parse(site.IsDaily, steps, levels, below, above);
         if (query is null)
         {
             return ApiProblems.BadRequest(field!, error!);
@@ -57,7 +57,7 @@ public static class ForecastEndpoints
             return ApiProblems.NotFound($"There is no site '{siteId}'.");
         }
 
-        var isDaily = SiteGridLoader.IsDaily(site);
+        var isDaily = site.IsDaily;
         var (query, field, error) = ForecastQuery.Parse(isDaily, steps, "80,95", null, null);
         if (query is null)
         {

@@ -4,6 +4,7 @@ using System.Text.Json;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Api.Models;
+using ForecastHub.Core.Settings;
 using ForecastHub.Storage.Sites;
 using Microsoft.AspNetCore.Http.Json;
 using Microsoft.Extensions.Options;
@@ -23,7 +24,6 @@ public sealed record ForecastUnavailable(string Detail);
 public sealed class ForecastService(
     ModelService models,
     SiteGridLoader grids,
-    SiteModeling modeling,
     SiteVersions versions,
     ModelHealthService health,
     ServiceMetrics metrics,
@@ -96,7 +96,7 @@ public sealed class ForecastService(
 
     private async Task<ForecastResponse?> ComputeAsync(SiteRecord site, ServingModel model, ForecastQuery query, DateTimeOffset now, CancellationToken cancellationToken)
     {
-        var isDaily = SiteGridLoader.IsDaily(site);
+        var isDaily = site.IsDaily;
         var currentStep = SiteGridLoader.AlignDown(site, now);
 
         // Hourly: the hour in progress counts (the mean of its readings so far); daily: only whole local days.
@@ -116,21 +116,20 @@ public sealed class ForecastService(
             return null;
         }
 
-        var path = modeling.Forecast(model.Model, grid, query.Steps, query.Levels, query.Below, query.Above, MonteCarloSeed);
+        var path = ForecastMapping.Forecast(model.Model, grid, query.Steps, query.Levels, query.Below, query.Above, MonteCarloSeed);
         var assessment = await health.EvaluateAsync(site, cancellationToken);
         var unit = isDaily ? "day" : "hour";
         var gap = path.MissingSteps == 0
             ? null
             : new ForecastDataGap(path.LastData, path.MissingSteps,
                 $"The newest {path.MissingSteps} {unit}{(path.MissingSteps == 1 ? "" : "s")} before now have no data; the forecast starts from the data of {path.LastData:O} and its intervals are wider for it.");
-        var (order, method) = modeling.Describe(model.Model);
         return new ForecastResponse(
             site.Id,
             now,
             path.LastData,
             "C",
             assessment.State,
-            new ForecastModelUsed(order, method, model.Stored.FittedAt, path.IntervalMethod),
+            new ForecastModelUsed(model.Model.Ar.Order, WireNames.Methods.Of(model.Model.Ar.Method), model.Stored.FittedAt, path.IntervalMethod),
             path.Steps,
             path.NextDay,
             gap,

@@ -1,6 +1,5 @@
-using ForecastHub.Storage.Migrations;
+using ForecastHub.Storage;
 using Microsoft.AspNetCore.Http.HttpResults;
-using Microsoft.Data.Sqlite;
 
 namespace ForecastHub.Api.Health;
 
@@ -19,23 +18,13 @@ public static class HealthEndpoints
 
     public static Ok<LiveStatus> Live() => TypedResults.Ok(new LiveStatus("live"));
 
-    public static Results<Ok<ReadyStatus>, ProblemHttpResult> Ready(MigrationRunner migrations)
+    public static Results<Ok<ReadyStatus>, ProblemHttpResult> Ready(IStorageSchema schema)
     {
-        try
-        {
-            var version = migrations.CurrentVersion();
-            if (version < migrations.LatestVersion)
-            {
-                return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                    detail: $"Storage schema is at version {version}; this build needs {migrations.LatestVersion}.");
-            }
-            return TypedResults.Ok(new ReadyStatus("ready", version));
-        }
-        catch (SqliteException e)
-        {
-            return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                detail: $"Storage is not reachable (SQLite error {e.SqliteErrorCode}).");
-        }
+        ArgumentNullException.ThrowIfNull(schema);
+        var readiness = schema.CheckReadiness();
+        return readiness.Ready
+            ? TypedResults.Ok(new ReadyStatus("ready", readiness.SchemaVersion))
+            : TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready", detail: readiness.Problem);
     }
 }
 

@@ -39,7 +39,7 @@ public sealed class ModelHealthService(
         var summary = await readingSummaries.GetAsync(site.Id, cancellationToken) ?? new ReadingSummary(null, 0, 0, 0);
         var model = await models.GetSummaryAsync(site.Id, cancellationToken);
         var attempt = await models.GetLastAttemptAsync(site.Id, cancellationToken);
-        var isDaily = SiteGridLoader.IsDaily(site);
+        var isDaily = site.IsDaily;
 
         // Grid points matter only before the first fit (warming-up); they are counted in the index, not read.
         var gridPoints = 0;

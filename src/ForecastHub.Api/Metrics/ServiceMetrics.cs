@@ -17,13 +17,18 @@ public sealed class ServiceMetrics
         ForecastDuration = registry.Histogram("forecasthub_forecast_duration_seconds", "Time to answer a forecast, by cache (hit, miss).", ForecastBuckets, "cache");
     }
 
-    /// <summary>Registers the gauges that are read from live state when the page is rendered.</summary>
-    public void AddGauges(Func<IReadOnlyDictionary<string, int>?> sitesByState, Func<int> refitQueueLength)
+    /// <summary>Sites per health state, read from the latest fleet evaluation when the page is rendered.</summary>
+    public void AddSitesByStateGauge(Func<IReadOnlyDictionary<string, int>?> sitesByState)
     {
         ArgumentNullException.ThrowIfNull(sitesByState);
-        ArgumentNullException.ThrowIfNull(refitQueueLength);
         Registry.Gauge("forecasthub_sites", "Sites by model-health state, as of the latest fleet evaluation.",
             () => (sitesByState() ?? new Dictionary<string, int>()).Select(kv => (new[] { kv.Key }, (double)kv.Value)), "state");
+    }
+
+    /// <summary>The refit queue's length, read when the page is rendered.</summary>
+    public void AddRefitQueueGauge(Func<int> refitQueueLength)
+    {
+        ArgumentNullException.ThrowIfNull(refitQueueLength);
         Registry.Gauge("forecasthub_refit_queue_length", "Sites waiting to be looked at by the refit service.",
             () => [([], refitQueueLength())]);
     }

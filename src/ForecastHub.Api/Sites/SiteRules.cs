@@ -1,26 +1,18 @@
 using System.Text.Json;
 using System.Text.RegularExpressions;
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
+using ForecastHub.Core.Settings;
 using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Api.Sites;
 
-/// <summary>The site rules of DESIGN section 3: what a valid site is, and the defaults.</summary>
+/// <summary>The site rules of DESIGN section 3: what a valid site body is. The body's words are
+/// parsed here, once, into the typed settings of the core (words in <see cref="WireNames"/>,
+/// defaults and model ranges in <see cref="ModelSettings"/>).</summary>
 public static partial class SiteRules
 {
-    public static readonly string[] Cadences = ["hourly", "daily"];
-    public static readonly string[] DailyStatistics = ["mean", "min", "max"];
-    public static readonly string[] Seasonalities = ["auto", "none", "annual", "annual-diurnal"];
-    public static readonly string[] Methods = ["burg", "yule-walker", "least-squares", "max-likelihood"];
-    public static readonly string[] OrderPolicies = ["pacf-aic", "aic", "aicc", "bic", "pacf"];
-    public static readonly string[] IntervalMethods = ["calibrated", "gaussian"];
-
-    public const int DefaultMaxOrder = 48;
-    public const int MaxMaxOrder = 200;
-    public const int DefaultFitWindowDaysHourly = 400;
-    public const int DefaultFitWindowDaysDaily = 1461;
-    public const int MinFitWindowDays = 7;
-    public const int MaxFitWindowDays = 7305;
     public const int MaxNameLength = 200;
 
     /// <summary>DESIGN section 5: readings outside this range after conversion are impossible.</summary>
@@ -40,9 +32,6 @@ public static partial class SiteRules
         TimeZoneShape().IsMatch(zone)
         && TimeZoneInfo.TryFindSystemTimeZoneById(zone, out var info)
         && info.HasIanaId;
-
-    public static ModelSettings DefaultModel(string cadence) => new("auto", "burg", "pacf-aic", DefaultMaxOrder,
-        cadence == "daily" ? DefaultFitWindowDaysDaily : DefaultFitWindowDaysHourly, "calibrated");
 
     /// <summary>
     /// The site that <paramref name="body"/> describes: a new one when <paramref name="current"/> is
@@ -90,21 +79,32 @@ public static partial class SiteRules
             Error("timeZone", "timeZone must be an IANA time zone such as 'Europe/Berlin' or 'UTC'.");
         }
 
-        var cadence = body.Cadence ?? current?.Cadence;
-        if (cadence is null)
+        var cadence = current?.Cadence;
+        if (body.Cadence is not null)
+        {
+            cadence = WireNames.Cadences.TryParse(body.Cadence, out var parsed) ? parsed : null;
+            if (cadence is null)
+            {
+                Error("cadence", "cadence must be 'hourly' or 'daily'.");
+            }
+        }
+        else if (cadence is null)
         {
             Error("cadence", "cadence is required: 'hourly' or 'daily'.");
         }
-        else if (!Cadences.Contains(cadence))
-        {
-            Error("cadence", "cadence must be 'hourly' or 'daily'.");
-        }
 
-        string? dailyStatistic = null;
-        if (cadence == "daily")
+        DailyStatistic? dailyStatistic = null;
+        if (cadence == GridCadence.Daily)
         {
-            dailyStatistic = body.DailyStatistic ?? current?.DailyStatistic ?? "mean";
-            if (!DailyStatistics.Contains(dailyStatistic))
+            if (body.DailyStatistic is null)
+            {
+                dailyStatistic = current?.DailyStatistic ?? DailyStatistic.Mean;
+            }
+            else if (WireNames.DailyStatistics.TryParse(body.DailyStatistic, out var statistic))
+            {
+                dailyStatistic = statistic;
+            }
+            else
             {
                 Error("dailyStatistic", "dailyStatistic must be 'mean', 'min' or 'max'.");
             }
@@ -122,13 +122,13 @@ public static partial class SiteRules
         CheckRange(elevation, -500, 9000, "elevationM", errors);
 
         var quality = MergeQuality(body.Quality, current?.Quality, errors);
-        var model = MergeModel(body.Model, current?.Model ?? DefaultModel(cadence ?? "hourly"), errors);
+        var model = MergeModel(body.Model, current?.Model ?? ModelSettings.DefaultFor(cadence ?? GridCadence.Hourly), errors);
 
         if (errors.Count > 0)
         {
             return null;
         }
-        return new SiteRecord(id!, name!.Trim(), timeZone!, cadence!, dailyStatistic, latitude, longitude, elevation,
+        return new SiteRecord(id!, name!.Trim(), timeZone!, cadence!.Value, dailyStatistic, latitude, longitude, elevation,
             quality, model, current?.CreatedAt ?? now, now, current?.SettingsVersion ?? 1);
     }
 
@@ -151,28 +151,34 @@ public static partial class SiteRules
 
     private static ModelSettings MergeModel(ModelBody? body, ModelSettings current, Dictionary<string, string[]> errors)
     {
-        var model = new ModelSettings(
-            body?.Seasonality ?? current.Seasonality,
-            body?.Method ?? current.Method,
-            body?.OrderPolicy ?? current.OrderPolicy,
-            body?.MaxOrder ?? current.MaxOrder,
-            body?.FitWindowDays ?? current.FitWindowDays,
-            body?.IntervalMethod ?? current.IntervalMethod);
-        CheckChoice(model.Seasonality, Seasonalities, "model.seasonality", errors);
-        CheckChoice(model.Method, Methods, "model.method", errors);
-        CheckChoice(model.OrderPolicy, OrderPolicies, "model.orderPolicy", errors);
-        CheckChoice(model.IntervalMethod, IntervalMethods, "model.intervalMethod", errors);
-        CheckRange(model.MaxOrder, 1, MaxMaxOrder, "model.maxOrder", errors);
-        CheckRange(model.FitWindowDays, MinFitWindowDays, MaxFitWindowDays, "model.fitWindowDays", errors);
+        var model = current with
+        {
+            Seasonality = Choice(body?.Seasonality, current.Seasonality, WireNames.Seasonalities, "model.seasonality", errors),
+            Method = Choice(body?.Method, current.Method, WireNames.Methods, "model.method", errors),
+            OrderPolicy = Choice(body?.OrderPolicy, current.OrderPolicy, WireNames.OrderPolicies, "model.orderPolicy", errors),
+            MaxOrder = body?.MaxOrder ?? current.MaxOrder,
+            FitWindowDays = body?.FitWindowDays ?? current.FitWindowDays,
+            IntervalMethod = Choice(body?.IntervalMethod, current.IntervalMethod, WireNames.IntervalMethods, "model.intervalMethod", errors),
+        };
+        CheckRange(model.MaxOrder, 1, ModelSettings.MaxMaxOrder, "model.maxOrder", errors);
+        CheckRange(model.FitWindowDays, ModelSettings.MinFitWindowDays, ModelSettings.MaxFitWindowDays, "model.fitWindowDays", errors);
         return model;
     }
 
-    private static void CheckChoice(string value, string[] allowed, string field, Dictionary<string, string[]> errors)
+    // The value of a word in the body, the current value when the body leaves it out; an unknown word is an error naming the field.
+    private static T Choice<T>(string? word, T current, WordTable<T> table, string field, Dictionary<string, string[]> errors)
+        where T : struct, Enum
     {
-        if (!allowed.Contains(value))
+        if (word is null)
         {
-            errors[field] = [$"{field} must be one of {string.Join(", ", allowed.Select(a => $"'{a}'"))}."];
+            return current;
         }
+        if (table.TryParse(word, out var value))
+        {
+            return value;
+        }
+        errors[field] = [$"{field} must be one of {string.Join(", ", table.Words.Select(a => $"'{a}'"))}."];
+        return current;
     }
 
     private static void CheckRange(double? value, double min, double max, string field, Dictionary<string, string[]> errors)

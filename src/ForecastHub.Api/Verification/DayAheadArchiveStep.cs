@@ -24,7 +24,6 @@ public sealed class DayAheadArchiveStep(
     ForecastService forecasts,
     IForecastArchive archive,
     SiteGridLoader grids,
-    SiteModeling modeling,
     SiteVersions versions,
     IOptions<LiveScoreOptions> options,
     TimeProvider clock) : ISweepStep
@@ -66,7 +65,7 @@ public sealed class DayAheadArchiveStep(
 
         var dayStart = GridBuilder.LocalDayStart(target, zone);
         var dayEnd = GridBuilder.LocalDayStart(target.AddDays(1), zone);
-        var isDaily = SiteGridLoader.IsDaily(site);
+        var isDaily = site.IsDaily;
         var current = SiteGridLoader.AlignDown(site, now);
         var steps = isDaily ? 2 : (int)Math.Ceiling((dayEnd - current).TotalHours);
         var (query, _, _) = ForecastQuery.Parse(isDaily, steps.ToString(System.Globalization.CultureInfo.InvariantCulture), "80,95", null, null);
@@ -140,12 +139,11 @@ public sealed class DayAheadArchiveStep(
         }
 
         var observedSteps = day.Steps.Where(s => byTime.ContainsKey(s.Time)).ToList();
-        var climatology = modeling.Climatology(model.Model, [.. observedSteps.Select(s => s.Time)]);
-        var isDaily = SiteGridLoader.IsDaily(site);
+        double[] climatology = observedSteps.Count == 0 ? [] : model.Model.Climatology.Mean([.. observedSteps.Select(s => s.Time)]);
         var zone = GridBuilder.FindZone(site.TimeZone);
         var points = observedSteps.Select((s, i) =>
         {
-            var yesterday = isDaily ? GridBuilder.LocalDayStart(GridBuilder.LocalDate(s.Time, zone).AddDays(-1), zone) : s.Time.AddHours(-24);
+            var yesterday = GridClock.DayBefore(site.Cadence, zone, s.Time);
             var persistence = byTime.TryGetValue(yesterday, out var p) ? p : double.NaN;
             return new ScoredPoint(s.Time, byTime[s.Time], s.Mean, s.Sd, s.Lower, s.Upper, persistence, climatology[i]);
         }).ToList();

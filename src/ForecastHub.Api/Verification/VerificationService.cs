@@ -42,7 +42,7 @@ public sealed class VerificationService(
         }
         else
         {
-            var days = SiteGridLoader.IsDaily(site) ? DailyBacktestDays : HourlyBacktestDays;
+            var days = site.IsDaily ? DailyBacktestDays : HourlyBacktestDays;
             var end = model.Stored.DataEnd;
             var readings = await grids.ReadAsync(site, end.AddDays(-(days + site.Model.FitWindowDays)),
                 SiteGridLoader.NextStep(site, SiteGridLoader.AlignDown(site, end)), cancellationToken);

@@ -1,16 +1,18 @@
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
 
 namespace ForecastHub.Storage.Sites;
 
-/// <summary>A stored site. Settings are kept as the validated strings of the HTTP contract; the
-/// model code maps them to its own types. <c>SettingsVersion</c> goes up by one on every change of
-/// settings, so a refit can tell which settings a model was fitted with.</summary>
+/// <summary>A stored site with its typed settings (parsed once at the HTTP edge or the command line).
+/// <c>DailyStatistic</c> is set for daily sites only. <c>SettingsVersion</c> goes up by one on every
+/// change of settings, so a refit can tell which settings a model was fitted with.</summary>
 public sealed record SiteRecord(
     string Id,
     string Name,
     string TimeZone,
-    string Cadence,
-    string? DailyStatistic,
+    GridCadence Cadence,
+    DailyStatistic? DailyStatistic,
     double? Latitude,
     double? Longitude,
     double? ElevationM,
@@ -18,13 +20,10 @@ public sealed record SiteRecord(
     ModelSettings Model,
     DateTimeOffset CreatedAt,
     DateTimeOffset UpdatedAt,
-    long SettingsVersion = 1);
+    long SettingsVersion = 1)
+{
+    public bool IsDaily => Cadence == GridCadence.Daily;
 
-/// <summary>Model settings of DESIGN section 3, as validated strings and numbers.</summary>
-public sealed record ModelSettings(
-    string Seasonality,
-    string Method,
-    string OrderPolicy,
-    int MaxOrder,
-    int FitWindowDays,
-    string IntervalMethod);
+    /// <summary>How this site's readings become its grid.</summary>
+    public GridOptions GridOptions => new(Cadence, TimeZone, DailyStatistic ?? Core.Grid.DailyStatistic.Mean);
+}

@@ -1,0 +1,37 @@
+using ForecastHub.Core.Forecasting;
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
+using ForecastHub.Core.Settings;
+
+namespace ForecastHub.Api.Forecasts;
+
+/// <summary>A forecast from the core, mapped to the HTTP contract (levels in percent).</summary>
+public sealed record ForecastPath(DateTimeOffset LastData, int MissingSteps, string IntervalMethod, IReadOnlyList<ForecastStepResponse> Steps, NextDaySummaryResponse? NextDay);
+
+/// <summary>Calls the core's forecaster and maps its records to the field names of DESIGN section 5.</summary>
+public static class ForecastMapping
+{
+    /// <summary>Forecasts <paramref name="steps"/> grid steps after the last step of <paramref name="recent"/>; levels in percent, thresholds in degrees C.</summary>
+    public static ForecastPath Forecast(SiteModel model, TimeGrid recent, int steps, IReadOnlyList<double> levels,
+        IReadOnlyList<double> below, IReadOnlyList<double> above, int seed)
+    {
+        ArgumentNullException.ThrowIfNull(levels);
+        ArgumentNullException.ThrowIfNull(below);
+        ArgumentNullException.ThrowIfNull(above);
+        var fractions = levels.Select(l => l / 100).ToArray();
+        var thresholds = below.Select(v => new Threshold(v, ThresholdDirection.Below))
+            .Concat(above.Select(v => new Threshold(v, ThresholdDirection.Above))).ToArray();
+        var forecast = SiteForecaster.Forecast(model, recent, steps, fractions, thresholds, seed);
+        var path = forecast.Steps.Select(s => new ForecastStepResponse(s.Time, s.Mean, s.Sd, Intervals(s.Intervals))).ToArray();
+        var nextDay = forecast.NextDay is { } day
+            ? new NextDaySummaryResponse(day.Date, Summary(day.Min), Summary(day.Max), Summary(day.Mean),
+                [.. day.Probabilities.Select(p => new ThresholdProbabilityResponse(p.Threshold, WireNames.ThresholdDirections.Of(p.Direction), p.Probability))])
+            : null;
+        return new ForecastPath(forecast.LastData, forecast.MissingSteps, WireNames.IntervalMethods.Of(forecast.IntervalMethod), path, nextDay);
+    }
+
+    private static ForecastInterval[] Intervals(IEnumerable<PredictionInterval> intervals) =>
+        [.. intervals.Select(i => new ForecastInterval(Math.Round(i.Level * 100, 6), i.Lower, i.Upper))];
+
+    private static DaySummaryValue Summary(DistributionSummary summary) => new(summary.Mean, Intervals(summary.Intervals));
+}
