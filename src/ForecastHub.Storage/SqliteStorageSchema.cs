@@ -9,18 +9,15 @@ public sealed class SqliteStorageSchema(MigrationRunner migrations) : IStorageSc
     public Task<int> MigrateAsync(CancellationToken cancellationToken = default) =>
         migrations.ApplyAsync(cancellationToken: cancellationToken);
 
-    public StorageReadiness CheckReadiness()
+    public Task<StorageReadiness> CheckReadinessAsync(CancellationToken cancellationToken = default)
     {
         try
         {
-            var version = migrations.CurrentVersion();
-            return version < migrations.LatestVersion
-                ? new StorageReadiness(false, version, $"Storage schema is at version {version}; this build needs {migrations.LatestVersion}.")
-                : new StorageReadiness(true, version, null);
+            return Task.FromResult(StorageReadiness.OfVersion(migrations.CurrentVersion(), migrations.LatestVersion));
         }
         catch (SqliteException e)
         {
-            return new StorageReadiness(false, 0, $"Storage is not reachable (SQLite error {e.SqliteErrorCode}).");
+            return Task.FromResult(new StorageReadiness(false, 0, $"Storage is not reachable (SQLite error {e.SqliteErrorCode})."));
         }
     }
 }

@@ -18,10 +18,10 @@ public static class HealthEndpoints
 
     public static Ok<LiveStatus> Live() => TypedResults.Ok(new LiveStatus("live"));
 
-    public static Results<Ok<ReadyStatus>, ProblemHttpResult> Ready(IStorageSchema schema)
+    public static async Task<Results<Ok<ReadyStatus>, ProblemHttpResult>> Ready(IStorageSchema schema, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(schema);
-        var readiness = schema.CheckReadiness();
+        var readiness = await schema.CheckReadinessAsync(cancellationToken);
         return readiness.Ready
             ? TypedResults.Ok(new ReadyStatus("ready", readiness.SchemaVersion))
             : TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready", detail: readiness.Problem);

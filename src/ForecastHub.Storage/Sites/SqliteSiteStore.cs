@@ -1,6 +1,4 @@
-using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
-using ForecastHub.Core.Settings;
 using Microsoft.Data.Sqlite;
 
 namespace ForecastHub.Storage.Sites;
@@ -105,8 +103,8 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         .With("$id", site.Id)
         .With("$name", site.Name)
         .With("$tz", site.TimeZone)
-        .With("$cadence", WireNames.Cadences.Of(site.Cadence))
-        .With("$daily", site.DailyStatistic is { } daily ? WireNames.DailyStatistics.Of(daily) : null)
+        .With("$cadence", SiteColumns.Cadence(site))
+        .With("$daily", SiteColumns.DailyStatistic(site))
         .With("$lat", site.Latitude)
         .With("$lon", site.Longitude)
         .With("$elev", site.ElevationM)
@@ -114,12 +112,12 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         .With("$maxC", site.Quality.MaxC)
         .With("$step", site.Quality.MaxStepCPerHour)
         .With("$flat", site.Quality.FlatlineHours)
-        .With("$seasonality", WireNames.Seasonalities.Of(site.Model.Seasonality))
-        .With("$method", WireNames.Methods.Of(site.Model.Method))
-        .With("$policy", WireNames.OrderPolicies.Of(site.Model.OrderPolicy))
+        .With("$seasonality", SiteColumns.Seasonality(site))
+        .With("$method", SiteColumns.Method(site))
+        .With("$policy", SiteColumns.OrderPolicy(site))
         .With("$maxOrder", site.Model.MaxOrder)
         .With("$window", site.Model.FitWindowDays)
-        .With("$interval", WireNames.IntervalMethods.Of(site.Model.IntervalMethod))
+        .With("$interval", SiteColumns.IntervalMethod(site))
         .With("$created", site.CreatedAt.ToUnixTimeMilliseconds())
         .With("$updated", site.UpdatedAt.ToUnixTimeMilliseconds())
         .With("$version", site.SettingsVersion);
@@ -128,21 +126,13 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         Id: r.GetString(0),
         Name: r.GetString(1),
         TimeZone: r.GetString(2),
-        Cadence: WireNames.Cadences.Parse(r.GetString(3)),
-        DailyStatistic: r.GetNullableString(4) is { } daily ? WireNames.DailyStatistics.Parse(daily) : null,
+        Cadence: SiteColumns.ReadCadence(r.GetString(3)),
+        DailyStatistic: SiteColumns.ReadDailyStatistic(r.GetNullableString(4)),
         Latitude: r.GetNullableDouble(5),
         Longitude: r.GetNullableDouble(6),
         ElevationM: r.GetNullableDouble(7),
         Quality: new QualityLimits(r.GetDouble(8), r.GetDouble(9), r.GetDouble(10), r.GetDouble(11)),
-        Model: new ModelSettings
-        {
-            Seasonality = WireNames.Seasonalities.Parse(r.GetString(12)),
-            Method = WireNames.Methods.Parse(r.GetString(13)),
-            OrderPolicy = WireNames.OrderPolicies.Parse(r.GetString(14)),
-            MaxOrder = r.GetInt32(15),
-            FitWindowDays = r.GetInt32(16),
-            IntervalMethod = WireNames.IntervalMethods.Parse(r.GetString(17)),
-        },
+        Model: SiteColumns.ReadModel(r.GetString(12), r.GetString(13), r.GetString(14), r.GetInt32(15), r.GetInt32(16), r.GetString(17)),
         CreatedAt: SqliteExtensions.FromUnixMs(r.GetInt64(18)),
         UpdatedAt: SqliteExtensions.FromUnixMs(r.GetInt64(19)),
         SettingsVersion: r.GetInt64(20));

@@ -1,0 +1,24 @@
+using ForecastHub.Storage.Postgres.Migrations;
+using Npgsql;
+
+namespace ForecastHub.Storage.Postgres;
+
+/// <summary>The PostgreSQL database's schema: its own migrations, and readiness from <c>schema_migrations</c>.</summary>
+public sealed class PostgresStorageSchema(PostgresMigrationRunner migrations) : IStorageSchema
+{
+    public Task<int> MigrateAsync(CancellationToken cancellationToken = default) =>
+        migrations.ApplyAsync(cancellationToken: cancellationToken);
+
+    public async Task<StorageReadiness> CheckReadinessAsync(CancellationToken cancellationToken = default)
+    {
+        try
+        {
+            var version = await migrations.CurrentVersionAsync(cancellationToken).ConfigureAwait(false);
+            return StorageReadiness.OfVersion(version, migrations.LatestVersion);
+        }
+        catch (NpgsqlException e)
+        {
+            return new StorageReadiness(false, 0, $"Storage is not reachable (PostgreSQL error {e.SqlState ?? "connection"}).");
+        }
+    }
+}
