@@ -63,12 +63,13 @@ public abstract class ApiKeyStoreContract : StorageContract
         await Backend.Keys.CreateAsync(admin);
         await Backend.Keys.CreateAsync(Key("key-0000000000000002", "read"));
         Assert.True(await Backend.Keys.HasActiveAdminAsync());
+        Assert.False(await Backend.Keys.HasActiveAdminAsync(exceptId: admin.Id));
 
         var revoked = await Backend.Keys.RevokeAsync(admin.Id, Start.AddHours(1));
         var again = await Backend.Keys.RevokeAsync(admin.Id, Start.AddHours(2));
 
-        Assert.Equal(Start.AddHours(1), revoked!.RevokedAt);
-        Assert.Equal(Start.AddHours(1), again!.RevokedAt);
+        Assert.Equal((Start.AddHours(1), true), (revoked!.Key.RevokedAt, revoked.Revoked));
+        Assert.Equal((Start.AddHours(1), false), (again!.Key.RevokedAt, again.Revoked));
         Assert.False((await Backend.Keys.FindBySecretAsync(admin.SecretSha256))!.IsActive);
         Assert.False(await Backend.Keys.HasActiveAdminAsync());
         Assert.Null(await Backend.Keys.RevokeAsync("key-ffffffffffffffff", Start));
