@@ -17,7 +17,7 @@ public abstract class ReadingSummaryStoreContract : StorageContract
 
         Assert.Null(await Backend.Summaries.GetAsync("nowhere"));
         Assert.Equal(new ReadingSummary(null, 0, 0, 0), await Backend.Summaries.GetAsync("site-a"));
-        Assert.Equal(0, await Backend.Summaries.CountStepsWithDataAsync("site-a", Start, HourMs, 0));
+        Assert.Equal(new StepsWithData(0, null), await Backend.Summaries.CountStepsWithDataAsync("site-a", Start, HourMs, 0));
     }
 
     [Fact]
@@ -62,8 +62,9 @@ public abstract class ReadingSummaryStoreContract : StorageContract
         await Backend.Readings.IngestAsync("site-a", readings, ConflictPolicy.Reject, Start);
 
         // Hours 0, 2 and 5 hold an unflagged reading; hour 1 holds only an out-of-range one.
-        Assert.Equal(3, await Backend.Summaries.CountStepsWithDataAsync("site-a", Start, HourMs, 0));
-        Assert.Equal(2, await Backend.Summaries.CountStepsWithDataAsync("site-a", Start.AddHours(1), HourMs, 0));
+        Assert.Equal(new StepsWithData(3, Start.AddHours(5)), await Backend.Summaries.CountStepsWithDataAsync("site-a", Start, HourMs, 0));
+        Assert.Equal(new StepsWithData(2, Start.AddHours(5)), await Backend.Summaries.CountStepsWithDataAsync("site-a", Start.AddHours(1), HourMs, 0));
+        Assert.Equal(new StepsWithData(0, null), await Backend.Summaries.CountStepsWithDataAsync("site-a", Start.AddHours(6), HourMs, 0));
     }
 
     [Fact]
@@ -78,7 +79,7 @@ public abstract class ReadingSummaryStoreContract : StorageContract
         ];
         await Backend.Readings.IngestAsync("daily-site", readings, ConflictPolicy.Reject, Start);
 
-        Assert.Equal(1, await Backend.Summaries.CountStepsWithDataAsync("daily-site", Start, DayMs, 0));
-        Assert.Equal(2, await Backend.Summaries.CountStepsWithDataAsync("daily-site", Start, DayMs, HourMs));
+        Assert.Equal(1, (await Backend.Summaries.CountStepsWithDataAsync("daily-site", Start, DayMs, 0)).Count);
+        Assert.Equal(2, (await Backend.Summaries.CountStepsWithDataAsync("daily-site", Start, DayMs, HourMs)).Count);
     }
 }

@@ -94,8 +94,14 @@ public sealed class ForecastService(
         return (entry.Answers.Count < MaxEntriesPerSite ? entry.Answers.GetOrAdd(query.Key, computed) : computed, null);
     }
 
-    private async Task<ForecastResponse?> ComputeAsync(SiteRecord site, ServingModel model, ForecastQuery query, DateTimeOffset now, CancellationToken cancellationToken)
+    /// <summary>
+    /// The grid a forecast issued at <paramref name="now"/> starts from: the recent data up to now, so
+    /// steps with no data at its end are seen (the core forecasts from the last value, counts horizons
+    /// from there and reports the missing steps). Null when the site has no data in that window.
+    /// </summary>
+    public async Task<Core.Grid.TimeGrid?> RecentGridAsync(SiteRecord site, DateTimeOffset now, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(site);
         var isDaily = site.IsDaily;
         var currentStep = SiteGridLoader.AlignDown(site, now);
 
@@ -108,14 +114,19 @@ public sealed class ForecastService(
             return null;
         }
 
-        // The grid runs up to now, so steps with no data at its end are seen: the core forecasts from
-        // the last value, counts horizons from there (wider intervals) and reports the missing steps.
         var grid = SiteGridLoader.Build(site, readings, from, to);
-        if (grid.LastValueIndex < 0)
+        return grid.LastValueIndex < 0 ? null : grid;
+    }
+
+    private async Task<ForecastResponse?> ComputeAsync(SiteRecord site, ServingModel model, ForecastQuery query, DateTimeOffset now, CancellationToken cancellationToken)
+    {
+        var grid = await RecentGridAsync(site, now, cancellationToken);
+        if (grid is null)
         {
             return null;
         }
 
+        var isDaily = site.IsDaily;
         var path = ForecastMapping.Forecast(model.Model, grid, query.Steps, query.Levels, query.Below, query.Above, MonteCarloSeed);
         var assessment = await health.EvaluateAsync(site, cancellationToken);
         var unit = isDaily ? "day" : "hour";

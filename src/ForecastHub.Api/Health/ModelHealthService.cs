@@ -1,7 +1,6 @@
 using System.Text.Json;
 using ForecastHub.Api.Models;
 using ForecastHub.Api.Verification;
-using ForecastHub.Core.Grid;
 using ForecastHub.Core.Health;
 using ForecastHub.Core.Quality;
 using ForecastHub.Core.Verification;
@@ -23,8 +22,6 @@ public sealed class ModelHealthService(
     IOptions<LiveScoreOptions> liveOptions,
     TimeProvider clock)
 {
-    private const long HourMs = 3_600_000;
-    private const long DayMs = 24 * HourMs;
 
     public async Task<HealthAssessment?> EvaluateAsync(string siteId, CancellationToken cancellationToken)
     {
@@ -46,10 +43,7 @@ public sealed class ModelHealthService(
         if (model is null)
         {
             var from = now.AddDays(-site.Model.FitWindowDays);
-            gridPoints = isDaily
-                ? await readingSummaries.CountStepsWithDataAsync(site.Id, from, DayMs,
-                    (long)GridBuilder.FindZone(site.TimeZone).BaseUtcOffset.TotalMilliseconds, cancellationToken)
-                : await readingSummaries.CountStepsWithDataAsync(site.Id, from, HourMs, 0, cancellationToken);
+            gridPoints = (await readingSummaries.StepsWithDataAsync(site, from, cancellationToken)).Count;
         }
 
         var live = await LiveWindowAsync(site.Id, now, cancellationToken);

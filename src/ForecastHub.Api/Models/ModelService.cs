@@ -2,6 +2,7 @@ using System.Collections.Concurrent;
 using System.Diagnostics;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Core.Health;
+using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Sites;
 using Microsoft.Extensions.Options;
@@ -22,6 +23,7 @@ public sealed record RefitOutcome(ServingModel? Model, string? Error, bool NotEn
 /// </summary>
 public sealed partial class ModelService(
     IModelStore store,
+    IReadingSummaryStore readingSummaries,
     SiteGridLoader grids,
     SiteVersions versions,
     ServiceMetrics metrics,
@@ -80,21 +82,23 @@ public sealed partial class ModelService(
         await gate.WaitAsync(cancellationToken);
         try
         {
+            // The decision needs counts and a last time only, answered from the index; the grid is built only for a fit.
             var now = clock.GetUtcNow();
-            var grid = await grids.LoadAsync(site, now.AddDays(-site.Model.FitWindowDays), now, cancellationToken);
-            if (grid is null)
+            var from = now.AddDays(-site.Model.FitWindowDays);
+            var steps = await readingSummaries.StepsWithDataAsync(site, from, cancellationToken);
+            var current = await GetAsync(site, cancellationToken);
+            var facts = new RefitFacts(
+                site.IsDaily, steps.Count, MinPoints(site), site.SettingsVersion,
+                current?.Stored.FittedAt, current?.Stored.SettingsVersion, current?.Stored.DataPoints, current?.Stored.DataEnd,
+                steps.LastAt is { } last ? SiteGridLoader.AlignDown(site, last) : null, now);
+            var reason = force ? RefitReason.Requested : RefitPolicy.Decide(facts, refitOptions.Value);
+            if (reason is null)
             {
                 return (null, null);
             }
 
-            var current = await GetAsync(site, cancellationToken);
-            var lastIndex = grid.LastValueIndex;
-            var facts = new RefitFacts(
-                site.IsDaily, grid.ObservedCount, MinPoints(site), site.SettingsVersion,
-                current?.Stored.FittedAt, current?.Stored.SettingsVersion, current?.Stored.DataPoints, current?.Stored.DataEnd,
-                lastIndex >= 0 ? grid.Times[lastIndex] : null, now);
-            var reason = force ? RefitReason.Requested : RefitPolicy.Decide(facts, refitOptions.Value);
-            if (reason is null)
+            var grid = await grids.LoadAsync(site, from, now, cancellationToken);
+            if (grid is null)
             {
                 return (null, null);
             }
@@ -166,6 +170,12 @@ public sealed partial class ModelService(
             loaded.TryRemove(victim, out _);
         }
     }
+
+    /// <summary>Parsed models held in memory now (at most <see cref="RefitOptions.MaxLoadedModels"/> after a load).</summary>
+    public int LoadedCount => loaded.Count;
+
+    /// <summary>Whether the site's model is held in memory (a read needs no storage).</summary>
+    public bool IsLoaded(string siteId) => loaded.ContainsKey(siteId);
 
     /// <summary>Drops the in-memory copy of a deleted site's model.</summary>
     public void Forget(string siteId) => loaded.TryRemove(siteId, out _);

@@ -1,4 +1,5 @@
 using ForecastHub.Api.Tests.Infrastructure;
+using Microsoft.Extensions.DependencyInjection;
 
 namespace ForecastHub.Api.Tests.Models;
 
@@ -22,10 +23,16 @@ public sealed class LoadedModelCapTests
         }
 
         // Each read evicts the one model held, so every later read goes back to storage.
+        var models = factory.Services.GetRequiredService<ForecastHub.Api.Models.ModelService>();
         foreach (var site in sites.Reverse().Concat(sites))
         {
+            var fromStorage = !models.IsLoaded(site);
             var model = await client.GetJsonAsync($"/api/v1/sites/{site}/model");
+
+            Assert.True(fromStorage, $"{site} was still in memory: nothing was evicted");
             Assert.Equal(before[site], model.GetRawText());
+            Assert.Equal(1, models.LoadedCount);
+            Assert.True(models.IsLoaded(site));
         }
     }
 

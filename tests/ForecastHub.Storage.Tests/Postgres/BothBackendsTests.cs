@@ -168,8 +168,8 @@ public sealed class BothBackendsTests
         Assert.Equal(DateTimeOffset.FromUnixTimeMilliseconds(29 * 3_600_000L), summary!.LastObservationAt);
         Assert.Equal(24, summary.LastDayReadings);
         Assert.True(summary.LastDayFlagged >= 1);
-        Assert.Equal(29, await b.Summaries.CountStepsWithDataAsync("site-a", DateTimeOffset.UnixEpoch, 3_600_000, 0));
-        Assert.Equal(2, await b.Summaries.CountStepsWithDataAsync("site-a", DateTimeOffset.UnixEpoch, Day, 0));
+        Assert.Equal(29, (await b.Summaries.CountStepsWithDataAsync("site-a", DateTimeOffset.UnixEpoch, 3_600_000, 0)).Count);
+        Assert.Equal(2, (await b.Summaries.CountStepsWithDataAsync("site-a", DateTimeOffset.UnixEpoch, Day, 0)).Count);
         Assert.Null(await b.Summaries.GetAsync("missing"));
     }
 
