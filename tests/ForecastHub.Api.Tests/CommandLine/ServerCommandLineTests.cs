@@ -83,6 +83,6 @@ public sealed class ServerCommandLineTests : IDisposable
         Assert.Null(ServerCommandLine.Check([]));
         Assert.Null(ServerCommandLine.Check(["--demo", "--urls=http://127.0.0.1:5000", "--Storage:Path=/srv/hub.db"]));
         Assert.Null(ServerCommandLine.Check(["--urls", "http://127.0.0.1:5000", "--Storage:Path", "/srv/hub.db", "Auth:AllowAnonymousRead=true"]));
-        Assert.Null(ServerCommandLine.Check(["--contentRoot=/app", "--environment=Development", "--applicationName=ForecastHub.Api"]));
+        Assert.Null(ServerCommandLine.Check(["--Storage=", "--Storage:Path=/tmp/x.db", "--contentRoot=/app", "--environment=Development", "--applicationName=ForecastHub.Api"]));
     }
 }
