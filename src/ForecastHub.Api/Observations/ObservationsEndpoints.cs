@@ -1,4 +1,5 @@
 using System.Globalization;
+using System.Security.Claims;
 using System.Text;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Hosting;
@@ -51,15 +52,17 @@ public static class ObservationsEndpoints
         {
             return ApiProblems.TooLarge($"The body is larger than {MaxBodyBytes / (1024 * 1024)} MiB; send at most {MaxReadings} readings per request.");
         }
-        return await IngestAsync(siteId, body, isJson, query, readings, sites, metrics, clock, cancellationToken).ConfigureAwait(false);
+        return await IngestAsync(siteId, body, isJson, query, request.HttpContext.User, readings, sites, metrics, clock, cancellationToken).ConfigureAwait(false);
     }
 
-    /// <summary>Everything a post does after its body has arrived: the one ingest path of HTTP and MQTT.</summary>
+    /// <summary>Everything a post does after its body has arrived and its key was allowed to write the
+    /// site (<paramref name="caller"/>): the one ingest path of HTTP and MQTT.</summary>
     public static async Task<Results<Ok<ObservationsAnswer>, ProblemHttpResult>> IngestAsync(
-        string siteId, byte[] body, bool isJson, IngestQuery query,
+        string siteId, byte[] body, bool isJson, IngestQuery query, ClaimsPrincipal caller,
         IReadingStore readings, ISiteStore sites, ServiceMetrics metrics, TimeProvider clock, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(query);
+        ArgumentNullException.ThrowIfNull(caller);
         ArgumentNullException.ThrowIfNull(sites);
         var (unit, onConflict) = (query.Unit, query.OnConflict);
         if (!SiteRules.IsValidSiteId(siteId))
@@ -110,8 +113,8 @@ public static class ObservationsEndpoints
             return SitesEndpoints.NoSuchSite(siteId);
         }
         // A key that may not read the series learns only that a different value is stored.
-        var mayRead = request.HttpContext.User.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Admin)
-            || request.HttpContext.User.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Read);
+        var mayRead = caller.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Admin)
+            || caller.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Read);
         var answer = Summarise(batch, result, mayRead);
         if (answer.Accepted + answer.Duplicates + answer.Replaced == 0)
         {
