@@ -1,62 +1,63 @@
 using System.Globalization;
-using ForecastHub.Core.Autoregression;
-using ForecastHub.Core.Climatology;
-using ForecastHub.Core.Grid;
-using ForecastHub.Core.Modeling;
-using ForecastHub.Core.Selection;
+using ForecastHub.Api.Observations;
 using ForecastHub.Core.Settings;
 
 namespace ForecastHub.Api.CommandLine;
 
-/// <summary>What <c>fit</c> and <c>backtest</c> were asked to do, parsed once into typed settings.
-/// Null cadence or zone: chosen from the file. Null fit window: the default of the cadence.</summary>
+/// <summary>What <c>fit</c> and <c>backtest</c> were asked to do. Null cadence or zone: chosen from the file.</summary>
 public sealed record OfflineOptions(
     string Verb,
     string InputPath,
     string? OutputPath,
-    GridCadence? Cadence,
+    string? Cadence,
     string? TimeZone,
-    DailyStatistic DailyStatistic,
-    Seasonality Seasonality,
-    ArMethod Method,
-    OrderPolicy OrderPolicy,
+    string DailyStatistic,
+    string Seasonality,
+    string Method,
+    string OrderPolicy,
     int MaxOrder,
     int? FitWindowDays,
-    IntervalMethod IntervalMethod,
+    string IntervalMethod,
     int? TestDays,
     int RefitEveryDays)
 {
-    /// <summary>The model settings of a site of <paramref name="cadence"/>: the service's defaults changed by the options given.</summary>
-    public ModelSettings Model(GridCadence cadence)
-    {
-        var defaults = ModelSettings.DefaultFor(cadence);
-        return defaults with
-        {
-            Seasonality = Seasonality,
-            Method = Method,
-            OrderPolicy = OrderPolicy,
-            MaxOrder = MaxOrder,
-            FitWindowDays = FitWindowDays ?? defaults.FitWindowDays,
-            IntervalMethod = IntervalMethod,
-        };
-    }
+    /// <summary>The file's layout (columns, separator, decimal mark).</summary>
+    public CsvLayout Layout { get; init; } = CsvLayout.Default;
 
-    public static readonly string Usage = $"""
+    /// <summary>Unit of values without a unit column; null: degrees C, with the unit check of the service.</summary>
+    public string? Unit { get; init; }
+
+    /// <summary>Times without an offset are wall-clock times of --time-zone.</summary>
+    public bool LocalTimes { get; init; }
+
+    public const string Usage = """
         Usage: ForecastHub.Api fit|backtest FILE.csv [options]
 
-        FILE.csv holds a header line 'time,value' (or 'time,value,unit'), then one reading per line:
-        an ISO 8601 time with an offset, and the value in degrees C (or the row's unit: C, F, K).
+        FILE.csv holds a header line naming its columns, then one reading per line: an ISO 8601 time
+        (with an offset, or local with --local-times), and the value in degrees C (or --unit, or the
+        row's unit column: C, F, K). Other columns are ignored.
 
-        Options (the defaults are the service's defaults for a new site):
-          --cadence {Words(WireNames.Cadences)}       grid step (default: from the median spacing of the times)
+        File layout:
+          --time-column NAME|N         the time column, by header name or 1-based position (default: time)
+          --value-column NAME|N        the value column (default: value)
+          --unit-column NAME|N         the unit column (default: a column named unit, if any)
+          --separator ,|;|tab          field separator (default: ,)
+          --decimal .|,                decimal mark (default: .)
+          --unit C|F|K                 unit of values without a unit column (default: C, refused when the
+                                       values look like another unit; --unit C insists)
+          --local-times                times without an offset are local times of --time-zone (a time the
+                                       clocks skip is rejected; a repeated hour is read as a pair in file order)
+
+        Model options (the defaults are the service's defaults for a new site):
+          --cadence hourly|daily       grid step (default: from the median spacing of the times)
           --time-zone ZONE             IANA zone for local days and hours (default: UTC)
-          --daily-statistic {Words(WireNames.DailyStatistics)}   statistic of a daily grid (default: {WireNames.DailyStatistics.Of(default)})
-          --seasonality {Words(WireNames.Seasonalities)}   (default: {WireNames.Seasonalities.Of(new ModelSettings().Seasonality)})
-          --method {Words(WireNames.Methods)}   (default: {WireNames.Methods.Of(new ModelSettings().Method)})
-          --order-policy {Words(WireNames.OrderPolicies)}       (default: {WireNames.OrderPolicies.Of(new ModelSettings().OrderPolicy)})
-          --max-order N                upper limit on the AR order (default: {ModelSettings.DefaultMaxOrder})
-          --fit-window-days N          days of history fitted (default: {ModelSettings.DefaultFitWindowDaysHourly} hourly, {ModelSettings.DefaultFitWindowDaysDaily} daily)
-          --interval-method {Words(WireNames.IntervalMethods)}          (default: {WireNames.IntervalMethods.Of(new ModelSettings().IntervalMethod)})
+          --daily-statistic mean|min|max   statistic of a daily grid (default: mean)
+          --seasonality auto|none|annual|annual-diurnal   (default: auto)
+          --method burg|yule-walker|least-squares|max-likelihood   (default: burg)
+          --order-policy pacf-aic|aic|aicc|bic|pacf       (default: pacf-aic)
+          --max-order N                upper limit on the AR order (default: 48)
+          --fit-window-days N          days of history fitted (default: 400 hourly, 1461 daily)
+          --interval-method calibrated|gaussian          (default: calibrated)
           --test-days N                days at the end scored by the backtest (default: fit 30, backtest 90)
           --refit-every-days N         backtest refit interval (default: 7)
           --out FILE.json              JSON report (default: beside the input, FILE.fit.json / FILE.backtest.json)
@@ -64,6 +65,7 @@ public sealed record OfflineOptions(
         The text report goes to standard output; exit code 0 on success, 2 on bad input.
         """;
 
+    // The settings' words come from the one table the API and storage use.
     private static readonly Dictionary<string, IReadOnlyList<string>> Choices = new(StringComparer.Ordinal)
     {
         ["--cadence"] = WireNames.Cadences.Words,
@@ -72,11 +74,14 @@ public sealed record OfflineOptions(
         ["--method"] = WireNames.Methods.Words,
         ["--order-policy"] = WireNames.OrderPolicies.Words,
         ["--interval-method"] = WireNames.IntervalMethods.Words,
+        ["--unit"] = ["C", "F", "K"],
     };
 
     private static readonly string[] Numbers = ["--max-order", "--fit-window-days", "--test-days", "--refit-every-days"];
 
-    private static readonly string[] Texts = ["--time-zone", "--out"];
+    private static readonly string[] Texts = ["--time-zone", "--out", "--time-column", "--value-column", "--unit-column", "--separator", "--decimal"];
+
+    private static readonly string[] Switches = ["--local-times"];
 
     /// <summary>Reads the arguments after the verb; an error names the bad option.</summary>
     public static (OfflineOptions? Options, string? Error) Parse(string verb, IReadOnlyList<string> args)
@@ -94,6 +99,11 @@ public sealed record OfflineOptions(
                     return (null, $"only one input file is read; '{arg}' is a second one.");
                 }
                 input = arg;
+                continue;
+            }
+            if (Switches.Contains(arg))
+            {
+                values[arg] = "true";
                 continue;
             }
             var (name, value) = arg.Contains('=', StringComparison.Ordinal)
@@ -121,27 +131,37 @@ public sealed record OfflineOptions(
         {
             return (null, "name the CSV file to read.");
         }
+        var (layout, _, layoutError) = CsvLayout.From(values.GetValueOrDefault("--time-column"), values.GetValueOrDefault("--value-column"),
+            values.GetValueOrDefault("--unit-column"), values.GetValueOrDefault("--separator"), values.GetValueOrDefault("--decimal"));
+        if (layout is null)
+        {
+            return (null, layoutError);
+        }
+        if (values.ContainsKey("--local-times") && !values.ContainsKey("--time-zone"))
+        {
+            return (null, "--local-times reads times in the site's zone: give it with --time-zone ZONE.");
+        }
         int? Number(string name) => values.TryGetValue(name, out var v) ? int.Parse(v, CultureInfo.InvariantCulture) : null;
-        T Choice<T>(string name, WordTable<T> table, T fallback)
-            where T : struct, Enum => values.TryGetValue(name, out var word) ? table.Parse(word) : fallback;
-        var defaults = new ModelSettings();
+        string Text(string name, string fallback) => values.GetValueOrDefault(name, fallback);
         return (new OfflineOptions(
             verb,
             input,
             values.GetValueOrDefault("--out"),
-            values.ContainsKey("--cadence") ? Choice("--cadence", WireNames.Cadences, GridCadence.Hourly) : null,
+            values.GetValueOrDefault("--cadence"),
             values.GetValueOrDefault("--time-zone"),
-            Choice("--daily-statistic", WireNames.DailyStatistics, DailyStatistic.Mean),
-            Choice("--seasonality", WireNames.Seasonalities, defaults.Seasonality),
-            Choice("--method", WireNames.Methods, defaults.Method),
-            Choice("--order-policy", WireNames.OrderPolicies, defaults.OrderPolicy),
-            Number("--max-order") ?? defaults.MaxOrder,
+            Text("--daily-statistic", "mean"),
+            Text("--seasonality", "auto"),
+            Text("--method", "burg"),
+            Text("--order-policy", "pacf-aic"),
+            Number("--max-order") ?? 48,
             Number("--fit-window-days"),
-            Choice("--interval-method", WireNames.IntervalMethods, defaults.IntervalMethod),
+            Text("--interval-method", "calibrated"),
             Number("--test-days"),
-            Number("--refit-every-days") ?? 7), null);
+            Number("--refit-every-days") ?? 7)
+        {
+            Layout = layout,
+            Unit = values.GetValueOrDefault("--unit"),
+            LocalTimes = values.ContainsKey("--local-times"),
+        }, null);
     }
-
-    private static string Words<T>(WordTable<T> table)
-        where T : struct, Enum => string.Join('|', table.Words);
 }

@@ -84,7 +84,8 @@ public sealed partial class ModelService(
         {
             // The decision needs counts and a last time only, answered from the index; the grid is built only for a fit.
             var now = clock.GetUtcNow();
-            var from = now.AddDays(-site.Model.FitWindowDays);
+            // Counted back from the newest reading, so a site holding only an old archive is fitted on it.
+            var from = await grids.WindowStartAsync(site, site.Model.FitWindowDays, now, cancellationToken);
             var steps = await readingSummaries.StepsWithDataAsync(site, from, cancellationToken);
             var current = await GetAsync(site, cancellationToken);
             var facts = new RefitFacts(
