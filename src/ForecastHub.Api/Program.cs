@@ -1,4 +1,5 @@
 using ForecastHub.Api.Auth;
+using ForecastHub.Api.Cluster;
 using ForecastHub.Api.CommandLine;
 using ForecastHub.Api.Dashboard;
 using ForecastHub.Api.Demo;
@@ -13,7 +14,6 @@ using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
 using ForecastHub.Api.Verification;
-using ForecastHub.Storage;
 
 // Verbs that run without a web host: the container's health probe and the offline fit/backtest.
 if (HealthProbe.IsRequested(args))
@@ -46,13 +46,14 @@ builder.Services.AddForecastHubRequestLimits();
 builder.Services.AddForecastHubRateLimits();
 builder.Services.AddForecastHubOpenApi();
 
-// Storage first: its migrations run before anything else reads it at start.
-builder.Services.AddSqliteStorage();
+// Storage first (the backend Storage:Provider names): its migrations run before anything else reads it at start.
+builder.Services.AddForecastHubStorage();
 builder.Services.AddForecastHubAuth();
 builder.AddDemoMode(demoFlag);
 
 // Features. AddSites before AddModels: the refit notification wraps the site cache.
 builder.Services.AddServiceMetrics();
+builder.Services.AddCluster();
 builder.Services.AddSites();
 builder.Services.AddModels();
 builder.Services.AddForecasts();

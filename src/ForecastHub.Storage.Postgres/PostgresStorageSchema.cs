@@ -1,5 +1,4 @@
 using ForecastHub.Storage.Postgres.Migrations;
-using Npgsql;
 
 namespace ForecastHub.Storage.Postgres;
 
@@ -16,9 +15,9 @@ public sealed class PostgresStorageSchema(PostgresMigrationRunner migrations) : 
             var version = await migrations.CurrentVersionAsync(cancellationToken).ConfigureAwait(false);
             return StorageReadiness.OfVersion(version, migrations.LatestVersion);
         }
-        catch (NpgsqlException e)
+        catch (Exception e) when (e is System.Data.Common.DbException or TimeoutException or System.Net.Sockets.SocketException)
         {
-            return new StorageReadiness(false, 0, $"Storage is not reachable (PostgreSQL error {e.SqlState ?? "connection"}).");
+            return new StorageReadiness(false, 0, $"Storage is not reachable ({e.GetType().Name}).");
         }
     }
 }

@@ -1,3 +1,4 @@
+using ForecastHub.Api.Cluster;
 using ForecastHub.Api.Hosting;
 using ForecastHub.Storage.Sites;
 
@@ -5,7 +6,7 @@ namespace ForecastHub.Api.Sites;
 
 public static class SitesSetup
 {
-    /// <summary>Site records kept in memory (<see cref="CachedSiteStore"/>) around the storage's site store.</summary>
+    /// <summary>Site records kept in memory (<see cref="CachedSiteStore"/>) around the storage's site store; other nodes' changes drop them (<see cref="NodeCaches"/>).</summary>
     public static IServiceCollection AddSites(this IServiceCollection services) =>
-        services.Decorate<ISiteStore>((_, inner) => new CachedSiteStore(inner));
+        services.Decorate<ISiteStore>((sp, inner) => sp.GetRequiredService<NodeCaches>().Sites = new CachedSiteStore(inner));
 }
