@@ -240,8 +240,8 @@ public sealed class ClusterTests
             .Select((r, i) => new IncomingReading(i, r.Time.ToUnixTimeMilliseconds(), r.Value, r.Value, "C")).ToArray();
         foreach (var id in siteIds)
         {
-            Assert.True(await sites.CreateAsync(new SiteRecord(id, id, "UTC", "hourly", null, null, null, null, QualityLimits.Default,
-                new ModelSettings("auto", "burg", "pacf-aic", maxOrder, days, "calibrated"), now, now)));
+            Assert.True(await sites.CreateAsync(new SiteRecord(id, id, "UTC", ForecastHub.Core.Grid.GridCadence.Hourly, null, null, null, null, QualityLimits.Default,
+                new ForecastHub.Core.Modeling.ModelSettings { MaxOrder = maxOrder, FitWindowDays = days }, now, now)));
             await readings.IngestAsync(id, hourly, ConflictPolicy.Reject, now);
         }
     }
