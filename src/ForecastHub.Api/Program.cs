@@ -5,6 +5,7 @@ using ForecastHub.Api.Demo;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Keys;
+using ForecastHub.Api.Mqtt;
 using ForecastHub.Api.Observations;
 using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
@@ -42,6 +43,7 @@ builder.Services.AddForecastHubRateLimits();
 builder.Services.AddForecastHubOpenApi();
 builder.AddDemoMode(demoFlag);
 builder.Services.AddForecastHubModels();
+builder.Services.AddForecastHubMqtt();
 
 var app = builder.Build();
 

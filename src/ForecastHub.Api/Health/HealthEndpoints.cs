@@ -1,3 +1,4 @@
+using ForecastHub.Api.Mqtt;
 using ForecastHub.Storage.Migrations;
 using Microsoft.AspNetCore.Http.HttpResults;
 using Microsoft.Data.Sqlite;
@@ -19,8 +20,9 @@ public static class HealthEndpoints
 
     public static Ok<LiveStatus> Live() => TypedResults.Ok(new LiveStatus("live"));
 
-    public static Results<Ok<ReadyStatus>, ProblemHttpResult> Ready(MigrationRunner migrations)
+    public static Results<Ok<ReadyStatus>, ProblemHttpResult> Ready(MigrationRunner migrations, MqttSubscriptionState mqtt)
     {
+        ArgumentNullException.ThrowIfNull(mqtt);
         try
         {
             var version = migrations.CurrentVersion();
@@ -29,7 +31,8 @@ public static class HealthEndpoints
                 return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
                     detail: $"Storage schema is at version {version}; this build needs {migrations.LatestVersion}.");
             }
-            return TypedResults.Ok(new ReadyStatus("ready", version));
+            // The MQTT subscription is reported, never a reason to be unready: HTTP ingest works without it.
+            return TypedResults.Ok(new ReadyStatus("ready", version, new MqttStatus(mqtt.State, mqtt.Since, mqtt.LastError)));
         }
         catch (SqliteException e)
         {
@@ -41,4 +44,7 @@ public static class HealthEndpoints
 
 public sealed record LiveStatus(string Status);
 
-public sealed record ReadyStatus(string Status, int SchemaVersion);
+public sealed record ReadyStatus(string Status, int SchemaVersion, MqttStatus Mqtt);
+
+/// <summary>The MQTT subscription: <c>off</c> (no Mqtt:Server), <c>connecting</c>, <c>connected</c> or <c>reconnecting</c>.</summary>
+public sealed record MqttStatus(string State, DateTimeOffset? Since, string? LastError);
