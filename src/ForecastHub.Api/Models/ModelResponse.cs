@@ -11,7 +11,6 @@ public sealed record ModelResponse(
     SeasonalityResponse Seasonality,
     ArResponse Ar,
     OrderSelectionResponse OrderSelection,
-    SeasonalArResponse? SeasonalAr,
     IReadOnlyList<LagValueResponse> Acf,
     ResidualsResponse Residuals,
     IntervalsResponse Intervals,
@@ -55,21 +54,6 @@ public sealed record OrderSelectionResponse(
     IReadOnlyList<CriteriaResponse> Criteria,
     int ChosenOrder,
     string CriteriaSample);
-
-/// <summary>Season-dependent AR coefficients (daily sites with annual harmonics): phi_i(t) = constant + cos x cos(annual angle)
-/// + sin x sin(annual angle) on the first lags, compared with the constant AR of the same order on the same rows by the AIC.</summary>
-public sealed record SeasonalArResponse(
-    bool Used,
-    int Order,
-    IReadOnlyList<SeasonalCoefficientResponse> Coefficients,
-    double InnovationVariance,
-    int Rows,
-    IReadOnlyList<SeasonalCriteriaResponse> Criteria,
-    string Decision);
-
-public sealed record SeasonalCoefficientResponse(int Lag, double Constant, double Cos, double Sin);
-
-public sealed record SeasonalCriteriaResponse(string Form, int Parameters, double Aic);
 
 public sealed record LagValueResponse(int Lag, double Value);
 

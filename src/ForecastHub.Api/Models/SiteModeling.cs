@@ -111,16 +111,6 @@ public sealed class SiteModeling
                 [.. selection.Criteria.Select(c => new CriteriaResponse(c.Order, c.Aic, c.Aicc, c.Bic))],
                 selection.ChosenOrder,
                 $"{Wire(selection.CriteriaSample)} ({selection.CriteriaSampleSize} points)"),
-            m.SeasonalAr is { } sa
-                ? new SeasonalArResponse(
-                    sa.Used,
-                    sa.Order,
-                    [.. sa.Constant.Select((c, i) => new SeasonalCoefficientResponse(i + 1, c, i < sa.Lags ? sa.Cos[i] : 0, i < sa.Lags ? sa.Sin[i] : 0))],
-                    sa.InnovationVariance,
-                    sa.Rows,
-                    [new SeasonalCriteriaResponse("constant", sa.Order, sa.AicConstant), new SeasonalCriteriaResponse("seasonal", sa.Order + (2 * sa.Lags), sa.AicSeasonal)],
-                    sa.Decision)
-                : null,
             [.. m.Acf.Select(a => new LagValueResponse(a.Lag, a.Value))],
             new ResidualsResponse(
                 diagnostics.LjungBox is { } lb ? new LjungBoxResponse(lb.Lags, lb.Statistic, lb.Df, lb.PValue) : null,

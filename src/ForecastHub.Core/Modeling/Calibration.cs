@@ -120,12 +120,6 @@ public static class Calibration
             }
 
             count++;
-            if (fold.SeasonalAr is { Used: true })
-            {
-                ar = fold.ArFor(window.Times[o + 1]);
-                psi = ArForecast.PsiWeights(ar.Coefficients, horizons);
-            }
-
             AnomalyPath.Compute(ar, anomalies.AsSpan(o - ar.Order + 1, ar.Order), psi, g.AsSpan(o + 1, steps), mean.AsSpan(0, steps), sd.AsSpan(0, steps));
             for (var h = 1; h <= steps; h++)
             {

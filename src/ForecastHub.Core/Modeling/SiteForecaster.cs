@@ -1,4 +1,3 @@
-using ForecastHub.Core.Autoregression;
 using ForecastHub.Core.Forecasting;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Series;
@@ -57,8 +56,7 @@ public static class SiteForecaster
         NextDayPlan? plan = model.Cadence == GridCadence.Hourly && paths > 0 ? PlanNextDay(recent, last, zone) : null;
         var total = Math.Max(horizons, plan?.Last ?? 0);
 
-        var times = GridClock.Following(model.Cadence, zone, recent.Times[last], total);
-        var ar = model.ArFor(times[0]);
+        var ar = model.Ar;
         var historyTimes = recent.Times.AsSpan(Math.Max(0, last - ar.Order + 1), Math.Min(ar.Order, last + 1)).ToArray();
         var historyClimatology = model.Climatology.Mean(historyTimes);
         var anomalies = new double[last + 1];
@@ -75,6 +73,7 @@ public static class SiteForecaster
         }
 
         var history = AnomalyPath.History(ar, anomalies, last);
+        var times = GridClock.Following(model.Cadence, zone, recent.Times[last], total);
         var climatology = model.Climatology.Mean(times);
         var g = model.VarianceSeason.Factors(times);
         var psi = ArForecast.PsiWeights(ar.Coefficients, total);
@@ -108,7 +107,7 @@ public static class SiteForecaster
             result[s] = new ForecastStep(times[k], k + 1, mean[k], sd[k], intervals);
         }
 
-        var nextDay = plan is { } p ? Summarise(ar, table, p, mean, g, levels, thresholds, paths, seed) : null;
+        var nextDay = plan is { } p ? Summarise(model, table, p, mean, g, levels, thresholds, paths, seed) : null;
         return new SiteForecast(recent.Times[last], missing, table is null ? IntervalMethod.Gaussian : IntervalMethod.Calibrated, result, nextDay, notes);
     }
 
@@ -126,7 +125,7 @@ public static class SiteForecaster
         return new NextDayPlan(date, from, to, first, end - 1);
     }
 
-    private static NextDaySummary Summarise(ArModel ar, CalibrationTable? table, NextDayPlan plan, double[] mean, double[] g, IReadOnlyList<double> levels, IReadOnlyList<Threshold> thresholds, int paths, int seed)
+    private static NextDaySummary Summarise(SiteModel model, CalibrationTable? table, NextDayPlan plan, double[] mean, double[] g, IReadOnlyList<double> levels, IReadOnlyList<Threshold> thresholds, int paths, int seed)
     {
         // Widen the simulated innovations by the calibration's 80% spread ratio over the day's horizons.
         var inflation = 1.0;
@@ -137,7 +136,7 @@ public static class SiteForecaster
                 .Average(h => (Calibration.Interval(table, h, 0, 1, 0.8).Upper - Calibration.Interval(table, h, 0, 1, 0.8).Lower) / (2 * z80));
         }
 
-        var (min, max, dayMean) = NextDaySimulation.Run(ar, mean, g, inflation, plan.First, plan.Last, paths, seed);
+        var (min, max, dayMean) = NextDaySimulation.Run(model.Ar, mean, g, inflation, plan.First, plan.Last, paths, seed);
         var probabilities = thresholds.Select(t => new ThresholdProbability(
             t.Value,
             t.Direction,

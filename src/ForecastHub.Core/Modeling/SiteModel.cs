@@ -42,8 +42,7 @@ public sealed record ResidualDiagnostics(LjungBoxResult? LjungBox, JarqueBeraRes
 /// <summary>
 /// Everything needed to forecast later from newer data. Plain records and lists, so it round-trips
 /// through System.Text.Json (the service stores it as JSON). The anomaly a_t = y_t - climatology(t)
-/// follows <see cref="Ar"/> (or, when used, the season-dependent coefficients of <see cref="SeasonalAr"/>) with
-/// innovation variance Ar.InnovationVariance x VarianceSeason g(t).
+/// follows <see cref="Ar"/> with innovation variance Ar.InnovationVariance x VarianceSeason g(t).
 /// </summary>
 public sealed record SiteModel(
     GridCadence Cadence,
@@ -57,10 +56,4 @@ public sealed record SiteModel(
     CalibrationTable? Calibration,
     ResidualDiagnostics Diagnostics,
     IReadOnlyList<LagValue> Acf,
-    IReadOnlyList<string> Notes,
-    SeasonalArTerms? SeasonalAr = null)
-{
-    /// <summary>The AR a forecast whose first step is at <paramref name="firstStep"/> uses: <see cref="Ar"/>, or its
-    /// seasonal coefficients there when the AIC chose them.</summary>
-    public ArModel ArFor(DateTimeOffset firstStep) => SeasonalAr?.Frozen(Ar, Climatology.Design, firstStep) ?? Ar;
-}
+    IReadOnlyList<string> Notes);

@@ -148,14 +148,13 @@ public static class SiteModelFitter
             residualSd,
             n);
         var anomalySegments = window.Split(anomalies);
-        var seasonalAr = SeasonalArTerms.Fit(window, anomalies, ar, design, x);
-        var residuals = seasonalAr is { Used: true } ? seasonalAr.Residuals(window, anomalies, ar.Mean, x!) : ArFit.Residuals(ar, anomalySegments);
+        var residuals = ArFit.Residuals(ar, anomalySegments);
         var varianceSeason = FitVarianceSeason(window, residuals, ar.Order, design, x);
         var residualDiagnostics = diagnostics ? Diagnose(residuals, ar.Order, cadence) : new ResidualDiagnostics(null, null, ResidualSummary.Of(residuals));
         var acfLags = Math.Min(Math.Max(selection.MaxOrder, 1), n - 1);
         var acf = diagnostics ? Autocorrelation.Acf(anomalySegments, acfLags).Skip(1).Select((r, k) => new LagValue(k + 1, r)).ToArray() : [];
         var fitWindow = new FitWindow(window.Times[0], window.Times[^1], n, window.Interpolated.Count(b => b), window.Segments.Length);
-        return new SiteModel(cadence, timeZone, settings, fitWindow, climatology, ar, selection, varianceSeason, null, residualDiagnostics, acf, [.. notes], seasonalAr);
+        return new SiteModel(cadence, timeZone, settings, fitWindow, climatology, ar, selection, varianceSeason, null, residualDiagnostics, acf, [.. notes]);
     }
 
     private static OrderSelectionResult Select(SeriesWindow window, double[] anomalies, ModelSettings settings) =>
