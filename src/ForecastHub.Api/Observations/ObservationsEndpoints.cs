@@ -1,10 +1,12 @@
 using System.Globalization;
+using System.Security.Claims;
 using System.Text;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
+using ForecastHub.Core.Grid;
 using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
@@ -27,7 +29,8 @@ public static class ObservationsEndpoints
             .WithSummary("Store readings (JSON or text/csv); answers per-row outcomes. Retrying a batch is safe.")
             .RequireAuthorization(AuthPolicies.Ingest)
             .Accepts<ObservationsBody>("application/json", "text/csv")
-            .WithRequestBodyLimit(MaxBodyBytes);
+            .WithRequestBodyLimit(MaxBodyBytes)
+            .ProducesProblem(StatusCodes.Status422UnprocessableEntity);
         group.MapGet("/", ObservationQueries.Get).WithName("GetObservations")
             .WithSummary("Stored readings (resolution=raw) or the site's regular grid (resolution=grid), JSON or CSV, paged by 'next'.")
             .RequireAuthorization(AuthPolicies.Read);
@@ -35,9 +38,33 @@ public static class ObservationsEndpoints
     }
 
     public static async Task<Results<Ok<ObservationsAnswer>, ProblemHttpResult>> Post(
-        string siteId, HttpRequest request, [FromQuery] string? unit, [FromQuery] string? onConflict,
-        IReadingStore readings, ServiceMetrics metrics, TimeProvider clock, CancellationToken cancellationToken)
+        string siteId, HttpRequest request, [AsParameters] IngestQuery query,
+        IReadingStore readings, ISiteStore sites, ServiceMetrics metrics, TimeProvider clock, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(request);
+        var isJson = RequestBody.IsJson(request);
+        if (!isJson && !RequestBody.IsCsv(request))
+        {
+            return ApiProblems.UnsupportedMediaType("Send readings as 'application/json' or 'text/csv'.");
+        }
+        var body = await RequestBody.ReadAsync(request, MaxBodyBytes, cancellationToken).ConfigureAwait(false);
+        if (body is null)
+        {
+            return ApiProblems.TooLarge($"The body is larger than {MaxBodyBytes / (1024 * 1024)} MiB; send at most {MaxReadings} readings per request.");
+        }
+        return await IngestAsync(siteId, body, isJson, query, request.HttpContext.User, readings, sites, metrics, clock, cancellationToken).ConfigureAwait(false);
+    }
+
+    /// <summary>Everything a post does after its body has arrived and its key was allowed to write the
+    /// site (<paramref name="caller"/>): the one ingest path of HTTP and MQTT.</summary>
+    public static async Task<Results<Ok<ObservationsAnswer>, ProblemHttpResult>> IngestAsync(
+        string siteId, byte[] body, bool isJson, IngestQuery query, ClaimsPrincipal caller,
+        IReadingStore readings, ISiteStore sites, ServiceMetrics metrics, TimeProvider clock, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(query);
+        ArgumentNullException.ThrowIfNull(caller);
+        ArgumentNullException.ThrowIfNull(sites);
+        var (unit, onConflict) = (query.Unit, query.OnConflict);
         if (!SiteRules.IsValidSiteId(siteId))
         {
             return SitesEndpoints.NoSuchSite(siteId);
@@ -50,21 +77,33 @@ public static class ObservationsEndpoints
         {
             return ApiProblems.BadRequest("onConflict", "onConflict must be 'reject' (the default) or 'replace'.");
         }
-        var isJson = RequestBody.IsJson(request);
-        if (!isJson && !RequestBody.IsCsv(request))
+        var (layout, layoutField, layoutError) = CsvLayout.From(query.TimeColumn, query.ValueColumn, query.UnitColumn, query.Separator, query.DecimalMark);
+        if (layout is null)
         {
-            return ApiProblems.UnsupportedMediaType("Send readings as 'application/json' or 'text/csv'.");
+            return ApiProblems.BadRequest(layoutField!, layoutError!);
         }
-        var body = await RequestBody.ReadAsync(request, MaxBodyBytes, cancellationToken).ConfigureAwait(false);
-        if (body is null)
+        if (isJson && query.NamesCsvLayout)
         {
-            return ApiProblems.TooLarge($"The body is larger than {MaxBodyBytes / (1024 * 1024)} MiB; send at most {MaxReadings} readings per request.");
+            return ApiProblems.BadRequest("timeColumn", "timeColumn, valueColumn, unitColumn, separator and decimal describe a text/csv body; this body is JSON.");
         }
+        var site = await sites.GetAsync(siteId, cancellationToken).ConfigureAwait(false);
+        if (site is null)
+        {
+            return SitesEndpoints.NoSuchSite(siteId);
+        }
+        var localZone = query.LocalTimes == true ? GridBuilder.FindZone(site.TimeZone) : null;
         var now = clock.GetUtcNow();
-        var (batch, problem) = isJson ? ReadJson(body, unit, now) : ReadCsv(body, unit, now);
+        var (batch, problem) = isJson
+            ? (localZone is null ? ReadJson(body, unit, now) : Validate(ParseJson(body), unit, now, localZone))
+            : Validate(ParseCsv(body, layout), unit, now, localZone);
         if (problem is not null)
         {
             return problem;
+        }
+        if (UnitPlausibility.Check(batch!, site.Quality) is { } unitProblem)
+        {
+            return TypedResults.Problem(statusCode: StatusCodes.Status422UnprocessableEntity, title: "The unit looks wrong",
+                detail: unitProblem, extensions: new Dictionary<string, object?> { ["field"] = "unit" });
         }
         metrics.Readings.Inc(batch!.Rejected.Count, "rejected");
         var policy = onConflict == "replace" ? ConflictPolicy.Replace : ConflictPolicy.Reject;
@@ -73,7 +112,10 @@ public static class ObservationsEndpoints
         {
             return SitesEndpoints.NoSuchSite(siteId);
         }
-        var answer = Summarise(batch, result);
+        // A key that may not read the series learns only that a different value is stored.
+        var mayRead = caller.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Admin)
+            || caller.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Read);
+        var answer = Summarise(batch, result, mayRead);
         if (answer.Accepted + answer.Duplicates + answer.Replaced == 0)
         {
             return TypedResults.Problem(statusCode: StatusCodes.Status422UnprocessableEntity, title: "No reading stored",
@@ -86,7 +128,7 @@ public static class ObservationsEndpoints
         return TypedResults.Ok(answer);
     }
 
-    private static ObservationsAnswer Summarise(ReadingBatch batch, IngestResult result)
+    private static ObservationsAnswer Summarise(ReadingBatch batch, IngestResult result, bool showStoredValues)
     {
         var (valid, rejected) = (batch.Valid, batch.Rejected);
         int accepted = 0, duplicates = 0, replaced = 0, flagged = 0;
@@ -106,8 +148,11 @@ public static class ObservationsEndpoints
                     break;
                 case ReadingOutcomeKind.Conflict:
                     var index = valid[i].Index;
-                    rejected.Add(new RejectedReading(index, batch.Line(index), batch.TimeText(index), string.Create(CultureInfo.InvariantCulture,
-                        $"conflict: {outcome.StoredValueC:0.###} C is already stored for this time; send ?onConflict=replace to overwrite it.")));
+                    var stored = showStoredValues
+                        ? string.Create(CultureInfo.InvariantCulture, $"{outcome.StoredValueC:0.###} C is")
+                        : "a different value is";
+                    rejected.Add(new RejectedReading(index, batch.Line(index), batch.TimeText(index),
+                        $"conflict: {stored} already stored for this time; send ?onConflict=replace to overwrite it."));
                     continue;
             }
             if (outcome.Kind != ReadingOutcomeKind.Duplicate && outcome.Flags != QualityFlags.None)
@@ -121,16 +166,15 @@ public static class ObservationsEndpoints
 
     // The fast reader for the usual JSON body; the strict parser for CSV and for every other JSON body.
     private static (ReadingBatch? Batch, ProblemHttpResult? Problem) ReadJson(byte[] body, string? queryUnit, DateTimeOffset now) =>
-        Utf8JsonReadings.TryRead(body, queryUnit, now, MaxReadings) is { } batch ? (batch, null) : ReadJsonStrict(body, queryUnit, now);
+        RequestBody.InvalidUtf8At(body) is null && Utf8JsonReadings.TryRead(body, queryUnit, now, MaxReadings) is { } batch
+            ? (batch, null)
+            : ReadJsonStrict(body, queryUnit, now);
 
     internal static (ReadingBatch? Batch, ProblemHttpResult? Problem) ReadJsonStrict(byte[] body, string? queryUnit, DateTimeOffset now) =>
         Validate(ParseJson(body), queryUnit, now);
 
-    private static (ReadingBatch? Batch, ProblemHttpResult? Problem) ReadCsv(byte[] body, string? queryUnit, DateTimeOffset now) =>
-        Validate(ParseCsv(body), queryUnit, now);
-
     private static (ReadingBatch? Batch, ProblemHttpResult? Problem) Validate(
-        (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) parsed, string? unit, DateTimeOffset now)
+        (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) parsed, string? unit, DateTimeOffset now, TimeZoneInfo? localZone = null)
     {
         var (rows, bodyUnit, problem) = parsed;
         if (problem is not null)
@@ -149,8 +193,8 @@ public static class ObservationsEndpoints
         {
             return (null, ApiProblems.BadRequest("readings", "The request holds no readings."));
         }
-        var (valid, rejected) = ReadingValidation.Validate(rows, bodyUnit ?? unit ?? TemperatureUnits.Celsius, now);
-        return (new ReadingBatch(rows.Count, valid, rejected, i => rows[i].Time, i => rows[i].Line), null);
+        var (valid, rejected, impossible) = ReadingValidation.Validate(rows, bodyUnit ?? unit ?? TemperatureUnits.Celsius, now, localZone);
+        return (new ReadingBatch(rows.Count, valid, rejected, i => rows[i].Time, i => rows[i].Line, impossible), null);
     }
 
     private static (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) ParseJson(byte[] body)
@@ -168,9 +212,9 @@ public static class ObservationsEndpoints
         return (rows, unit, null);
     }
 
-    private static (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) ParseCsv(byte[] body)
+    private static (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) ParseCsv(byte[] body, CsvLayout layout)
     {
-        var (rows, error, tooMany) = CsvReadings.Parse(body, MaxReadings);
+        var (rows, error, tooMany) = CsvReadings.Parse(body, MaxReadings, layout);
         if (rows is null)
         {
             return (null, null, tooMany ? ApiProblems.TooLarge(error!) : ApiProblems.BadRequest("body", error!));
