@@ -1,5 +1,5 @@
 # The general-purpose peer on Seattle 2015, one day ahead, for the day-ahead skill benchmark.
-# Run from the repository root:  Rscript tests/reference/seattle-peer-fixtures.R   (about a minute)
+# Run from the repository root:  Rscript tests/reference/seattle-peer-fixtures.R   (about 3 CPU minutes)
 # Needs Debian r-base-core (R 4.2) and r-cran-forecast (8.20).
 # Writes tests/ForecastHub.Core.Tests/Fixtures/seattle-peer-2015.json (the test year) and
 # seattle-peer-2014.json (the same for 2014, trained on 2012-2013: the year settings are chosen on).
