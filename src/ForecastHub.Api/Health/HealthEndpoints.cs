@@ -1,7 +1,7 @@
+using System.Data.Common;
+using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Mqtt;
-using ForecastHub.Storage.Migrations;
 using Microsoft.AspNetCore.Http.HttpResults;
-using Microsoft.Data.Sqlite;
 
 namespace ForecastHub.Api.Health;
 
@@ -20,25 +20,27 @@ public static class HealthEndpoints
 
     public static Ok<LiveStatus> Live() => TypedResults.Ok(new LiveStatus("live"));
 
-    public static Results<Ok<ReadyStatus>, ProblemHttpResult> Ready(MigrationRunner migrations, MqttSubscriptionState mqtt)
+    public static async Task<Results<Ok<ReadyStatus>, ProblemHttpResult>> Ready(IStorageSchema schema, MqttSubscriptionState mqtt, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(schema);
         ArgumentNullException.ThrowIfNull(mqtt);
+        int version;
         try
         {
-            var version = migrations.CurrentVersion();
-            if (version < migrations.LatestVersion)
-            {
-                return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                    detail: $"Storage schema is at version {version}; this build needs {migrations.LatestVersion}.");
-            }
-            // The MQTT subscription is reported, never a reason to be unready: HTTP ingest works without it.
-            return TypedResults.Ok(new ReadyStatus("ready", version, new MqttStatus(mqtt.State, mqtt.Since, mqtt.LastError)));
+            version = await schema.CurrentVersionAsync(cancellationToken);
         }
-        catch (SqliteException e)
+        catch (Exception e) when (e is DbException or TimeoutException or System.Net.Sockets.SocketException)
         {
             return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                detail: $"Storage is not reachable (SQLite error {e.SqliteErrorCode}).");
+                detail: $"Storage is not reachable ({e.GetType().Name}).");
         }
+        if (version < schema.LatestVersion)
+        {
+            return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
+                detail: $"Storage schema is at version {version}; this build needs {schema.LatestVersion}.");
+        }
+        // The MQTT subscription is reported, never a reason to be unready: HTTP ingest works without it.
+        return TypedResults.Ok(new ReadyStatus("ready", version, new MqttStatus(mqtt.State, mqtt.Since, mqtt.LastError)));
     }
 }
 
