@@ -1,3 +1,4 @@
+using ForecastHub.Api.Alerts;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.CommandLine;
 using ForecastHub.Api.Dashboard;
@@ -9,6 +10,7 @@ using ForecastHub.Api.Observations;
 using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
+using ForecastHub.Api.Webhooks;
 
 if (HealthProbe.IsRequested(args))
 {
@@ -32,6 +34,8 @@ builder.Services.AddForecastHubRateLimits();
 builder.Services.AddForecastHubOpenApi();
 builder.AddDemoMode(demoFlag);
 builder.Services.AddForecastHubModels();
+builder.Services.AddWebhooks();
+builder.Services.AddAlerts();
 
 var app = builder.Build();
 
@@ -44,6 +48,8 @@ api.MapSites();
 api.MapKeys();
 api.MapObservations();
 app.MapForecastHubModels(api);
+api.MapWebhooks();
+api.MapAlerts();
 
 app.Run();
 return 0;
