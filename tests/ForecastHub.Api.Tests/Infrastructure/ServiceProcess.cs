@@ -24,7 +24,7 @@ public sealed class ServiceProcess : IAsyncDisposable
 
     public bool HasExited => _process.HasExited;
 
-    public static async Task<ServiceProcess> StartAsync(string databasePath, TimeSpan? readyWithin = null)
+    public static async Task<ServiceProcess> StartAsync(string databasePath, TimeSpan? readyWithin = null, IReadOnlyList<string>? extraArgs = null)
     {
         var port = ChildProcesses.FreeLoopbackPort();
         var baseAddress = new Uri($"http://127.0.0.1:{port}/");
@@ -42,7 +42,7 @@ public sealed class ServiceProcess : IAsyncDisposable
                      $"--Auth:AdminKey={ApiFactory.AdminKey}", "--Serilog:MinimumLevel:Default=Warning",
                      // These tests push requests as fast as they can; the per-key limit has its own tests.
                      "--RateLimiting:Enabled=false",
-                 })
+                 }.Concat(extraArgs ?? []))
         {
             start.ArgumentList.Add(arg);
         }
