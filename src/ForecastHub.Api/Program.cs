@@ -1,3 +1,4 @@
+using ForecastHub.Api.Alerts;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.CommandLine;
 using ForecastHub.Api.Dashboard;
@@ -10,6 +11,7 @@ using ForecastHub.Api.Observations;
 using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
+using ForecastHub.Api.Webhooks;
 
 if (HealthProbe.IsRequested(args))
 {
@@ -44,6 +46,8 @@ builder.Services.AddForecastHubOpenApi();
 builder.AddDemoMode(demoFlag);
 builder.Services.AddForecastHubModels();
 builder.Services.AddForecastHubMqtt();
+builder.Services.AddWebhooks();
+builder.Services.AddAlerts();
 
 var app = builder.Build();
 
@@ -56,6 +60,8 @@ api.MapSites();
 api.MapKeys();
 api.MapObservations();
 app.MapForecastHubModels(api);
+api.MapWebhooks();
+api.MapAlerts();
 
 app.Run();
 return 0;

@@ -82,7 +82,7 @@ public static class ModelServicesSetup
     }
 
     // Replaces the registration of T with a decorator around the instance it made.
-    private static void Wrap<T>(IServiceCollection services, Func<IServiceProvider, T, T> decorate)
+    internal static void Wrap<T>(IServiceCollection services, Func<IServiceProvider, T, T> decorate)
         where T : class
     {
         var original = services.Last(d => d.ServiceType == typeof(T));

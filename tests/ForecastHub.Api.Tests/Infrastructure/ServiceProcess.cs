@@ -24,8 +24,8 @@ public sealed class ServiceProcess : IAsyncDisposable
 
     public bool HasExited => _process.HasExited;
 
-    public static Task<ServiceProcess> StartAsync(string databasePath, TimeSpan? readyWithin = null) =>
-        StartAsync(Path.GetDirectoryName(databasePath)!, [$"--Storage:Path={databasePath}"], readyWithin);
+    public static Task<ServiceProcess> StartAsync(string databasePath, TimeSpan? readyWithin = null, IReadOnlyList<string>? extraArgs = null) =>
+        StartAsync(Path.GetDirectoryName(databasePath)!, [$"--Storage:Path={databasePath}", .. extraArgs ?? []], readyWithin);
 
     /// <summary>A node on the PostgreSQL database of <paramref name="connectionString"/>, with more settings as <c>--Key=value</c> arguments.</summary>
     public static Task<ServiceProcess> StartOnPostgresAsync(string connectionString, params string[] settings) =>
