@@ -34,8 +34,7 @@ public static class ModelServicesSetup
             .Validate(o => o.WindowDays is >= 1 and <= 365 && o.MinObservedShare is > 0 and <= 1, "LiveScores:WindowDays must be 1-365 and LiveScores:MinObservedShare in (0, 1].")
             .ValidateOnStart();
 
-        services.AddSingleton<MetricsRegistry>();
-        services.AddSingleton<ServiceMetrics>();
+        services.AddForecastHubMetrics();
         services.AddSingleton<SiteVersions>();
         services.AddSingleton<RefitQueue>();
         services.AddSingleton<SiteModeling>();
@@ -65,10 +64,6 @@ public static class ModelServicesSetup
     public static WebApplication MapForecastHubModels(this WebApplication app, RouteGroupBuilder api)
     {
         ArgumentNullException.ThrowIfNull(app);
-        var metrics = app.Services.GetRequiredService<ServiceMetrics>();
-        var fleet = app.Services.GetRequiredService<FleetHealth>();
-        var queue = app.Services.GetRequiredService<RefitQueue>();
-        metrics.AddGauges(() => fleet.Latest?.Counts, () => queue.Count);
         api.MapModels();
         api.MapForecasts();
         api.MapVerification();
