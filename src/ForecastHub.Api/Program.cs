@@ -1,3 +1,4 @@
+using ForecastHub.Api.Http;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.CommandLine;
 using ForecastHub.Api.Dashboard;
@@ -29,6 +30,7 @@ builder.Services.AddForecastHubStorage();
 builder.Services.AddForecastHubAuth();
 builder.Services.AddForecastHubRequestLimits();
 builder.Services.AddForecastHubRateLimits();
+builder.Services.AddForecastHubHttpConventions();
 builder.Services.AddForecastHubOpenApi();
 builder.AddDemoMode(demoFlag);
 builder.Services.AddForecastHubModels();
