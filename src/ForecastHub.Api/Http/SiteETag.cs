@@ -24,7 +24,7 @@ public static class SiteETag
 
     public static TBuilder WithSiteETag<TBuilder>(this TBuilder builder)
         where TBuilder : IEndpointConventionBuilder =>
-        builder.AddEndpointFilter(async (context, next) =>
+        builder.WithMetadata(new ConditionalGet()).AddEndpointFilter(async (context, next) =>
         {
             var http = context.HttpContext;
             var siteId = http.GetRouteValue("siteId") as string;
@@ -83,3 +83,6 @@ public static class SiteETag
         response.Headers.Vary = "Accept, Authorization";
     }
 }
+
+/// <summary>Marks endpoints that answer 304 to a matching <c>If-None-Match</c>, for the OpenAPI document.</summary>
+public sealed class ConditionalGet;
