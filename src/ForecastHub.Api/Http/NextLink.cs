@@ -14,7 +14,8 @@ public static class NextLink
         builder.AddEndpointFilter(async (context, next) =>
         {
             var result = await next(context);
-            if (result is IValueHttpResult { Value: IPagedList { Next: { } link } })
+            var answer = result is INestedHttpResult nested ? nested.Result : result;
+            if (answer is IValueHttpResult { Value: IPagedList { Next: { } link } })
             {
                 Set(context.HttpContext.Response, link);
             }

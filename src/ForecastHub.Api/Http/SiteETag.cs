@@ -43,7 +43,8 @@ public static class SiteETag
 
             var result = await next(context);
             var answer = result is INestedHttpResult nested ? nested.Result : result;
-            if (answer is IStatusCodeHttpResult { StatusCode: StatusCodes.Status200OK })
+            // A content result without a status code is a 200.
+            if (answer is IStatusCodeHttpResult { StatusCode: null or StatusCodes.Status200OK })
             {
                 SetHeaders(http.Response, tag);
             }

@@ -155,6 +155,7 @@ public sealed class HttpConventionTests
         await client.CreateHourlySiteAsync("first");
         await client.CreateHourlySiteAsync("second");
         await client.IssueKey("read");
+        await client.IssueKey("read");
 
         foreach (var path in new[] { "/api/v1/sites?limit=1", "/api/v1/keys?limit=1" })
         {
