@@ -1,4 +1,5 @@
 using ForecastHub.Api.Alerts;
+using ForecastHub.Api.Http;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.CommandLine;
 using ForecastHub.Api.Dashboard;
@@ -42,6 +43,7 @@ builder.Services.AddForecastHubStorage();
 builder.Services.AddForecastHubAuth();
 builder.Services.AddForecastHubRequestLimits();
 builder.Services.AddForecastHubRateLimits();
+builder.Services.AddForecastHubHttpConventions();
 builder.Services.AddForecastHubOpenApi();
 builder.AddDemoMode(demoFlag);
 builder.Services.AddForecastHubModels();

@@ -41,8 +41,7 @@ public static class ModelServicesSetup
         services.AddSingleton<NodeCaches>();
         services.AddHostedService<ChangeListener>();
 
-        services.AddSingleton<MetricsRegistry>();
-        services.AddSingleton<ServiceMetrics>();
+        services.AddForecastHubMetrics();
         services.AddSingleton<SiteVersions>();
         services.AddSingleton<RefitQueue>();
         services.AddSingleton<SiteModeling>();
@@ -69,10 +68,6 @@ public static class ModelServicesSetup
     public static WebApplication MapForecastHubModels(this WebApplication app, RouteGroupBuilder api)
     {
         ArgumentNullException.ThrowIfNull(app);
-        var metrics = app.Services.GetRequiredService<ServiceMetrics>();
-        var fleet = app.Services.GetRequiredService<FleetHealth>();
-        var queue = app.Services.GetRequiredService<RefitQueue>();
-        metrics.AddGauges(() => fleet.Latest?.Counts, () => queue.Count);
         api.MapModels();
         api.MapForecasts();
         api.MapVerification();

@@ -1,3 +1,5 @@
+using ForecastHub.Api.Http;
+using System.Text.Json;
 using System.Text.RegularExpressions;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Hosting;
@@ -31,7 +33,7 @@ public static partial class KeysEndpoints
             .WithRequestBodyLimit(MaxBodyBytes)
             .ProducesProblem(StatusCodes.Status409Conflict);
         group.MapGet("/", List).WithName("ListKeys").WithSummary("List API keys by id, one page at a time, without their secrets.")
-            .ProducesProblem(StatusCodes.Status400BadRequest);
+            .ProducesProblem(StatusCodes.Status400BadRequest).WithNextLinkHeader();
         group.MapGet("/{keyId}", Get).WithName("GetKey").WithSummary("Read one API key without its secret.");
         group.MapDelete("/{keyId}", Revoke).WithName("RevokeKey")
             .WithSummary("Revoke an API key; it stops working at once and stays listed with its revocation time.")

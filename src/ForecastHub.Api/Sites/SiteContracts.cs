@@ -64,7 +64,7 @@ public sealed record ListedSiteResponse(SiteResponse Site, string HealthState)
 }
 
 /// <summary>One page of sites; <c>next</c> is the link to the following page, null on the last.</summary>
-public sealed record SiteList(IReadOnlyList<ListedSiteResponse> Sites, string? Next);
+public sealed record SiteList(IReadOnlyList<ListedSiteResponse> Sites, string? Next) : Http.IPagedList;
 
 internal static class QualityDefaults
 {
