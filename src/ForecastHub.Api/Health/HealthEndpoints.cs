@@ -1,5 +1,6 @@
 using ForecastHub.Storage.Migrations;
 using Microsoft.AspNetCore.Http.HttpResults;
+using ForecastHub.Storage;
 using Microsoft.Data.Sqlite;
 
 namespace ForecastHub.Api.Health;
@@ -19,8 +20,19 @@ public static class HealthEndpoints
 
     public static Ok<LiveStatus> Live() => TypedResults.Ok(new LiveStatus("live"));
 
-    public static Results<Ok<ReadyStatus>, ProblemHttpResult> Ready(MigrationRunner migrations)
+    public static Results<Ok<ReadyStatus>, ProblemHttpResult> Ready(MigrationRunner migrations, SqliteDatabase database)
     {
+        ArgumentNullException.ThrowIfNull(database);
+        if (database.Health.Damage is { } damage)
+        {
+            return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
+                detail: $"Storage is damaged ({damage}); stop the service, run 'ForecastHub.Api check-storage' on the file and restore it from a backup.");
+        }
+        if (database.Health.IsFull)
+        {
+            return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
+                detail: "Storage is full: the last write failed for lack of space; ready again once a write succeeds.");
+        }
         try
         {
             var version = migrations.CurrentVersion();

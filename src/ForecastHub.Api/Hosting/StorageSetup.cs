@@ -17,6 +17,7 @@ public static class StorageSetup
             .BindConfiguration(StorageOptions.SectionName)
             .Validate(o => !string.IsNullOrWhiteSpace(o.Path), "Storage:Path must name a file.")
             .Validate(o => o.BusyTimeoutMs > 0, "Storage:BusyTimeoutMs must be positive.")
+            .Validate(o => o.MaxSizeMb is null or > 0, "Storage:MaxSizeMb must be positive (leave it out for no cap).")
             .ValidateOnStart();
         services.AddSingleton(sp => new SqliteDatabase(sp.GetRequiredService<IOptions<StorageOptions>>().Value));
         services.AddSingleton(sp => new MigrationRunner(sp.GetRequiredService<SqliteDatabase>()));
