@@ -82,7 +82,9 @@ public sealed partial class ModelService(
         try
         {
             var now = clock.GetUtcNow();
-            var grid = await grids.LoadAsync(site, now.AddDays(-site.Model.FitWindowDays), now, cancellationToken);
+            // Counted back from the newest reading, so a site holding only an old archive is fitted on it.
+            var from = await grids.WindowStartAsync(site, site.Model.FitWindowDays, now, cancellationToken);
+            var grid = await grids.LoadAsync(site, from, now, cancellationToken);
             if (grid is null)
             {
                 return (null, null);

@@ -18,7 +18,9 @@ public static class Backtester
 {
     private static readonly double[] Levels = [0.80, 0.95];
 
-    public static BacktestResponse? Run(SiteRecord site, IReadOnlyList<GridReading> readings, DateTimeOffset dataEnd, int days, int refitEveryDays)
+    /// <summary><paramref name="progress"/>: called after each day with the days done and the days in all.</summary>
+    public static BacktestResponse? Run(SiteRecord site, IReadOnlyList<GridReading> readings, DateTimeOffset dataEnd, int days, int refitEveryDays,
+        Action<long, long>? progress = null)
     {
         ArgumentNullException.ThrowIfNull(site);
         ArgumentNullException.ThrowIfNull(readings);
@@ -46,6 +48,7 @@ public static class Backtester
         var origins = 0;
         for (var day = firstDay; day <= lastDay; day = day.AddDays(1))
         {
+            progress?.Invoke(day.DayNumber - firstDay.DayNumber, days);
             var origin = GridBuilder.LocalDayStart(day, zone);
             var history = readings.Where(r => r.Time < origin).ToList();
             if (history.Count == 0)
