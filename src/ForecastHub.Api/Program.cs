@@ -64,7 +64,10 @@ try
 {
     // Checked and migrated before the host starts, so a file it cannot use stops it with one line
     // an operator can act on rather than the host's stack trace.
-    await app.Services.GetRequiredService<ForecastHub.Storage.Migrations.MigrationRunner>().ApplyAsync();
+    if (!app.Services.GetRequiredService<Microsoft.Extensions.Options.IOptions<ForecastHub.Storage.StorageOptions>>().Value.IsPostgres)
+    {
+        await app.Services.GetRequiredService<ForecastHub.Storage.Migrations.MigrationRunner>().ApplyAsync();
+    }
 }
 catch (ForecastHub.Storage.StorageStartupException error)
 {

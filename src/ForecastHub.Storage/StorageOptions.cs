@@ -5,6 +5,13 @@ public sealed class StorageOptions
 {
     public const string SectionName = "Storage";
 
+    public const string Sqlite = "sqlite";
+
+    public const string Postgres = "postgres";
+
+    /// <summary><c>sqlite</c> (one process, one file) or <c>postgres</c> (several nodes on one PostgreSQL database).</summary>
+    public string Provider { get; set; } = Sqlite;
+
     /// <summary>The SQLite file; its folder is created when missing.</summary>
     public string Path { get; set; } = "data/forecasthub.db";
 
@@ -14,4 +21,9 @@ public sealed class StorageOptions
     /// <summary>A cap on the file's size in MiB (4 KiB pages); a write past it is refused as on a full
     /// disk (507). Null: no cap but the disk's.</summary>
     public int? MaxSizeMb { get; set; }
+
+    /// <summary>The PostgreSQL connection string (Npgsql keywords) when <see cref="Provider"/> is <c>postgres</c>.</summary>
+    public string? ConnectionString { get; set; }
+
+    public bool IsPostgres => string.Equals(Provider, Postgres, StringComparison.Ordinal);
 }

@@ -1,7 +1,7 @@
-using ForecastHub.Storage.Migrations;
+using System.Data.Common;
+using ForecastHub.Api.Hosting;
 using Microsoft.AspNetCore.Http.HttpResults;
 using ForecastHub.Storage;
-using Microsoft.Data.Sqlite;
 
 namespace ForecastHub.Api.Health;
 
@@ -20,34 +20,41 @@ public static class HealthEndpoints
 
     public static Ok<LiveStatus> Live() => TypedResults.Ok(new LiveStatus("live"));
 
-    public static Results<Ok<ReadyStatus>, ProblemHttpResult> Ready(MigrationRunner migrations, SqliteDatabase database)
+    public static async Task<Results<Ok<ReadyStatus>, ProblemHttpResult>> Ready(IStorageSchema schema, HttpContext context, CancellationToken cancellationToken)
     {
-        ArgumentNullException.ThrowIfNull(database);
-        if (database.Health.Damage is { } damage)
+        ArgumentNullException.ThrowIfNull(schema);
+        ArgumentNullException.ThrowIfNull(context);
+        // What SQLite reported to the requests (the PostgreSQL provider has no such file to damage).
+        if (!context.RequestServices.GetRequiredService<Microsoft.Extensions.Options.IOptions<StorageOptions>>().Value.IsPostgres
+            && context.RequestServices.GetRequiredService<SqliteDatabase>().Health is { } health)
         {
-            return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                detail: $"Storage is damaged ({damage}); stop the service, run 'ForecastHub.Api check-storage' on the file and restore it from a backup.");
-        }
-        if (database.Health.IsFull)
-        {
-            return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                detail: "Storage is full: the last write failed for lack of space; ready again once a write succeeds.");
-        }
-        try
-        {
-            var version = migrations.CurrentVersion();
-            if (version < migrations.LatestVersion)
+            if (health.Damage is { } damage)
             {
                 return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                    detail: $"Storage schema is at version {version}; this build needs {migrations.LatestVersion}.");
+                    detail: $"Storage is damaged ({damage}); stop the service, run 'ForecastHub.Api check-storage' on the file and restore it from a backup.");
             }
-            return TypedResults.Ok(new ReadyStatus("ready", version));
+            if (health.IsFull)
+            {
+                return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
+                    detail: "Storage is full: the last write failed for lack of space; ready again once a write succeeds.");
+            }
         }
-        catch (SqliteException e)
+        int version;
+        try
+        {
+            version = await schema.CurrentVersionAsync(cancellationToken);
+        }
+        catch (Exception e) when (e is DbException or TimeoutException or System.Net.Sockets.SocketException)
         {
             return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                detail: $"Storage is not reachable (SQLite error {e.SqliteErrorCode}).");
+                detail: $"Storage is not reachable ({e.GetType().Name}).");
         }
+        if (version < schema.LatestVersion)
+        {
+            return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
+                detail: $"Storage schema is at version {version}; this build needs {schema.LatestVersion}.");
+        }
+        return TypedResults.Ok(new ReadyStatus("ready", version));
     }
 }
 
