@@ -19,6 +19,11 @@ if (HealthProbe.IsRequested(args))
     return await HealthProbe.RunAsync(args, Console.Out);
 }
 
+if (CheckStorageVerb.IsRequested(args))
+{
+    return CheckStorageVerb.Run(args, Console.Out, Console.Error);
+}
+
 if (OfflineVerbs.IsRequested(args))
 {
     return await OfflineVerbs.RunAsync(args, Console.Out, Console.Error, TimeProvider.System);
@@ -64,6 +69,21 @@ api.MapObservations();
 app.MapForecastHubModels(api);
 api.MapWebhooks();
 api.MapAlerts();
+
+try
+{
+    // Checked and migrated before the host starts, so a file it cannot use stops it with one line
+    // an operator can act on rather than the host's stack trace.
+    if (!app.Services.GetRequiredService<Microsoft.Extensions.Options.IOptions<ForecastHub.Storage.StorageOptions>>().Value.IsPostgres)
+    {
+        await app.Services.GetRequiredService<ForecastHub.Storage.Migrations.MigrationRunner>().ApplyAsync();
+    }
+}
+catch (ForecastHub.Storage.StorageStartupException error)
+{
+    await Console.Error.WriteLineAsync(error.Message);
+    return 1;
+}
 
 app.Run();
 return 0;

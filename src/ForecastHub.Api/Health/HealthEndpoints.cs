@@ -2,6 +2,7 @@ using System.Data.Common;
 using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Mqtt;
 using Microsoft.AspNetCore.Http.HttpResults;
+using ForecastHub.Storage;
 
 namespace ForecastHub.Api.Health;
 
@@ -20,10 +21,26 @@ public static class HealthEndpoints
 
     public static Ok<LiveStatus> Live() => TypedResults.Ok(new LiveStatus("live"));
 
-    public static async Task<Results<Ok<ReadyStatus>, ProblemHttpResult>> Ready(IStorageSchema schema, MqttSubscriptionState mqtt, CancellationToken cancellationToken)
+    public static async Task<Results<Ok<ReadyStatus>, ProblemHttpResult>> Ready(IStorageSchema schema, MqttSubscriptionState mqtt, HttpContext context, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(schema);
         ArgumentNullException.ThrowIfNull(mqtt);
+        ArgumentNullException.ThrowIfNull(context);
+        // What SQLite reported to the requests (the PostgreSQL provider has no such file to damage).
+        if (!context.RequestServices.GetRequiredService<Microsoft.Extensions.Options.IOptions<StorageOptions>>().Value.IsPostgres
+            && context.RequestServices.GetRequiredService<SqliteDatabase>().Health is { } health)
+        {
+            if (health.Damage is { } damage)
+            {
+                return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
+                    detail: $"Storage is damaged ({damage}); stop the service, run 'ForecastHub.Api check-storage' on the file and restore it from a backup.");
+            }
+            if (health.IsFull)
+            {
+                return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
+                    detail: "Storage is full: the last write failed for lack of space; ready again once a write succeeds.");
+            }
+        }
         int version;
         try
         {

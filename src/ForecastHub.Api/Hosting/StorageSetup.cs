@@ -37,6 +37,7 @@ public static class StorageSetup
             .Validate(o => o.Provider is StorageOptions.Sqlite or StorageOptions.Postgres, "Storage:Provider must be 'sqlite' or 'postgres'.")
             .Validate(o => o.IsPostgres || !string.IsNullOrWhiteSpace(o.Path), "Storage:Path must name a file.")
             .Validate(o => o.BusyTimeoutMs > 0, "Storage:BusyTimeoutMs must be positive.")
+            .Validate(o => o.MaxSizeMb is null or > 0, "Storage:MaxSizeMb must be positive (leave it out for no cap).")
             .Validate(o => !o.IsPostgres || !string.IsNullOrWhiteSpace(o.ConnectionString),
                 "Storage:ConnectionString must name the PostgreSQL database when Storage:Provider is 'postgres'.")
             .ValidateOnStart();
