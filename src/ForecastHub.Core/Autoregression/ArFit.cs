@@ -5,7 +5,7 @@ namespace ForecastHub.Core.Autoregression;
 /// <summary>
 /// Fits an AR(p) of a given order by one of the <see cref="ArMethod"/>s, on a series given as
 /// contiguous segments (a long gap splits the series; no estimator bridges it). With one segment
-/// every number equals R's (see DEVELOPERS.md, Numerics).
+/// every number equals R's (see docs/numerics.md).
 /// Input rules: null throws ArgumentNullException; a negative order ArgumentOutOfRangeException;
 /// no points SeriesException(Empty); NaN or infinity SeriesException(NonFinite); a constant series
 /// SeriesException(Constant); fewer than p + 2 points (Burg and least squares: fewer than p + 2

@@ -2,7 +2,7 @@ namespace ForecastHub.Core.Autoregression;
 
 /// <summary>
 /// A fitted AR(p): x_t - Mean = Intercept + sum phi_i (x_{t-i} - Mean) + e_t, Var(e_t) = InnovationVariance.
-/// InnovationVariance is the variance R reports for the method (see DEVELOPERS.md, Numerics) and
+/// InnovationVariance is the variance R reports for the method (see docs/numerics.md) and
 /// is what forecasts use.
 /// </summary>
 public sealed record ArModel
@@ -20,7 +20,7 @@ public sealed record ArModel
     /// <summary>phi_1..phi_p.</summary>
     public required IReadOnlyList<double> Coefficients { get; init; }
 
-    /// <summary>Standard error of each phi_i (see DEVELOPERS.md for the formula per method).</summary>
+    /// <summary>Standard error of each phi_i (see docs/numerics.md for the formula per method).</summary>
     public required IReadOnlyList<double> StandardErrors { get; init; }
 
     public required double InnovationVariance { get; init; }

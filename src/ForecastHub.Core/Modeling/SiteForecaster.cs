@@ -10,7 +10,7 @@ namespace ForecastHub.Core.Modeling;
 /// When the newest grid steps are missing, the forecast starts from the last step with a value and
 /// counts horizons from there (so intervals widen), and reports the missing steps. Steps returned
 /// are the <c>steps</c> grid steps after the grid's last step. Hourly sites also get the next local
-/// day's summary from seeded Monte Carlo paths (paths = 0 skips it). DEVELOPERS.md, Numerics.
+/// day's summary from seeded Monte Carlo paths (paths = 0 skips it). docs/numerics.md.
 /// Input rules: null throws ArgumentNullException; steps below 1, negative paths and levels outside (0, 1)
 /// ArgumentOutOfRangeException; a grid of another cadence or zone ArgumentException; a grid with no
 /// value SeriesException(Empty); an infinite value SeriesException(NonFinite). History steps that are

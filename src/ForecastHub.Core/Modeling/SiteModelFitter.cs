@@ -12,7 +12,7 @@ namespace ForecastHub.Core.Modeling;
 /// <summary>
 /// Fits a site model from its grid: climatology (harmonic regression), AR order selection and
 /// estimation on the anomalies, GLS refit of the harmonics with the AR errors, seasonal innovation
-/// variance, diagnostics and (by default) the interval calibration table. DEVELOPERS.md, Numerics.
+/// variance, diagnostics and (by default) the interval calibration table. docs/numerics.md.
 /// Input rules: null throws ArgumentNullException; bad settings ArgumentOutOfRangeException; a grid
 /// with no steps or no values SeriesException(Empty); fewer than <see cref="MinimumPoints"/> points in
 /// the window SeriesException(TooShort); a constant window SeriesException(Constant); an infinite

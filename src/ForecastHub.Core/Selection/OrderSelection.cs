@@ -5,7 +5,7 @@ using ForecastHub.Core.Series;
 namespace ForecastHub.Core.Selection;
 
 /// <summary>
-/// Chooses the AR order by a policy and fits it. Criteria per method (DEVELOPERS.md, Numerics):
+/// Chooses the AR order by a policy and fits it. Criteria per method (docs/numerics.md):
 /// Yule-Walker and Burg AIC_p = n log(v_p) + 2p + 2 (R ar's $aic before subtracting its minimum);
 /// least squares the same form on one common sample of rows; maximum likelihood
 /// AIC = -2 logL + 2(p + 2) (R arima). AICc = AIC + 2k(k + 1)/(m - k - 1), BIC = AIC - 2k + k log m,

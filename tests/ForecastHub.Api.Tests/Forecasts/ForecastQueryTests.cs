@@ -2,7 +2,7 @@ using ForecastHub.Api.Forecasts;
 
 namespace ForecastHub.Api.Tests.Forecasts;
 
-/// <summary>Query parsing of GET .../forecast: ranges of DESIGN section 5 as documented in DEVELOPERS.md, and the field each error names.</summary>
+/// <summary>Query parsing of GET .../forecast: ranges of DESIGN section 5 as documented in docs/service.md, and the field each error names.</summary>
 public sealed class ForecastQueryTests
 {
     private static (ForecastQuery? Query, string? Field, string? Error) Hourly(string? steps = null, string? levels = null, string? below = null, string? above = null) =>

@@ -25,12 +25,12 @@ public sealed class ConfigurationDocsTests
     {
         var type = Type.GetType(typeName, throwOnError: true)!;
         var section = (string)type.GetField("SectionName")!.GetRawConstantValue()!;
-        var docs = RepoFiles.Read("DEVELOPERS.md").Split('\n');
+        var docs = RepoFiles.Read("README.md").Split('\n');
 
         foreach (var (key, value) in Options(section, Activator.CreateInstance(type)!))
         {
             var row = docs.FirstOrDefault(l => l.StartsWith($"| `{key}` |", StringComparison.Ordinal));
-            Assert.True(row is not null, $"DEVELOPERS.md 'Security and configuration' has no row for `{key}`");
+            Assert.True(row is not null, $"README.md configuration table has no row for `{key}`");
             Assert.Contains($"`{key.Replace(":", "__", StringComparison.Ordinal)}`", row, StringComparison.Ordinal);
             Assert.True(row.Contains($"`{value}`", StringComparison.Ordinal)
                 || (value.Length == 0 && row.Contains("| empty |", StringComparison.Ordinal))
