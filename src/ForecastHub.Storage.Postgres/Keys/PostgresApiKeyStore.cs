@@ -1,0 +1,95 @@
+using System.Text.Json;
+using ForecastHub.Storage.Keys;
+using ForecastHub.Storage.Postgres.Cluster;
+using Npgsql;
+
+namespace ForecastHub.Storage.Postgres.Keys;
+
+public sealed class PostgresApiKeyStore(PostgresDatabase database) : IApiKeyStore
+{
+    private const string Columns = "id, secret_sha256, scope, site_ids, label, created_at_ms, revoked_at_ms";
+
+    public Task<bool> CreateAsync(ApiKeyRecord key, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(key);
+        return database.WriteAsync(async (connection, transaction) =>
+        {
+            await using var insert = connection.Command(transaction, $"""
+                    INSERT INTO api_keys ({Columns}) VALUES ($1, $2, $3, $4, $5, $6, $7) ON CONFLICT DO NOTHING;
+                    """)
+                .With(key.Id)
+                .With(key.SecretSha256)
+                .With(key.Scope)
+                .With(JsonSerializer.Serialize(key.SiteIds))
+                .With(key.Label, NpgsqlTypes.NpgsqlDbType.Text)
+                .With(key.CreatedAt.ToUnixTimeMilliseconds())
+                .With(key.RevokedAt?.ToUnixTimeMilliseconds(), NpgsqlTypes.NpgsqlDbType.Bigint);
+            var created = await insert.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false) == 1;
+            if (created)
+            {
+                await new ChangeNotice(ChangeKind.Key, key.Id).SendAsync(connection, transaction, cancellationToken).ConfigureAwait(false);
+            }
+            return created;
+        }, cancellationToken);
+    }
+
+    public Task<ApiKeyRecord?> FindBySecretAsync(byte[] secretSha256, CancellationToken cancellationToken = default) =>
+        database.QueryAsync(connection => SelectOneAsync(connection, null, "secret_sha256", secretSha256, cancellationToken), cancellationToken);
+
+    public Task<ApiKeyRecord?> GetAsync(string id, CancellationToken cancellationToken = default) =>
+        database.QueryAsync(connection => SelectOneAsync(connection, null, "id", id, cancellationToken), cancellationToken);
+
+    public Task<IReadOnlyList<ApiKeyRecord>> ListAsync(string? afterId, int limit, CancellationToken cancellationToken = default) =>
+        database.QueryAsync<IReadOnlyList<ApiKeyRecord>>(async connection =>
+        {
+            await using var select = connection.Command(null, $"SELECT {Columns} FROM api_keys WHERE id > $1 ORDER BY id LIMIT $2;")
+                .With(afterId ?? "").With(limit);
+            await using var reader = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+            var keys = new List<ApiKeyRecord>();
+            while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
+            {
+                keys.Add(ReadKey(reader));
+            }
+            return keys;
+        }, cancellationToken);
+
+    public Task<ApiKeyRecord?> RevokeAsync(string id, DateTimeOffset at, CancellationToken cancellationToken = default) =>
+        database.WriteAsync(async (connection, transaction) =>
+        {
+            await using (var revoke = connection.Command(transaction, "UPDATE api_keys SET revoked_at_ms = $2 WHERE id = $1 AND revoked_at_ms IS NULL;")
+                       .With(id).With(at.ToUnixTimeMilliseconds()))
+            {
+                if (await revoke.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false) == 1)
+                {
+                    await new ChangeNotice(ChangeKind.Key, id).SendAsync(connection, transaction, cancellationToken).ConfigureAwait(false);
+                }
+            }
+            return await SelectOneAsync(connection, transaction, "id", id, cancellationToken).ConfigureAwait(false);
+        }, cancellationToken);
+
+    public Task<bool> HasActiveAdminAsync(CancellationToken cancellationToken = default) =>
+        database.QueryAsync(async connection =>
+        {
+            await using var exists = connection.Command(null,
+                "SELECT EXISTS (SELECT 1 FROM api_keys WHERE scope = 'admin' AND revoked_at_ms IS NULL);");
+            return (bool)(await exists.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false))!;
+        }, cancellationToken);
+
+    private static async Task<ApiKeyRecord?> SelectOneAsync(NpgsqlConnection connection, NpgsqlTransaction? transaction, string column, object value,
+        CancellationToken cancellationToken)
+    {
+        // The column name comes from this class only, never from input.
+        await using var select = connection.Command(transaction, $"SELECT {Columns} FROM api_keys WHERE {column} = $1;").With(value);
+        await using var reader = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+        return await reader.ReadAsync(cancellationToken).ConfigureAwait(false) ? ReadKey(reader) : null;
+    }
+
+    private static ApiKeyRecord ReadKey(NpgsqlDataReader reader) => new(
+        reader.GetString(0),
+        (byte[])reader.GetValue(1),
+        reader.GetString(2),
+        JsonSerializer.Deserialize<string[]>(reader.GetString(3)) ?? [],
+        reader.GetNullableString(4),
+        NpgsqlExtensions.FromUnixMs(reader.GetInt64(5)),
+        reader.IsDBNull(6) ? null : NpgsqlExtensions.FromUnixMs(reader.GetInt64(6)));
+}
