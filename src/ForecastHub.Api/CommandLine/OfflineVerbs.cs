@@ -83,7 +83,8 @@ public static class OfflineVerbs
         }
 
         var testDays = options.TestDays ?? (options.Verb == "fit" ? FitTestDays : BacktestTestDays);
-        var backtest = Backtester.Run(site, readings, dataEnd, testDays, options.RefitEveryDays);
+        var backtest = Backtester.Run(site, readings, dataEnd, testDays, options.RefitEveryDays,
+            SiteModeling.RiskThresholds(site.Risk, options.Below, options.Above));
         var report = new OfflineReport(options.Verb, now, input, model, backtest);
         var jsonPath = options.OutputPath ?? Path.ChangeExtension(options.InputPath, $".{options.Verb}.json");
         await File.WriteAllTextAsync(jsonPath, JsonSerializer.Serialize(report, Json)).ConfigureAwait(false);
