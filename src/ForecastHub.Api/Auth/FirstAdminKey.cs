@@ -23,7 +23,7 @@ internal sealed class FirstAdminKey(
 {
     public async Task StartingAsync(CancellationToken cancellationToken)
     {
-        if (!string.IsNullOrEmpty(options.Value.AdminKey) || await keys.HasActiveAdminAsync(cancellationToken).ConfigureAwait(false))
+        if (!string.IsNullOrEmpty(options.Value.AdminKey) || await keys.HasActiveAdminAsync(cancellationToken: cancellationToken).ConfigureAwait(false))
         {
             return;
         }

@@ -14,10 +14,12 @@ public static class ForecastEndpoints
         ArgumentNullException.ThrowIfNull(api);
         var group = api.MapGroup("/sites/{siteId}").WithTags("Forecasts").RequireAuthorization(AuthPolicies.Read);
         group.MapGet("/forecast", GetForecast).WithName("GetForecast")
-            .WithSummary("The forecast path with prediction intervals, the next local day's summary with threshold probabilities, the model used, and cautions.");
+            .WithSummary("The forecast path with prediction intervals, the next local day's summary with threshold probabilities, the model used, and cautions.")
+            .ProducesProblem(StatusCodes.Status409Conflict);
         group.MapGet("/forecast.svg", GetForecastChart).WithName("GetForecastChart")
             .WithSummary("A chart of the recent history, the forecast and its 80% and 95% bands, as SVG.")
-            .Produces<string>(StatusCodes.Status200OK, "image/svg+xml");
+            .Produces<string>(StatusCodes.Status200OK, "image/svg+xml")
+            .ProducesProblem(StatusCodes.Status409Conflict);
         return group;
     }
 

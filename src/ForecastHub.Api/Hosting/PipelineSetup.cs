@@ -13,7 +13,12 @@ public static class PipelineSetup
         ArgumentNullException.ThrowIfNull(app);
         app.UseSerilogRequestLogging(options =>
             options.MessageTemplate = "HTTP {RequestMethod} {RequestPath} responded {StatusCode} in {Elapsed:0.0} ms");
-        app.UseExceptionHandler();
+        // What the server refuses while the app reads a body (broken chunk framing, a body below the
+        // minimum data rate, one past the limit) keeps the server's 4xx status instead of a 500.
+        app.UseExceptionHandler(new ExceptionHandlerOptions
+        {
+            StatusCodeSelector = error => error is BadHttpRequestException bad ? bad.StatusCode : StatusCodes.Status500InternalServerError,
+        });
         app.UseStatusCodePages();
         app.UseSecurityHeaders();
         app.UseForecastHubOpenApi();

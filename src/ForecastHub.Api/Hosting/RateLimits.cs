@@ -26,7 +26,8 @@ public sealed class RateLimitOptions
 public static class RateLimits
 {
     /// <summary>A fixed window per key id (per client address without a valid key); health probes
-    /// and metrics scrapes are never limited. Rejections are 429 problems with Retry-After.</summary>
+    /// and metrics scrapes are never limited. Rejections are 429 problems whose Retry-After is the
+    /// whole seconds left in the window.</summary>
     public static IServiceCollection AddForecastHubRateLimits(this IServiceCollection services)
     {
         services.AddOptions<RateLimitOptions>()
@@ -56,13 +57,8 @@ public static class RateLimits
         var (partition, permits) = keyId is not null
             ? ("key:" + keyId, options.PermitsPerWindow)
             : ("address:" + context.Connection.RemoteIpAddress, options.AnonymousPermitsPerWindow);
-        return RateLimitPartition.GetFixedWindowLimiter(partition, _ => new FixedWindowRateLimiterOptions
-        {
-            PermitLimit = permits,
-            Window = TimeSpan.FromSeconds(options.WindowSeconds),
-            QueueLimit = 0,
-            AutoReplenishment = true,
-        });
+        var clock = context.RequestServices.GetRequiredService<TimeProvider>();
+        return RateLimitPartition.Get(partition, _ => new ClockWindowLimiter(permits, TimeSpan.FromSeconds(options.WindowSeconds), clock));
     }
 
     private static async ValueTask Reject(OnRejectedContext rejected, CancellationToken cancellationToken)

@@ -5,8 +5,10 @@ using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
 using ForecastHub.Storage.Keys;
+using ForecastHub.Storage.Sites;
 using Microsoft.AspNetCore.Http.HttpResults;
 using Microsoft.AspNetCore.Mvc;
+using Microsoft.Extensions.Options;
 
 namespace ForecastHub.Api.Keys;
 
@@ -45,7 +47,7 @@ public static partial class KeysEndpoints
     }
 
     public static async Task<Results<Created<CreatedKeyResponse>, ValidationProblem, ProblemHttpResult>> Create(
-        HttpRequest request, HttpResponse response, IApiKeyStore keys, TimeProvider clock, CancellationToken cancellationToken)
+        HttpRequest request, HttpResponse response, IApiKeyStore keys, ISiteStore sites, TimeProvider clock, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(response);
         var (body, problem) = await ReadBody(request, cancellationToken).ConfigureAwait(false);
@@ -58,8 +60,18 @@ public static partial class KeysEndpoints
         {
             return ApiProblems.Invalid(errors);
         }
-        var secret = ApiKeySecrets.NewSecret();
         var siteIds = (body!.SiteIds ?? []).Distinct(StringComparer.Ordinal).Order(StringComparer.Ordinal).ToList();
+        foreach (var siteId in siteIds)
+        {
+            if (await sites.GetAsync(siteId, cancellationToken).ConfigureAwait(false) is null)
+            {
+                return ApiProblems.Invalid(new Dictionary<string, string[]>
+                {
+                    ["siteIds"] = [$"There is no site '{siteId}'; create it first (POST /api/v1/sites), then its ingest key."],
+                });
+            }
+        }
+        var secret = ApiKeySecrets.NewSecret();
         var record = new ApiKeyRecord(ApiKeySecrets.NewId(), ApiKeySecrets.Digest(secret), body.Scope!, siteIds,
             string.IsNullOrWhiteSpace(body.Label) ? null : body.Label.Trim(), clock.GetUtcNow(), null);
         if (!await keys.CreateAsync(record, cancellationToken).ConfigureAwait(false))
@@ -93,9 +105,12 @@ public static partial class KeysEndpoints
     }
 
     public static async Task<Results<NoContent, ProblemHttpResult>> Revoke(
-        string keyId, IApiKeyStore keys, ApiKeyCache cache, TimeProvider clock, CancellationToken cancellationToken)
+        string keyId, HttpContext context, IApiKeyStore keys, ApiKeyCache cache, IOptions<AuthOptions> auth, TimeProvider clock,
+        CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(context);
         ArgumentNullException.ThrowIfNull(cache);
+        ArgumentNullException.ThrowIfNull(auth);
         if (keyId == StoredApiKeyVerifier.ConfiguredAdminKeyId)
         {
             return ApiProblems.Conflict("The configured admin key cannot be revoked here: remove or change Auth:AdminKey in the configuration and restart.");
@@ -104,9 +119,22 @@ public static partial class KeysEndpoints
         {
             return NoSuchKey(keyId);
         }
-        var revoked = await keys.RevokeAsync(keyId, clock.GetUtcNow(), cancellationToken).ConfigureAwait(false);
+        // Without a configured key, the last active admin key revoking itself would lock everyone out.
+        if (context.User.HasClaim(ApiKeyScopes.KeyIdClaim, keyId) && string.IsNullOrEmpty(auth.Value.AdminKey)
+            && !await keys.HasActiveAdminAsync(keyId, cancellationToken).ConfigureAwait(false))
+        {
+            return ApiProblems.Conflict($"Key '{keyId}' is the last active admin key and cannot revoke itself; create another admin key first.");
+        }
+        var revocation = await keys.RevokeAsync(keyId, clock.GetUtcNow(), cancellationToken).ConfigureAwait(false);
         cache.Evict(keyId);
-        return revoked is null ? NoSuchKey(keyId) : TypedResults.NoContent();
+        if (revocation is null)
+        {
+            return NoSuchKey(keyId);
+        }
+        return revocation.Revoked
+            ? TypedResults.NoContent()
+            : ApiProblems.Conflict(string.Create(System.Globalization.CultureInfo.InvariantCulture,
+                $"Key '{keyId}' was already revoked at {revocation.Key.RevokedAt:yyyy-MM-dd'T'HH:mm:ss'Z'}."));
     }
 
     private static ProblemHttpResult NoSuchKey(string keyId) =>

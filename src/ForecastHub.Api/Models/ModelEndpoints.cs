@@ -16,7 +16,9 @@ public static class ModelEndpoints
         group.MapGet("", GetModel).WithName("GetModel").RequireAuthorization(AuthPolicies.Read)
             .WithSummary("The serving model with every diagnostic: fit window, seasonality, AR terms, order selection, ACF, residual tests.");
         group.MapPost("/refit", Refit).WithName("RefitModel").RequireAuthorization(AuthPolicies.Admin)
-            .WithSummary("Refits the site now from its stored data and answers the new model.");
+            .WithSummary("Refits the site now from its stored data and answers the new model.")
+            .ProducesProblem(StatusCodes.Status409Conflict)
+            .ProducesProblem(StatusCodes.Status422UnprocessableEntity);
         return group;
     }
 

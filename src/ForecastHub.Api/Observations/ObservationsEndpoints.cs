@@ -27,7 +27,8 @@ public static class ObservationsEndpoints
             .WithSummary("Store readings (JSON or text/csv); answers per-row outcomes. Retrying a batch is safe.")
             .RequireAuthorization(AuthPolicies.Ingest)
             .Accepts<ObservationsBody>("application/json", "text/csv")
-            .WithRequestBodyLimit(MaxBodyBytes);
+            .WithRequestBodyLimit(MaxBodyBytes)
+            .ProducesProblem(StatusCodes.Status422UnprocessableEntity);
         group.MapGet("/", ObservationQueries.Get).WithName("GetObservations")
             .WithSummary("Stored readings (resolution=raw) or the site's regular grid (resolution=grid), JSON or CSV, paged by 'next'.")
             .RequireAuthorization(AuthPolicies.Read);
@@ -73,7 +74,10 @@ public static class ObservationsEndpoints
         {
             return SitesEndpoints.NoSuchSite(siteId);
         }
-        var answer = Summarise(batch, result);
+        // A key that may not read the series learns only that a different value is stored.
+        var mayRead = request.HttpContext.User.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Admin)
+            || request.HttpContext.User.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Read);
+        var answer = Summarise(batch, result, mayRead);
         if (answer.Accepted + answer.Duplicates + answer.Replaced == 0)
         {
             return TypedResults.Problem(statusCode: StatusCodes.Status422UnprocessableEntity, title: "No reading stored",
@@ -86,7 +90,7 @@ public static class ObservationsEndpoints
         return TypedResults.Ok(answer);
     }
 
-    private static ObservationsAnswer Summarise(ReadingBatch batch, IngestResult result)
+    private static ObservationsAnswer Summarise(ReadingBatch batch, IngestResult result, bool showStoredValues)
     {
         var (valid, rejected) = (batch.Valid, batch.Rejected);
         int accepted = 0, duplicates = 0, replaced = 0, flagged = 0;
@@ -106,8 +110,11 @@ public static class ObservationsEndpoints
                     break;
                 case ReadingOutcomeKind.Conflict:
                     var index = valid[i].Index;
-                    rejected.Add(new RejectedReading(index, batch.Line(index), batch.TimeText(index), string.Create(CultureInfo.InvariantCulture,
-                        $"conflict: {outcome.StoredValueC:0.###} C is already stored for this time; send ?onConflict=replace to overwrite it.")));
+                    var stored = showStoredValues
+                        ? string.Create(CultureInfo.InvariantCulture, $"{outcome.StoredValueC:0.###} C is")
+                        : "a different value is";
+                    rejected.Add(new RejectedReading(index, batch.Line(index), batch.TimeText(index),
+                        $"conflict: {stored} already stored for this time; send ?onConflict=replace to overwrite it."));
                     continue;
             }
             if (outcome.Kind != ReadingOutcomeKind.Duplicate && outcome.Flags != QualityFlags.None)
@@ -121,7 +128,9 @@ public static class ObservationsEndpoints
 
     // The fast reader for the usual JSON body; the strict parser for CSV and for every other JSON body.
     private static (ReadingBatch? Batch, ProblemHttpResult? Problem) ReadJson(byte[] body, string? queryUnit, DateTimeOffset now) =>
-        Utf8JsonReadings.TryRead(body, queryUnit, now, MaxReadings) is { } batch ? (batch, null) : ReadJsonStrict(body, queryUnit, now);
+        RequestBody.InvalidUtf8At(body) is null && Utf8JsonReadings.TryRead(body, queryUnit, now, MaxReadings) is { } batch
+            ? (batch, null)
+            : ReadJsonStrict(body, queryUnit, now);
 
     internal static (ReadingBatch? Batch, ProblemHttpResult? Problem) ReadJsonStrict(byte[] body, string? queryUnit, DateTimeOffset now) =>
         Validate(ParseJson(body), queryUnit, now);

@@ -10,6 +10,9 @@ internal static class ReadingValidation
 {
     public static readonly TimeSpan MaxAhead = TimeSpan.FromMinutes(10);
 
+    /// <summary>The earliest reading time stored; an earlier one is almost always a broken clock or a missing year.</summary>
+    public static readonly DateTimeOffset Earliest = new(1800, 1, 1, 0, 0, 0, TimeSpan.Zero);
+
     public static (List<IncomingReading> Valid, List<RejectedReading> Rejected) Validate(
         IReadOnlyList<RawReading> rows, string defaultUnit, DateTimeOffset now)
     {
@@ -56,6 +59,10 @@ internal static class ReadingValidation
         {
             return string.Create(CultureInfo.InvariantCulture,
                 $"time is more than {MaxAhead.TotalMinutes} minutes ahead of the server clock ({IsoTime.Format(latest - MaxAhead)}); check the logger's clock and offset.");
+        }
+        if (timeMs < Earliest.ToUnixTimeMilliseconds())
+        {
+            return "time is before 1800-01-01T00:00:00Z, the earliest time stored; check the year and the logger's clock.";
         }
         if (!TemperatureUnits.IsKnown(unit))
         {

@@ -46,6 +46,11 @@ public static class RequestBody
     /// <paramref name="error"/> says where the body went wrong.</summary>
     public static JsonDocument? ParseJson(byte[] body, out string? error)
     {
+        if (InvalidUtf8At(body) is { } offset)
+        {
+            error = $"The body is not valid UTF-8: the bytes at offset {offset} are not a UTF-8 sequence.";
+            return null;
+        }
         try
         {
             error = null;
@@ -56,6 +61,22 @@ public static class RequestBody
             error = $"The body is not valid JSON: {e.Message}";
             return null;
         }
+    }
+
+    /// <summary>The offset of the first byte that is not part of a valid UTF-8 sequence, or null when
+    /// all are (the JSON reader checks strings only when they are read, too late for a 400).</summary>
+    public static int? InvalidUtf8At(ReadOnlySpan<byte> body)
+    {
+        if (System.Text.Unicode.Utf8.IsValid(body))
+        {
+            return null;
+        }
+        var offset = 0;
+        while (System.Text.Rune.DecodeFromUtf8(body[offset..], out _, out var consumed) == System.Buffers.OperationStatus.Done)
+        {
+            offset += consumed;
+        }
+        return offset;
     }
 
     public static bool IsJson(HttpRequest request) =>

@@ -12,7 +12,8 @@ public static class VerificationEndpoints
         ArgumentNullException.ThrowIfNull(api);
         var group = api.MapGroup("/sites/{siteId}").WithTags("Verification").RequireAuthorization(AuthPolicies.Read);
         group.MapGet("/verification", GetVerification).WithName("GetVerification")
-            .WithSummary("A rolling-origin backtest of the site's own history and the live scores of its archived day-ahead forecasts.");
+            .WithSummary("A rolling-origin backtest of the site's own history and the live scores of its archived day-ahead forecasts.")
+            .ProducesProblem(StatusCodes.Status409Conflict);
         return group;
     }
 

@@ -53,30 +53,52 @@ public sealed record ThresholdScoresResponse(
 /// <summary>Forecasts with a probability in [from, to): their mean, how often the event happened, how many (NaN means: none).</summary>
 public sealed record ReliabilityBinResponse(double From, double To, double ForecastMean, double ObservedFrequency, int Count);
 
-/// <summary>Scores as in DESIGN section 4. Bias is mean(forecast - observed); levels are percentages.</summary>
+/// <summary>Scores as in DESIGN section 4. Bias is mean(forecast - observed); levels are percentages.
+/// A score that is not a finite number (skill against a reference that made no error, say) is null,
+/// and <c>Notes</c> says which and why: JSON has no NaN or Infinity.</summary>
 public sealed record ScoresResponse(
     int? Horizon,
     int Count,
-    double Mae,
-    double Rmse,
-    double Bias,
-    double PersistenceMae,
-    double ClimatologyMae,
-    double SkillVsPersistence,
-    double SkillVsClimatology,
-    double Crps,
-    IReadOnlyList<IntervalScoresResponse> Intervals)
+    double? Mae,
+    double? Rmse,
+    double? Bias,
+    double? PersistenceMae,
+    double? ClimatologyMae,
+    double? SkillVsPersistence,
+    double? SkillVsClimatology,
+    double? Crps,
+    IReadOnlyList<IntervalScoresResponse> Intervals,
+    IReadOnlyList<string> Notes)
 {
     public static ScoresResponse From(HorizonScores scores, int? horizon)
     {
         ArgumentNullException.ThrowIfNull(scores);
-        return new(horizon, scores.Count, scores.Mae, scores.Rmse, scores.Bias, scores.PersistenceMae, scores.ClimatologyMae,
-            scores.SkillVsPersistence, scores.SkillVsClimatology, scores.Crps,
-            [.. scores.Intervals.Select(i => new IntervalScoresResponse(Math.Round(i.Level * 100, 6), i.Coverage, i.MeanWidth, i.Winkler, i.Pinball))]);
+        var notes = new List<string>();
+        double? Finite(double value, string name)
+        {
+            if (double.IsFinite(value))
+            {
+                return value;
+            }
+            notes.Add(name switch
+            {
+                "skillVsPersistence" => "skillVsPersistence is null: persistence (the value a day earlier) made no error over these pairs, so skill against it is undefined.",
+                "skillVsClimatology" => "skillVsClimatology is null: climatology made no error over these pairs, so skill against it is undefined.",
+                _ => $"{name} is null: it is not a finite number for these pairs.",
+            });
+            return null;
+        }
+
+        var intervals = scores.Intervals.Select(i => new IntervalScoresResponse(Math.Round(i.Level * 100, 6),
+            Finite(i.Coverage, "coverage"), Finite(i.MeanWidth, "meanWidth"), Finite(i.Winkler, "intervalScore"), Finite(i.Pinball, "pinball"))).ToList();
+        return new(horizon, scores.Count, Finite(scores.Mae, "mae"), Finite(scores.Rmse, "rmse"), Finite(scores.Bias, "bias"),
+            Finite(scores.PersistenceMae, "persistenceMae"), Finite(scores.ClimatologyMae, "climatologyMae"),
+            Finite(scores.SkillVsPersistence, "skillVsPersistence"), Finite(scores.SkillVsClimatology, "skillVsClimatology"),
+            Finite(scores.Crps, "crps"), intervals, [.. notes.Distinct(StringComparer.Ordinal)]);
     }
 }
 
-public sealed record IntervalScoresResponse(double Level, double Coverage, double MeanWidth, double IntervalScore, double Pinball);
+public sealed record IntervalScoresResponse(double Level, double? Coverage, double? MeanWidth, double? IntervalScore, double? Pinball);
 
 /// <summary>Live scores over the last <c>Days</c> scored days (up to <see cref="VerificationService.MaxLiveDays"/>), pooled and per day.</summary>
 public sealed record LiveScoresResponse(int Days, ScoresResponse? Pooled, IReadOnlyList<LiveDayResponse> Daily);

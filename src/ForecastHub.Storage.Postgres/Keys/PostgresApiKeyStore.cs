@@ -53,25 +53,29 @@ public sealed class PostgresApiKeyStore(PostgresDatabase database) : IApiKeyStor
             return keys;
         }, cancellationToken);
 
-    public Task<ApiKeyRecord?> RevokeAsync(string id, DateTimeOffset at, CancellationToken cancellationToken = default) =>
+    public Task<KeyRevocation?> RevokeAsync(string id, DateTimeOffset at, CancellationToken cancellationToken = default) =>
         database.WriteAsync(async (connection, transaction) =>
         {
+            var revoked = false;
             await using (var revoke = connection.Command(transaction, "UPDATE api_keys SET revoked_at_ms = $2 WHERE id = $1 AND revoked_at_ms IS NULL;")
                        .With(id).With(at.ToUnixTimeMilliseconds()))
             {
                 if (await revoke.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false) == 1)
                 {
+                    revoked = true;
                     await new ChangeNotice(ChangeKind.Key, id).SendAsync(connection, transaction, cancellationToken).ConfigureAwait(false);
                 }
             }
-            return await SelectOneAsync(connection, transaction, "id", id, cancellationToken).ConfigureAwait(false);
+            return await SelectOneAsync(connection, transaction, "id", id, cancellationToken).ConfigureAwait(false) is { } key
+                ? new KeyRevocation(key, revoked)
+                : null;
         }, cancellationToken);
 
-    public Task<bool> HasActiveAdminAsync(CancellationToken cancellationToken = default) =>
+    public Task<bool> HasActiveAdminAsync(string? exceptId = null, CancellationToken cancellationToken = default) =>
         database.QueryAsync(async connection =>
         {
             await using var exists = connection.Command(null,
-                "SELECT EXISTS (SELECT 1 FROM api_keys WHERE scope = 'admin' AND revoked_at_ms IS NULL);");
+                "SELECT EXISTS (SELECT 1 FROM api_keys WHERE scope = 'admin' AND revoked_at_ms IS NULL AND id <> $1);").With(exceptId ?? "");
             return (bool)(await exists.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false))!;
         }, cancellationToken);
 

@@ -16,9 +16,13 @@ public interface IApiKeyStore
     Task<IReadOnlyList<ApiKeyRecord>> ListAsync(string? afterId, int limit, CancellationToken cancellationToken = default);
 
     /// <summary>Marks the key revoked at <paramref name="at"/>; answers the stored key (already
-    /// revoked keys keep their first revocation time), or null when it does not exist.</summary>
-    Task<ApiKeyRecord?> RevokeAsync(string id, DateTimeOffset at, CancellationToken cancellationToken = default);
+    /// revoked keys keep their first revocation time) and whether this call revoked it, or null
+    /// when it does not exist.</summary>
+    Task<KeyRevocation?> RevokeAsync(string id, DateTimeOffset at, CancellationToken cancellationToken = default);
 
-    /// <summary>Whether any admin key is still active.</summary>
-    Task<bool> HasActiveAdminAsync(CancellationToken cancellationToken = default);
+    /// <summary>Whether any admin key other than <paramref name="exceptId"/> is still active.</summary>
+    Task<bool> HasActiveAdminAsync(string? exceptId = null, CancellationToken cancellationToken = default);
 }
+
+/// <summary>The key after a revocation; <c>Revoked</c> is false when it had been revoked before.</summary>
+public sealed record KeyRevocation(ApiKeyRecord Key, bool Revoked);

@@ -48,23 +48,25 @@ public sealed class SqliteApiKeyStore(SqliteDatabase database) : IApiKeyStore
             return keys;
         }));
 
-    public Task<ApiKeyRecord?> RevokeAsync(string id, DateTimeOffset at, CancellationToken cancellationToken = default) =>
+    public Task<KeyRevocation?> RevokeAsync(string id, DateTimeOffset at, CancellationToken cancellationToken = default) =>
         database.WriteAsync((connection, transaction) =>
         {
+            int changed;
             using (var revoke = connection.Command(transaction, "UPDATE api_keys SET revoked_at_ms = $at WHERE id = $id AND revoked_at_ms IS NULL;")
                        .With("$id", id)
                        .With("$at", at.ToUnixTimeMilliseconds()))
             {
-                revoke.ExecuteNonQuery();
+                changed = revoke.ExecuteNonQuery();
             }
-            return SelectOne(connection, transaction, "id", id);
+            return SelectOne(connection, transaction, "id", id) is { } key ? new KeyRevocation(key, changed == 1) : null;
         }, cancellationToken);
 
-    public Task<bool> HasActiveAdminAsync(CancellationToken cancellationToken = default) =>
+    public Task<bool> HasActiveAdminAsync(string? exceptId = null, CancellationToken cancellationToken = default) =>
         Task.FromResult(database.Read((connection, transaction) =>
         {
             using var count = connection.Command(transaction,
-                "SELECT EXISTS (SELECT 1 FROM api_keys WHERE scope = 'admin' AND revoked_at_ms IS NULL);");
+                "SELECT EXISTS (SELECT 1 FROM api_keys WHERE scope = 'admin' AND revoked_at_ms IS NULL AND id <> $except);")
+                .With("$except", exceptId ?? "");
             return Convert.ToInt64(count.ExecuteScalar(), System.Globalization.CultureInfo.InvariantCulture) == 1;
         }));
 

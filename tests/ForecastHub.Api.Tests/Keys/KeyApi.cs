@@ -2,6 +2,7 @@ using System.Net;
 using System.Net.Http.Headers;
 using System.Net.Http.Json;
 using System.Text.Json;
+using ForecastHub.Api.Tests.Infrastructure;
 
 namespace ForecastHub.Api.Tests.Keys;
 
@@ -15,9 +16,15 @@ public static class KeyApi
 
     public static Uri Key(string id) => new($"/api/v1/keys/{id}", UriKind.Relative);
 
+    /// <summary>Issues a key; the sites it names are created first when missing (ingest keys are for existing sites only).</summary>
     public static async Task<IssuedKey> IssueKey(this HttpClient admin, string scope, params string[] siteIds)
     {
         ArgumentNullException.ThrowIfNull(admin);
+        foreach (var siteId in siteIds)
+        {
+            using var site = await admin.CreateSite(Some.Site(siteId));
+            Assert.True(site.StatusCode is HttpStatusCode.Created or HttpStatusCode.Conflict, $"creating site {siteId} answered {site.StatusCode}");
+        }
         using var response = await admin.PostAsJsonAsync(Keys, new { scope, siteIds, label = $"test {scope}" });
         var text = await response.Content.ReadAsStringAsync();
         Assert.True(response.StatusCode == HttpStatusCode.Created, $"creating a {scope} key answered {response.StatusCode}: {text}");

@@ -62,6 +62,23 @@ public sealed class OpenApiContractTests
         }
     }
 
+    [Theory]
+    [InlineData("GET /api/v1/sites/{siteId}/forecast", "409")]
+    [InlineData("GET /api/v1/sites/{siteId}/forecast.svg", "409")]
+    [InlineData("GET /api/v1/sites/{siteId}/verification", "409")]
+    [InlineData("POST /api/v1/sites/{siteId}/model/refit", "409")]
+    [InlineData("POST /api/v1/sites/{siteId}/model/refit", "422")]
+    [InlineData("POST /api/v1/sites/{siteId}/observations", "422")]
+    [InlineData("DELETE /api/v1/keys/{keyId}", "409")]
+    public async Task DocumentListsTheStatusesTheEndpointsAnswer(string operation, string status)
+    {
+        var document = JsonNode.Parse(await ServedDocument())!;
+
+        var responses = Operations(document).Single(o => o.Name == operation).Operation["responses"]!.AsObject();
+
+        Assert.True(responses.ContainsKey(status), $"{operation} does not list {status}; it lists {string.Join(", ", responses.Select(r => r.Key))}");
+    }
+
     [Fact]
     public async Task DocumentDescribesEveryApiEndpointAndTheBearerScheme()
     {

@@ -45,6 +45,29 @@ public sealed class RateLimitTests
     }
 
     [Fact]
+    public async Task RetryAfterIsTheSecondsLeftInTheWindowAndTheWindowReopens()
+    {
+        await using var factory = LimitedFactory(perKey: 1);
+        using var admin = factory.CreateAdminClient();
+        using var client = factory.CreateClient();
+        var key = await admin.IssueKey("read");
+
+        using var first = await client.GetWith(SitesPath, key.Secret);
+        using var atOnce = await client.GetWith(SitesPath, key.Secret);
+        factory.Clock.Advance(TimeSpan.FromSeconds(3599.5 - 1200));
+        using var later = await client.GetWith(SitesPath, key.Secret);
+        factory.Clock.Advance(TimeSpan.FromSeconds(1200.5));
+        using var reopened = await client.GetWith(SitesPath, key.Secret);
+
+        Assert.Equal(HttpStatusCode.OK, first.StatusCode);
+        Assert.Equal(TimeSpan.FromSeconds(3600), atOnce.Headers.RetryAfter?.Delta);
+        // 0.5 s left rounds up to a whole second.
+        Assert.Equal(TimeSpan.FromSeconds(1201), later.Headers.RetryAfter?.Delta);
+        Assert.Equal(HttpStatusCode.TooManyRequests, later.StatusCode);
+        Assert.Equal(HttpStatusCode.OK, reopened.StatusCode);
+    }
+
+    [Fact]
     public async Task CallersWithoutAValidKeyShareTheirAddressLimit()
     {
         await using var factory = LimitedFactory(perKey: 1000, anonymous: 2);

@@ -208,12 +208,15 @@ public sealed class BothBackendsTests
         Assert.Null(found.Label);
         Assert.Equal(["k-admin", "k-ingest"], (await b.Keys.ListAsync(null, 10)).Select(k => k.Id));
         Assert.True(await b.Keys.HasActiveAdminAsync());
+        Assert.False(await b.Keys.HasActiveAdminAsync("k-admin"));
 
         var revoked = await b.Keys.RevokeAsync("k-admin", Received.AddDays(1));
         var again = await b.Keys.RevokeAsync("k-admin", Received.AddDays(2));
 
-        Assert.Equal(Received.AddDays(1), revoked!.RevokedAt);
-        Assert.Equal(Received.AddDays(1), again!.RevokedAt);
+        Assert.Equal(Received.AddDays(1), revoked!.Key.RevokedAt);
+        Assert.True(revoked.Revoked);
+        Assert.Equal(Received.AddDays(1), again!.Key.RevokedAt);
+        Assert.False(again.Revoked);
         Assert.False(await b.Keys.HasActiveAdminAsync());
         Assert.Null(await b.Keys.RevokeAsync("missing", Received));
         Assert.Equal("ops", (await b.Keys.GetAsync("k-admin"))!.Label);
