@@ -17,13 +17,12 @@ public sealed class VerificationService(
     IForecastArchive archive,
     TimeProvider clock)
 {
-    /// <summary>A full year, so the frost season is in it; cost bounded by the refit spacing below.</summary>
-    public const int HourlyBacktestDays = 365;
+    /// <summary>The service's hourly backtest stays at 60 days (its cost is paid on a dashboard view); the CLI backtests a year.</summary>
+    public const int HourlyBacktestDays = 60;
     public const int DailyBacktestDays = 730;
     public const int RefitEveryDays = 7;
 
-    /// <summary>Hourly backtests refit every 61 days: at most 7 fits for the year, fewer than the 60-day backtest used before.</summary>
-    public const int HourlyRefitEveryDays = 61;
+    public const int HourlyRefitEveryDays = 7;
     public const int MaxLiveDays = 90;
 
     private readonly ConcurrentDictionary<string, (DateTimeOffset FittedAt, string RiskKey, BacktestResponse? Backtest)> backtests = new(StringComparer.Ordinal);

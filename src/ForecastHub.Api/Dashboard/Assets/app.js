@@ -396,7 +396,7 @@ function thresholdEditor(site) {
   const rows = h("div", { class: "threshold-rows" });
   const addRow = t => {
     const row = h("div", { class: "threshold-row" },
-      h("label", {}, "Name", h("input", { class: "t-id", value: t.id || "", placeholder: "frost", required: true, pattern: "[a-z0-9][a-z0-9-]{0,31}" })),
+      h("label", {}, "Name", h("input", { class: "t-id", value: t.id || "", placeholder: "frost", required: true, pattern: "[a-z0-9][a-z0-9\\-]{0,31}" })),
       h("label", {}, "When",
         h("select", { class: "t-direction" },
           h("option", { value: "below", selected: t.direction !== "above" }, "below"),
