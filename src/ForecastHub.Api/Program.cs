@@ -20,6 +20,16 @@ if (OfflineVerbs.IsRequested(args))
     return await OfflineVerbs.RunAsync(args, Console.Out, Console.Error, TimeProvider.System);
 }
 
+if (ImportVerb.IsRequested(args))
+{
+    return await ImportVerb.RunAsync(args, Console.Out, Console.Error);
+}
+
+if (ServerCommandLine.Intercept(args, Console.Out, Console.Error) is { } exitCode)
+{
+    return exitCode;
+}
+
 args = DemoMode.WithoutFlag(args, out var demoFlag);
 var builder = WebApplication.CreateBuilder(args);
 

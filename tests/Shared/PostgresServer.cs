@@ -24,14 +24,16 @@ public sealed class PostgresServer
 
     public string AdminConnectionString { get; }
 
-    /// <summary>A new empty database; answers its connection string.</summary>
-    public async Task<string> CreateDatabaseAsync()
+    /// <summary>A new empty database, or a copy of the database of <paramref name="template"/> (a connection string); answers its connection string.</summary>
+    public async Task<string> CreateDatabaseAsync(string? template = null)
     {
         var name = $"fh_{Guid.NewGuid():N}";
+        var from = template is null ? "template0" : new NpgsqlConnectionStringBuilder(template).Database;
+        NpgsqlConnection.ClearAllPools();
         await using (var connection = new NpgsqlConnection(AdminConnectionString))
         {
             await connection.OpenAsync();
-            await using var create = new NpgsqlCommand($"CREATE DATABASE {name} TEMPLATE template0 ENCODING 'UTF8';", connection);
+            await using var create = new NpgsqlCommand($"CREATE DATABASE {name} TEMPLATE {from} ENCODING 'UTF8';", connection);
             await create.ExecuteNonQueryAsync();
         }
         return new NpgsqlConnectionStringBuilder(AdminConnectionString) { Database = name }.ConnectionString;

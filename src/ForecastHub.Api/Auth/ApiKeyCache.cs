@@ -80,5 +80,15 @@ public sealed class ApiKeyCache(TimeProvider clock, IOptionsMonitor<AuthOptions>
         }
     }
 
+    /// <summary>Drops every entry: used when revocations made elsewhere may have been missed.</summary>
+    public void Clear()
+    {
+        lock (_gate)
+        {
+            _generation++;
+            _entries.Clear();
+        }
+    }
+
     private sealed record Entry(ApiKeyIdentity Identity, DateTimeOffset ExpiresAt);
 }

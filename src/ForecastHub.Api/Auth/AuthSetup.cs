@@ -17,7 +17,6 @@ public static class AuthSetup
             .Validate(o => o.AdminKey.Length <= ApiKeySecrets.MaxPresentedLength, $"Auth:AdminKey may be at most {ApiKeySecrets.MaxPresentedLength} characters.")
             .Validate(o => o.KeyCacheSeconds is >= 0 and <= 3600, "Auth:KeyCacheSeconds must be from 0 to 3600.")
             .ValidateOnStart();
-        services.AddSingleton<IApiKeyStore, SqliteApiKeyStore>();
         services.AddSingleton<ApiKeyCache>();
         services.AddSingleton<IApiKeyVerifier, StoredApiKeyVerifier>();
         services.AddSingleton(new FirstAdminKeyOutput(Console.Out));

@@ -35,12 +35,29 @@ internal static class OfflineInput
         {
             return (null, null, $"file '{options.InputPath}' does not exist.");
         }
-        var (rows, error, _) = CsvReadings.Parse(File.ReadAllBytes(options.InputPath), MaxRows);
+        var (rows, error, _) = CsvReadings.Parse(File.ReadAllBytes(options.InputPath), MaxRows, options.Layout);
         if (rows is null)
         {
             return (null, null, $"'{options.InputPath}': {error}");
         }
-        var (valid, rejected) = ReadingValidation.Validate(rows, "C", now);
+        var (zone, zoneWhy) = options.TimeZone is { } z
+            ? (z, "--time-zone")
+            : ("UTC", "default; give --time-zone with the site's IANA zone for local days and hours");
+        if (!IsKnownZone(zone))
+        {
+            return (null, null, $"time zone '{zone}' is not a known IANA zone (for example Europe/London).");
+        }
+        var (valid, rejected, impossible) = ReadingValidation.Validate(rows, options.Unit ?? TemperatureUnits.Celsius, now,
+            options.LocalTimes ? GridBuilder.FindZone(zone) : null);
+        OfflineInputSummary Unused(string why) => new(options.InputPath, rows.Count, 0, 0, 0, 0, rejected, options.Cadence ?? "", why, zone, zoneWhy);
+        if (options.Unit is null)
+        {
+            var sent = valid.Where(r => r.OriginalUnit == TemperatureUnits.Celsius).Select(r => r.OriginalValue).Concat(impossible).ToArray();
+            if (UnitPlausibility.Check(sent, QualityLimits.Default) is { } unitProblem)
+            {
+                return (null, Unused("no usable reading"), $"'{options.InputPath}': {unitProblem.Replace("unit=", "--unit ", StringComparison.Ordinal)}");
+            }
+        }
         var byTime = new SortedDictionary<long, double>();
         int duplicates = 0, conflicts = 0;
         var conflicted = new HashSet<long>();
@@ -66,19 +83,29 @@ internal static class OfflineInput
         }
         if (byTime.Count == 0)
         {
-            return (null, null, $"'{options.InputPath}' has no usable reading ({rejected.Count} rows rejected, {conflicts} conflicting).");
+            return (null, Unused("no usable reading"), $"'{options.InputPath}' has no usable reading ({rejected.Count} rows rejected, {conflicts} conflicting).");
         }
 
         var points = byTime.Select(p => new QualityPoint(DateTimeOffset.FromUnixTimeMilliseconds(p.Key), p.Value)).ToArray();
         var flags = QualityChecks.Evaluate(points, QualityLimits.Default);
         var readings = points.Select((p, i) => new GridReading(p.Time, p.ValueC, flags[i] != QualityFlags.None)).ToList();
         var (cadence, cadenceWhy) = ChooseCadence(options.Cadence, points);
-        var (zone, zoneWhy) = options.TimeZone is { } z
-            ? (z, "--time-zone")
-            : ("UTC", "default; give --time-zone with the site's IANA zone for local days and hours");
         var summary = new OfflineInputSummary(options.InputPath, rows.Count, byTime.Count, duplicates, conflicts,
             flags.Count(f => f != QualityFlags.None), rejected, cadence, cadenceWhy, zone, zoneWhy);
         return (readings, summary, null);
+    }
+
+    private static bool IsKnownZone(string zone)
+    {
+        try
+        {
+            GridBuilder.FindZone(zone);
+            return true;
+        }
+        catch (ArgumentException)
+        {
+            return false;
+        }
     }
 
     /// <summary>Hourly when the median spacing of consecutive readings is under 12 hours, daily otherwise.</summary>

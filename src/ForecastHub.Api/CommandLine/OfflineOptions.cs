@@ -1,4 +1,5 @@
 using System.Globalization;
+using ForecastHub.Api.Observations;
 
 namespace ForecastHub.Api.CommandLine;
 
@@ -24,13 +25,34 @@ public sealed record OfflineOptions(
 
     public IReadOnlyList<double> Above { get; init; } = [];
 
+    /// <summary>The file's layout (columns, separator, decimal mark).</summary>
+    public CsvLayout Layout { get; init; } = CsvLayout.Default;
+
+    /// <summary>Unit of values without a unit column; null: degrees C, with the unit check of the service.</summary>
+    public string? Unit { get; init; }
+
+    /// <summary>Times without an offset are wall-clock times of --time-zone.</summary>
+    public bool LocalTimes { get; init; }
+
     public const string Usage = """
         Usage: ForecastHub.Api fit|backtest FILE.csv [options]
 
-        FILE.csv holds a header line 'time,value' (or 'time,value,unit'), then one reading per line:
-        an ISO 8601 time with an offset, and the value in degrees C (or the row's unit: C, F, K).
+        FILE.csv holds a header line naming its columns, then one reading per line: an ISO 8601 time
+        (with an offset, or local with --local-times), and the value in degrees C (or --unit, or the
+        row's unit column: C, F, K). Other columns are ignored.
 
-        Options (the defaults are the service's defaults for a new site):
+        File layout:
+          --time-column NAME|N         the time column, by header name or 1-based position (default: time)
+          --value-column NAME|N        the value column (default: value)
+          --unit-column NAME|N         the unit column (default: a column named unit, if any)
+          --separator ,|;|tab          field separator (default: ,)
+          --decimal .|,                decimal mark (default: .)
+          --unit C|F|K                 unit of values without a unit column (default: C, refused when the
+                                       values look like another unit; --unit C insists)
+          --local-times                times without an offset are local times of --time-zone (a time the
+                                       clocks skip is rejected; a repeated hour is read as a pair in file order)
+
+        Model options (the defaults are the service's defaults for a new site):
           --cadence hourly|daily       grid step (default: from the median spacing of the times)
           --time-zone ZONE             IANA zone for local days and hours (default: UTC)
           --daily-statistic mean|min|max   statistic of a daily grid (default: mean)
@@ -58,11 +80,14 @@ public sealed record OfflineOptions(
         ["--method"] = ["burg", "yule-walker", "least-squares", "max-likelihood"],
         ["--order-policy"] = ["pacf-aic", "aic", "aicc", "bic", "pacf"],
         ["--interval-method"] = ["calibrated", "gaussian"],
+        ["--unit"] = ["C", "F", "K"],
     };
 
     private static readonly string[] Numbers = ["--max-order", "--fit-window-days", "--test-days", "--refit-every-days"];
 
-    private static readonly string[] Texts = ["--time-zone", "--out"];
+    private static readonly string[] Texts = ["--time-zone", "--out", "--time-column", "--value-column", "--unit-column", "--separator", "--decimal"];
+
+    private static readonly string[] Switches = ["--local-times"];
 
     private static readonly string[] Thresholds = ["--below", "--above"];
 
@@ -82,6 +107,11 @@ public sealed record OfflineOptions(
                     return (null, $"only one input file is read; '{arg}' is a second one.");
                 }
                 input = arg;
+                continue;
+            }
+            if (Switches.Contains(arg))
+            {
+                values[arg] = "true";
                 continue;
             }
             var (name, value) = arg.Contains('=', StringComparison.Ordinal)
@@ -113,6 +143,16 @@ public sealed record OfflineOptions(
         {
             return (null, "name the CSV file to read.");
         }
+        var (layout, _, layoutError) = CsvLayout.From(values.GetValueOrDefault("--time-column"), values.GetValueOrDefault("--value-column"),
+            values.GetValueOrDefault("--unit-column"), values.GetValueOrDefault("--separator"), values.GetValueOrDefault("--decimal"));
+        if (layout is null)
+        {
+            return (null, layoutError);
+        }
+        if (values.ContainsKey("--local-times") && !values.ContainsKey("--time-zone"))
+        {
+            return (null, "--local-times reads times in the site's zone: give it with --time-zone ZONE.");
+        }
         int? Number(string name) => values.TryGetValue(name, out var v) ? int.Parse(v, CultureInfo.InvariantCulture) : null;
         string Text(string name, string fallback) => values.GetValueOrDefault(name, fallback);
         return (new OfflineOptions(
@@ -133,6 +173,9 @@ public sealed record OfflineOptions(
         {
             Below = values.TryGetValue("--below", out var below) ? ParseThresholds(below)! : [],
             Above = values.TryGetValue("--above", out var above) ? ParseThresholds(above)! : [],
+            Layout = layout,
+            Unit = values.GetValueOrDefault("--unit"),
+            LocalTimes = values.ContainsKey("--local-times"),
         }, null);
     }
 

@@ -7,25 +7,21 @@ namespace ForecastHub.Api.CommandLine;
 /// <summary>The text form of an <see cref="OfflineReport"/>: what a person reads to see why this order was chosen and how good it is.</summary>
 internal static class OfflineReportText
 {
-    private const int MaxRejectedShown = 5;
+    private const int MaxRejectedShown = 20;
     private const int PacfLagsShown = 12;
 
     public static string Format(OfflineReport report, string jsonPath)
     {
         var text = new StringBuilder();
         void Line(FormattableString line) => text.AppendLine(line.ToString(CultureInfo.InvariantCulture));
-        var input = report.Input;
-        var m = report.Model;
+        var input = report.Input!;
+        var m = report.Model!;
 
         Line($"ForecastHub {report.Verb}: {input.File}");
         Line($"Input       {input.Rows} rows: {input.Accepted} readings used, {input.Rejected.Count} rejected, {input.Duplicates} duplicates, {input.Conflicts} conflicting; {input.Flagged} flagged by QC (left out of fitting)");
-        foreach (var r in input.Rejected.Take(MaxRejectedShown))
+        foreach (var line in RejectedLines(input.Rejected))
         {
-            Line($"            line {r.Line}: {r.Reason}");
-        }
-        if (input.Rejected.Count > MaxRejectedShown)
-        {
-            Line($"            ... {input.Rejected.Count - MaxRejectedShown} more in the JSON report");
+            text.AppendLine(line);
         }
         Line($"Cadence     {input.Cadence} ({input.CadenceChosenBy})");
         Line($"Time zone   {input.TimeZone} ({input.TimeZoneChosenBy})");
@@ -72,6 +68,19 @@ internal static class OfflineReportText
         }
         Line($"JSON report {jsonPath}");
         return text.ToString();
+    }
+
+    /// <summary>The first 20 rejected rows with their line and reason, then how many more.</summary>
+    public static IEnumerable<string> RejectedLines(IReadOnlyList<Observations.RejectedReading> rejected)
+    {
+        foreach (var r in rejected.Take(MaxRejectedShown))
+        {
+            yield return string.Create(CultureInfo.InvariantCulture, $"            line {r.Line}: {r.Reason}");
+        }
+        if (rejected.Count > MaxRejectedShown)
+        {
+            yield return string.Create(CultureInfo.InvariantCulture, $"            ... and {rejected.Count - MaxRejectedShown} more rejected rows ({rejected.Count} in all, each in the JSON report)");
+        }
     }
 
     private static void AppendBacktest(StringBuilder text, BacktestResponse? backtest, bool perHorizon)

@@ -3,7 +3,7 @@ using System.Text.Json;
 using ForecastHub.Api.Models;
 using ForecastHub.Api.Sites;
 using ForecastHub.Api.Verification;
-using ForecastHub.Core.Grid;
+using ForecastHub.Core.Health;
 using ForecastHub.Core.Quality;
 using ForecastHub.Core.Series;
 using ForecastHub.Storage.Models;
@@ -13,8 +13,14 @@ using ModelResponse = ForecastHub.Api.Models.ModelResponse;
 namespace ForecastHub.Api.CommandLine;
 
 /// <summary>The JSON report: the input, the model as <c>GET .../model</c> shows it, and the backtest as
-/// <c>GET .../verification</c> shows it (null when the history is too short for one origin).</summary>
-public sealed record OfflineReport(string Verb, DateTimeOffset RunAt, OfflineInputSummary Input, ModelResponse Model, BacktestResponse? Backtest);
+/// <c>GET .../verification</c> shows it (null when the history is too short for one origin). When no
+/// model could be fitted, <c>error</c> says why (and <c>health</c> is <c>warming-up</c> when the data are too few).</summary>
+public sealed record OfflineReport(string Verb, DateTimeOffset RunAt, OfflineInputSummary? Input, ModelResponse? Model, BacktestResponse? Backtest)
+{
+    public string? Error { get; init; }
+
+    public string? Health { get; init; }
+}
 
 /// <summary>
 /// <c>fit FILE.csv</c> and <c>backtest FILE.csv</c>: the service's own pipeline (CSV rules, QC,
@@ -53,14 +59,11 @@ public static class OfflineVerbs
             return await Fail(errors, optionError!).ConfigureAwait(false);
         }
         var now = time.GetUtcNow();
+        var jsonPath = options.OutputPath ?? Path.ChangeExtension(options.InputPath, $".{options.Verb}.json");
         var (readings, input, inputError) = OfflineInput.Read(options, now);
         if (readings is null || input is null)
         {
-            return await Fail(errors, inputError!).ConfigureAwait(false);
-        }
-        if (!IsKnownZone(input.TimeZone))
-        {
-            return await Fail(errors, $"time zone '{input.TimeZone}' is not a known IANA zone (for example Europe/London).").ConfigureAwait(false);
+            return await Refuse(options, jsonPath, now, input, null, inputError!, errors).ConfigureAwait(false);
         }
 
         var site = Site(options, input, now);
@@ -68,6 +71,15 @@ public static class OfflineVerbs
         var valid = readings.Where(r => !r.Flagged).ToList();
         var dataEnd = valid.Count > 0 ? valid[^1].Time : readings[^1].Time;
         var grid = SiteGridLoader.Build(site, readings, readings[0].Time, SiteGridLoader.NextStep(site, SiteGridLoader.AlignDown(site, dataEnd)));
+        // The service's own rule: no fit below the minimum of grid points (health warming-up).
+        var health = new HealthOptions();
+        var minPoints = input.Cadence == "daily" ? health.MinDailyPoints : health.MinHourlyPoints;
+        if (grid.ObservedCount < minPoints)
+        {
+            return await Refuse(options, jsonPath, now, input, "warming-up",
+                $"'{options.InputPath}' has {grid.ObservedCount} {input.Cadence} grid points; the service fits a site from {minPoints} on ({(input.Cadence == "daily" ? "60 days" : "7 days")}) and answers warming-up until then.",
+                errors).ConfigureAwait(false);
+        }
         ModelResponse model;
         var stopwatch = Stopwatch.StartNew();
         try
@@ -79,17 +91,36 @@ public static class OfflineVerbs
         }
         catch (SeriesException e)
         {
-            return await Fail(errors, $"no model can be fitted to '{options.InputPath}': {e.Message}").ConfigureAwait(false);
+            return await Refuse(options, jsonPath, now, input, null, $"no model can be fitted to '{options.InputPath}': {e.Message}", errors).ConfigureAwait(false);
         }
 
         var testDays = options.TestDays ?? (options.Verb == "fit" ? FitTestDays : BacktestTestDays);
+        using var progress = CommandLineProgress.Start(errors, "backtest");
         var backtest = Backtester.Run(site, readings, dataEnd, testDays, options.RefitEveryDays,
-            SiteModeling.RiskThresholds(site.Risk, options.Below, options.Above));
+            SiteModeling.RiskThresholds(site.Risk, options.Below, options.Above), progress.Report);
+        progress.Done();
         var report = new OfflineReport(options.Verb, now, input, model, backtest);
-        var jsonPath = options.OutputPath ?? Path.ChangeExtension(options.InputPath, $".{options.Verb}.json");
         await File.WriteAllTextAsync(jsonPath, JsonSerializer.Serialize(report, Json)).ConfigureAwait(false);
         await output.WriteAsync(OfflineReportText.Format(report, jsonPath)).ConfigureAwait(false);
         return 0;
+    }
+
+    // No model: the reason and every rejected line on standard error, and the JSON report with the reason.
+    private static async Task<int> Refuse(OfflineOptions options, string jsonPath, DateTimeOffset now, OfflineInputSummary? input,
+        string? health, string message, TextWriter errors)
+    {
+        var report = new OfflineReport(options.Verb, now, input, null, null) { Error = message, Health = health };
+        await errors.WriteLineAsync($"error: {message}").ConfigureAwait(false);
+        if (input is not null)
+        {
+            foreach (var line in OfflineReportText.RejectedLines(input.Rejected))
+            {
+                await errors.WriteLineAsync(line).ConfigureAwait(false);
+            }
+        }
+        await File.WriteAllTextAsync(jsonPath, JsonSerializer.Serialize(report, Json)).ConfigureAwait(false);
+        await errors.WriteLineAsync($"JSON report {jsonPath}").ConfigureAwait(false);
+        return 2;
     }
 
     private static SiteRecord Site(OfflineOptions options, OfflineInputSummary input, DateTimeOffset now)
@@ -99,19 +130,6 @@ public static class OfflineVerbs
             options.FitWindowDays ?? defaults.FitWindowDays, options.IntervalMethod);
         return new SiteRecord(SiteId, Path.GetFileName(options.InputPath), input.TimeZone, input.Cadence,
             input.Cadence == "daily" ? options.DailyStatistic : null, null, null, null, QualityLimits.Default, model, now, now);
-    }
-
-    private static bool IsKnownZone(string zone)
-    {
-        try
-        {
-            GridBuilder.FindZone(zone);
-            return true;
-        }
-        catch (ArgumentException)
-        {
-            return false;
-        }
     }
 
     private static async Task<int> Fail(TextWriter errors, string message)

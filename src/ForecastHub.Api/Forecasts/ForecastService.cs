@@ -103,11 +103,19 @@ public sealed class ForecastService(
 
         // Hourly: the hour in progress counts (the mean of its readings so far); daily: only whole local days.
         var to = isDaily ? currentStep : SiteGridLoader.NextStep(site, currentStep);
-        var from = now - (isDaily ? DailyRecentWindow : HourlyRecentWindow);
+        var recentWindow = isDaily ? DailyRecentWindow : HourlyRecentWindow;
+        var from = now - recentWindow;
         var readings = await grids.ReadAsync(site, from, to, cancellationToken);
         if (readings is null)
         {
             return null;
+        }
+
+        // An archive that ended before the recent window: forecast from its last data, every missing step counted.
+        if (readings.Count == 0 && await grids.NewestAsync(site, cancellationToken) is { } newest && newest < from)
+        {
+            from = newest - recentWindow;
+            readings = await grids.ReadAsync(site, from, to, cancellationToken) ?? [];
         }
 
         // The grid runs up to now, so steps with no data at its end are seen: the core forecasts from

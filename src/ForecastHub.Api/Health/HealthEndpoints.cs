@@ -1,6 +1,6 @@
-using ForecastHub.Storage.Migrations;
+using System.Data.Common;
+using ForecastHub.Api.Hosting;
 using Microsoft.AspNetCore.Http.HttpResults;
-using Microsoft.Data.Sqlite;
 
 namespace ForecastHub.Api.Health;
 
@@ -19,23 +19,25 @@ public static class HealthEndpoints
 
     public static Ok<LiveStatus> Live() => TypedResults.Ok(new LiveStatus("live"));
 
-    public static Results<Ok<ReadyStatus>, ProblemHttpResult> Ready(MigrationRunner migrations)
+    public static async Task<Results<Ok<ReadyStatus>, ProblemHttpResult>> Ready(IStorageSchema schema, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(schema);
+        int version;
         try
         {
-            var version = migrations.CurrentVersion();
-            if (version < migrations.LatestVersion)
-            {
-                return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                    detail: $"Storage schema is at version {version}; this build needs {migrations.LatestVersion}.");
-            }
-            return TypedResults.Ok(new ReadyStatus("ready", version));
+            version = await schema.CurrentVersionAsync(cancellationToken);
         }
-        catch (SqliteException e)
+        catch (Exception e) when (e is DbException or TimeoutException or System.Net.Sockets.SocketException)
         {
             return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                detail: $"Storage is not reachable (SQLite error {e.SqliteErrorCode}).");
+                detail: $"Storage is not reachable ({e.GetType().Name}).");
         }
+        if (version < schema.LatestVersion)
+        {
+            return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
+                detail: $"Storage schema is at version {version}; this build needs {schema.LatestVersion}.");
+        }
+        return TypedResults.Ok(new ReadyStatus("ready", version));
     }
 }
 

@@ -45,7 +45,9 @@ public sealed class ModelHealthService(
         var gridPoints = 0;
         if (model is null)
         {
-            var from = now.AddDays(-site.Model.FitWindowDays);
+            // The fit window counts back from the newest reading (an archive is fitted on its last days).
+            var anchor = summary.LastObservationAt is { } newest && newest < now ? newest : now;
+            var from = anchor.AddDays(-site.Model.FitWindowDays);
             gridPoints = isDaily
                 ? await readingSummaries.CountStepsWithDataAsync(site.Id, from, DayMs,
                     (long)GridBuilder.FindZone(site.TimeZone).BaseUtcOffset.TotalMilliseconds, cancellationToken)

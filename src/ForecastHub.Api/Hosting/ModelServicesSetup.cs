@@ -1,3 +1,4 @@
+using ForecastHub.Api.Cluster;
 using ForecastHub.Api.Forecasts;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Metrics;
@@ -34,17 +35,20 @@ public static class ModelServicesSetup
             .Validate(o => o.WindowDays is >= 1 and <= 365 && o.MinObservedShare is > 0 and <= 1, "LiveScores:WindowDays must be 1-365 and LiveScores:MinObservedShare in (0, 1].")
             .ValidateOnStart();
 
+        services.AddOptions<ClusterOptions>().BindConfiguration(ClusterOptions.SectionName).ValidateOnStart();
+        services.AddSingleton<IValidateOptions<ClusterOptions>>(new ThrowingValidator<ClusterOptions>(o => o.Validate()));
+        services.AddSingleton<WorkLeaseRunner>();
+        services.AddSingleton<NodeCaches>();
+        services.AddHostedService<ChangeListener>();
+
         services.AddSingleton<MetricsRegistry>();
         services.AddSingleton<ServiceMetrics>();
         services.AddSingleton<SiteVersions>();
         services.AddSingleton<RefitQueue>();
         services.AddSingleton<SiteModeling>();
-        services.AddSingleton<IModelStore, SqliteModelStore>();
-        services.AddSingleton<IForecastArchive, SqliteForecastArchive>();
-        services.AddSingleton<IReadingSummaryStore, SqliteReadingSummaryStore>();
         Wrap<IReadingStore>(services, (sp, inner) => new NotifyingReadingStore(inner,
             sp.GetRequiredService<SiteVersions>(), sp.GetRequiredService<RefitQueue>(), sp.GetRequiredService<ServiceMetrics>()));
-        Wrap<ISiteStore>(services, (_, inner) => new CachedSiteStore(inner));
+        Wrap<ISiteStore>(services, (sp, inner) => sp.GetRequiredService<NodeCaches>().Sites = new CachedSiteStore(inner));
         Wrap<ISiteStore>(services, (sp, inner) => new NotifyingSiteStore(inner,
             sp.GetRequiredService<SiteVersions>(), sp.GetRequiredService<RefitQueue>(), sp.GetRequiredService<ModelService>()));
 

@@ -1,30 +1,74 @@
+using System.Data.Common;
 using ForecastHub.Storage;
+using ForecastHub.Storage.Cluster;
+using ForecastHub.Storage.Health;
+using ForecastHub.Storage.Keys;
 using ForecastHub.Storage.Migrations;
+using ForecastHub.Storage.Models;
+using ForecastHub.Storage.Postgres;
+using ForecastHub.Storage.Postgres.Cluster;
+using ForecastHub.Storage.Postgres.Health;
+using ForecastHub.Storage.Postgres.Keys;
+using ForecastHub.Storage.Postgres.Migrations;
+using ForecastHub.Storage.Postgres.Models;
+using ForecastHub.Storage.Postgres.Readings;
+using ForecastHub.Storage.Postgres.Sites;
+using ForecastHub.Storage.Postgres.Verification;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
+using ForecastHub.Storage.Verification;
 using Microsoft.Extensions.Options;
 
 namespace ForecastHub.Api.Hosting;
 
 public static class StorageSetup
 {
-    /// <summary>The SQLite file from <c>Storage:Path</c>, the stores, and the migrations that run
-    /// before the server starts listening.</summary>
+    /// <summary>
+    /// The stores of the backend <c>Storage:Provider</c> names (the SQLite file of <c>Storage:Path</c>,
+    /// or the PostgreSQL database of <c>Storage:ConnectionString</c>), the work leases, and the
+    /// migrations that run before the server starts listening. Each store is chosen when first
+    /// resolved, so the decorators added later wrap whichever backend runs.
+    /// </summary>
     public static IServiceCollection AddForecastHubStorage(this IServiceCollection services)
     {
         services.TryAddSingletonTimeProvider();
         services.AddOptions<StorageOptions>()
             .BindConfiguration(StorageOptions.SectionName)
-            .Validate(o => !string.IsNullOrWhiteSpace(o.Path), "Storage:Path must name a file.")
+            .Validate(o => o.Provider is StorageOptions.Sqlite or StorageOptions.Postgres, "Storage:Provider must be 'sqlite' or 'postgres'.")
+            .Validate(o => o.IsPostgres || !string.IsNullOrWhiteSpace(o.Path), "Storage:Path must name a file.")
             .Validate(o => o.BusyTimeoutMs > 0, "Storage:BusyTimeoutMs must be positive.")
+            .Validate(o => !o.IsPostgres || !string.IsNullOrWhiteSpace(o.ConnectionString),
+                "Storage:ConnectionString must name the PostgreSQL database when Storage:Provider is 'postgres'.")
             .ValidateOnStart();
-        services.AddSingleton(sp => new SqliteDatabase(sp.GetRequiredService<IOptions<StorageOptions>>().Value));
+        services.AddSingleton(sp => new SqliteDatabase(Options(sp)));
         services.AddSingleton(sp => new MigrationRunner(sp.GetRequiredService<SqliteDatabase>()));
-        services.AddSingleton<ISiteStore, SqliteSiteStore>();
-        services.AddSingleton<IReadingStore, SqliteReadingStore>();
+        services.AddSingleton(sp => new PostgresDatabase(Options(sp).ConnectionString!));
+        services.AddSingleton(sp => new PostgresMigrationRunner(sp.GetRequiredService<PostgresDatabase>()));
+
+        Add<ISiteStore>(services, sp => new SqliteSiteStore(Sqlite(sp), Clock(sp)), sp => new PostgresSiteStore(Postgres(sp), Clock(sp)));
+        Add<IReadingStore>(services, sp => new SqliteReadingStore(Sqlite(sp)), sp => new PostgresReadingStore(Postgres(sp)));
+        Add<IApiKeyStore>(services, sp => new SqliteApiKeyStore(Sqlite(sp)), sp => new PostgresApiKeyStore(Postgres(sp)));
+        Add<IModelStore>(services, sp => new SqliteModelStore(Sqlite(sp)), sp => new PostgresModelStore(Postgres(sp)));
+        Add<IForecastArchive>(services, sp => new SqliteForecastArchive(Sqlite(sp)), sp => new PostgresForecastArchive(Postgres(sp)));
+        Add<IReadingSummaryStore>(services, sp => new SqliteReadingSummaryStore(Sqlite(sp)), sp => new PostgresReadingSummaryStore(Postgres(sp)));
+        Add<IWorkLeases>(services, sp => new LocalWorkLeases(Clock(sp)), sp => new PostgresWorkLeases(Postgres(sp)));
+        Add<IStorageSchema>(services, sp => new SqliteSchema(sp.GetRequiredService<MigrationRunner>()),
+            sp => new PostgresSchema(sp.GetRequiredService<PostgresMigrationRunner>()));
         services.AddHostedService<MigrationStartup>();
         return services;
     }
+
+    private static StorageOptions Options(IServiceProvider sp) => sp.GetRequiredService<IOptions<StorageOptions>>().Value;
+
+    private static SqliteDatabase Sqlite(IServiceProvider sp) => sp.GetRequiredService<SqliteDatabase>();
+
+    private static PostgresDatabase Postgres(IServiceProvider sp) => sp.GetRequiredService<PostgresDatabase>();
+
+    private static TimeProvider Clock(IServiceProvider sp) => sp.GetRequiredService<TimeProvider>();
+
+    private static void Add<T>(IServiceCollection services, Func<IServiceProvider, T> sqlite, Func<IServiceProvider, T> postgres)
+        where T : class =>
+        services.AddSingleton(sp => Options(sp).IsPostgres ? postgres(sp) : sqlite(sp));
 
     private static void TryAddSingletonTimeProvider(this IServiceCollection services)
     {
@@ -35,12 +79,43 @@ public static class StorageSetup
     }
 }
 
+/// <summary>The schema of whichever backend runs: what readiness reports and what start-up applies.</summary>
+public interface IStorageSchema
+{
+    /// <summary>The newest version this build knows.</summary>
+    int LatestVersion { get; }
+
+    /// <summary>Applies the missing migrations; answers the resulting version.</summary>
+    Task<int> MigrateAsync(CancellationToken cancellationToken);
+
+    /// <summary>The version the storage is at; throws a <see cref="DbException"/> when it cannot be reached.</summary>
+    Task<int> CurrentVersionAsync(CancellationToken cancellationToken);
+}
+
+internal sealed class SqliteSchema(MigrationRunner runner) : IStorageSchema
+{
+    public int LatestVersion => runner.LatestVersion;
+
+    public Task<int> MigrateAsync(CancellationToken cancellationToken) => runner.ApplyAsync(cancellationToken: cancellationToken);
+
+    public Task<int> CurrentVersionAsync(CancellationToken cancellationToken) => Task.FromResult(runner.CurrentVersion());
+}
+
+internal sealed class PostgresSchema(PostgresMigrationRunner runner) : IStorageSchema
+{
+    public int LatestVersion => runner.LatestVersion;
+
+    public Task<int> MigrateAsync(CancellationToken cancellationToken) => runner.ApplyAsync(cancellationToken: cancellationToken);
+
+    public Task<int> CurrentVersionAsync(CancellationToken cancellationToken) => runner.CurrentVersionAsync(cancellationToken);
+}
+
 /// <summary>Applies migrations in the host's starting phase, before any request is served.</summary>
-internal sealed class MigrationStartup(MigrationRunner runner, ILogger<MigrationStartup> logger) : IHostedLifecycleService
+internal sealed class MigrationStartup(IStorageSchema schema, ILogger<MigrationStartup> logger) : IHostedLifecycleService
 {
     public async Task StartingAsync(CancellationToken cancellationToken)
     {
-        var version = await runner.ApplyAsync(cancellationToken: cancellationToken).ConfigureAwait(false);
+        var version = await schema.MigrateAsync(cancellationToken).ConfigureAwait(false);
         if (logger.IsEnabled(LogLevel.Information))
         {
             logger.LogInformation("Storage schema at version {SchemaVersion}", version);

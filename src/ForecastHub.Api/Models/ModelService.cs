@@ -35,6 +35,9 @@ public sealed partial class ModelService(
     private readonly ConcurrentDictionary<string, SemaphoreSlim> siteLocks = new(StringComparer.Ordinal);
     private readonly ConcurrentDictionary<string, TaskCompletionSource<RefitOutcome>> waiters = new(StringComparer.Ordinal);
 
+    // Moved by every Forget: a model read from storage before a forget is served but not kept.
+    private long generation;
+
     /// <summary>Completes with the outcome of the next fit of the site that finishes (background or requested), so callers await work instead of polling.</summary>
     public Task<RefitOutcome> WhenNextFitAsync(string siteId) =>
         waiters.GetOrAdd(siteId, _ => new TaskCompletionSource<RefitOutcome>(TaskCreationOptions.RunContinuationsAsynchronously)).Task;
@@ -58,6 +61,7 @@ public sealed partial class ModelService(
             return cached;
         }
 
+        var seen = Interlocked.Read(ref generation);
         var stored = await store.GetAsync(site.Id, cancellationToken);
         if (stored is null)
         {
@@ -65,6 +69,11 @@ public sealed partial class ModelService(
         }
 
         var model = ServingModel.From(stored, modeling.Read(stored.ModelJson));
+        if (seen != Interlocked.Read(ref generation))
+        {
+            return model;
+        }
+
         MakeRoom();
         return loaded.GetOrAdd(site.Id, model);
     }
@@ -82,17 +91,31 @@ public sealed partial class ModelService(
         try
         {
             var now = clock.GetUtcNow();
-            var grid = await grids.LoadAsync(site, now.AddDays(-site.Model.FitWindowDays), now, cancellationToken);
+            // Counted back from the newest reading, so a site holding only an old archive is fitted on it.
+            var from = await grids.WindowStartAsync(site, site.Model.FitWindowDays, now, cancellationToken);
+            var grid = await grids.LoadAsync(site, from, now, cancellationToken);
             if (grid is null)
             {
                 return (null, null);
             }
 
-            var current = await GetAsync(site, cancellationToken);
+            // The decision reads the stored model's bookkeeping, not the copy in memory: another node may have fitted the site since.
+            var current = await store.GetSummaryAsync(site.Id, cancellationToken);
+            if (loaded.TryGetValue(site.Id, out var held) && held.Stored.FittedAt != current?.FittedAt)
+            {
+                loaded.TryRemove(new KeyValuePair<string, ServingModel>(site.Id, held));
+            }
+
+            if (current is not null && current.SettingsVersion > site.SettingsVersion)
+            {
+                // The site record in hand is older than the settings the stored model was fitted with.
+                return (null, null);
+            }
+
             var lastIndex = grid.LastValueIndex;
             var facts = new RefitFacts(
                 SiteGridLoader.IsDaily(site), grid.ObservedCount, MinPoints(site), site.SettingsVersion,
-                current?.Stored.FittedAt, current?.Stored.SettingsVersion, current?.Stored.DataPoints, current?.Stored.DataEnd,
+                current?.FittedAt, current?.SettingsVersion, current?.DataPoints, current?.DataEnd,
                 lastIndex >= 0 ? grid.Times[lastIndex] : null, now);
             var reason = force ? RefitReason.Requested : RefitPolicy.Decide(facts, refitOptions.Value);
             if (reason is null)
@@ -102,7 +125,7 @@ public sealed partial class ModelService(
 
             if (grid.ObservedCount < MinPoints(site))
             {
-                return (reason, new RefitOutcome(current, $"The site has {grid.ObservedCount} of the {MinPoints(site)} grid points needed for a fit.", NotEnoughData: true));
+                return (reason, new RefitOutcome(await GetAsync(site, cancellationToken), $"The site has {grid.ObservedCount} of the {MinPoints(site)} grid points needed for a fit.", NotEnoughData: true));
             }
 
             return (reason, Signal(site.Id, await FitAsync(site, grid, reason.Value, now, cancellationToken)));
@@ -168,8 +191,19 @@ public sealed partial class ModelService(
         }
     }
 
-    /// <summary>Drops the in-memory copy of a deleted site's model.</summary>
-    public void Forget(string siteId) => loaded.TryRemove(siteId, out _);
+    /// <summary>Drops the in-memory copy of a site's model (deleted, or changed by another node), or of every model when <paramref name="siteId"/> is null.</summary>
+    public void Forget(string? siteId)
+    {
+        Interlocked.Increment(ref generation);
+        if (siteId is null)
+        {
+            loaded.Clear();
+        }
+        else
+        {
+            loaded.TryRemove(siteId, out _);
+        }
+    }
 
     [LoggerMessage(Level = LogLevel.Warning, Message = "Fit of site {SiteId} ({Reason}) failed; the previous model keeps serving")]
     private static partial void LogFitFailed(ILogger logger, Exception error, string siteId, RefitReason reason);

@@ -1,3 +1,4 @@
+using ForecastHub.Api.Cluster;
 using ForecastHub.Storage.Sites;
 using Microsoft.Extensions.Options;
 
@@ -8,10 +9,14 @@ namespace ForecastHub.Api.Models;
 /// the <see cref="RefitQueue"/> and refit those a trigger applies to; a sweep every
 /// <see cref="RefitOptions.SweepInterval"/> queues every site (model age) and runs the daily
 /// archive-and-score step. Nothing here throws out of the loop: a failing site is logged and skipped.
+/// Across several nodes each site's work runs on one node at a time: a fit under the site's
+/// "refit" lease, and a sweep of the site under its "sweep" lease, kept for half a sweep interval
+/// so the other nodes' sweeps of that period pass the site by.
 /// </summary>
 public sealed partial class RefitWorker(
     RefitQueue queue,
     ISiteStore sites,
+    WorkLeaseRunner leases,
     ModelService models,
     IEnumerable<ISweepStep> sweepSteps,
     IOptions<RefitOptions> options,
@@ -51,11 +56,15 @@ public sealed partial class RefitWorker(
             var taken = queue.Take(request);
             try
             {
-                var site = await sites.GetAsync(taken.SiteId, stoppingToken);
-                if (site is not null)
+                // Another node holding the lease is fitting the site; if it dies, a later sweep finds the site again.
+                await leases.RunAsync("refit", taken.SiteId, async cancellationToken =>
                 {
-                    await models.RefitIfDueAsync(site, taken.Force, stoppingToken);
-                }
+                    var site = await sites.GetAsync(taken.SiteId, cancellationToken);
+                    if (site is not null)
+                    {
+                        await models.RefitIfDueAsync(site, taken.Force, cancellationToken);
+                    }
+                }, stoppingToken);
             }
             catch (OperationCanceledException) when (stoppingToken.IsCancellationRequested)
             {
@@ -109,6 +118,11 @@ public sealed partial class RefitWorker(
 
             foreach (var site in page)
             {
+                if (!await ClaimSweepAsync(site.Id, cancellationToken))
+                {
+                    continue;
+                }
+
                 queue.Enqueue(site.Id);
                 foreach (var step in sweepSteps)
                 {
@@ -135,6 +149,25 @@ public sealed partial class RefitWorker(
             }
 
             after = page[^1].Id;
+        }
+    }
+
+    private async Task<bool> ClaimSweepAsync(string siteId, CancellationToken cancellationToken)
+    {
+        try
+        {
+            return await leases.ClaimAsync("sweep", siteId, options.Value.SweepInterval / 2, cancellationToken);
+        }
+        catch (OperationCanceledException) when (cancellationToken.IsCancellationRequested)
+        {
+            return false;
+        }
+#pragma warning disable CA1031 // Storage trouble for one site's lease must not stop the sweep.
+        catch (Exception error)
+#pragma warning restore CA1031
+        {
+            LogSiteFailed(logger, error, siteId);
+            return false;
         }
     }
 

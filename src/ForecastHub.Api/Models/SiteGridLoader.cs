@@ -21,6 +21,23 @@ public sealed class SiteGridLoader(IReadingStore readings)
         return all is null ? null : Build(site, all, from, to);
     }
 
+    /// <summary>The time of the site's newest stored reading; null when it has none (or does not exist).</summary>
+    public async Task<DateTimeOffset?> NewestAsync(SiteRecord site, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        var span = await readings.SpanAsync(site.Id, cancellationToken);
+        return span is { } s ? DateTimeOffset.FromUnixTimeMilliseconds(s.LastMs) : null;
+    }
+
+    /// <summary>Where a window of <paramref name="days"/> counted back from the newest reading (or from now, when
+    /// that is earlier, or there is none) starts: an archive that ended long ago is still fitted on its own last days.</summary>
+    public async Task<DateTimeOffset> WindowStartAsync(SiteRecord site, int days, DateTimeOffset now, CancellationToken cancellationToken)
+    {
+        var newest = await NewestAsync(site, cancellationToken);
+        var anchor = newest is { } n && n < now ? n : now;
+        return anchor.AddDays(-days);
+    }
+
     /// <summary>The grid of already-read readings over [<paramref name="from"/>, <paramref name="to"/>).</summary>
     public static TimeGrid Build(SiteRecord site, IReadOnlyList<GridReading> readings, DateTimeOffset from, DateTimeOffset to)
     {

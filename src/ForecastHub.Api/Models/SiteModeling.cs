@@ -166,8 +166,18 @@ public sealed class SiteModeling
             new IntervalsResponse(
                 m.Calibration is null ? "gaussian" : "calibrated",
                 m.Calibration is { } c ? $"empirical quantiles of {c.Errors} standardised rolling-origin errors from {c.Origins} origins in {c.Folds} folds" : null),
-            m.Notes,
+            WindowNotes(serving, m.Notes),
             attempt is null ? null : new LastFitAttempt(attempt.AttemptedAt, attempt.Failed, attempt.Error));
+    }
+
+    // An archive's window ends long before the fit: say so beside the window's dates.
+    private static IReadOnlyList<string> WindowNotes(ServingModel serving, IReadOnlyList<string> notes)
+    {
+        var age = serving.Stored.FittedAt - serving.Model.Window.To;
+        return age < TimeSpan.FromDays(1)
+            ? notes
+            : [.. notes, string.Create(System.Globalization.CultureInfo.InvariantCulture,
+                $"The fit window is counted back from the newest reading ({serving.Model.Window.To:yyyy-MM-dd HH:mm} UTC), {age.TotalDays:0} days before the fit: the model describes the site's archive, not its present.")];
     }
 
     /// <summary>The core's settings from the site's validated strings.</summary>

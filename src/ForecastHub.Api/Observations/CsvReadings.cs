@@ -4,18 +4,23 @@ using System.Text;
 namespace ForecastHub.Api.Observations;
 
 /// <summary>
-/// Strict CSV (RFC 4180): UTF-8 with or without BOM, CRLF or LF line ends, a required header
-/// <c>time,value</c> or <c>time,value,unit</c> (any case), comma separators, fields optionally in
-/// double quotes with <c>""</c> for a quote; a quoted field may hold line breaks, which then belong
-/// to the field. Blank lines are skipped. A bad row is refused alone, with the line number its record
-/// starts on; a bad header or non-text body refuses the whole body.
+/// Strict CSV (RFC 4180): UTF-8 with or without BOM, CRLF or LF line ends, a required header line,
+/// fields separated as the <see cref="CsvLayout"/> says (default comma), optionally in double quotes
+/// with <c>""</c> for a quote; a quoted field may hold line breaks, which then belong to the field.
+/// The layout names the time, value and unit columns (default <c>time</c>, <c>value</c> and an
+/// optional <c>unit</c>); other columns are ignored, and every row has as many fields as the header.
+/// Blank lines are skipped. A bad row is refused alone, with the line number its record starts on;
+/// a bad header or non-text body refuses the whole body.
 /// </summary>
 internal static class CsvReadings
 {
     private static readonly UTF8Encoding StrictUtf8 = new(encoderShouldEmitUTF8Identifier: false, throwOnInvalidBytes: true);
 
-    public static (List<RawReading>? Rows, string? Error, bool TooMany) Parse(byte[] body, int maxReadings)
+    private readonly record struct Columns(int Time, int Value, int Unit, int Count);
+
+    public static (List<RawReading>? Rows, string? Error, bool TooMany) Parse(byte[] body, int maxReadings, CsvLayout? layout = null)
     {
+        layout ??= CsvLayout.Default;
         string text;
         try
         {
@@ -33,9 +38,9 @@ internal static class CsvReadings
         {
             return (null, "The body contains NUL characters; it is not CSV text.", false);
         }
-        var records = Records(text);
+        var records = Records(text, layout.Separator);
         var header = records[0].Text;
-        var headerError = CheckHeader(header, out var columns);
+        var headerError = CheckHeader(header, layout, out var columns);
         if (headerError is not null)
         {
             return (null, headerError, false);
@@ -51,14 +56,14 @@ internal static class CsvReadings
             {
                 return (null, $"More than {maxReadings} readings in one request.", true);
             }
-            rows.Add(ParseRow(record, rows.Count, line, columns));
+            rows.Add(ParseRow(record, rows.Count, line, columns, layout));
         }
         return (rows, null, false);
     }
 
     // The records of the body (each without its line end) and the line each starts on. A line break
     // ends a record unless it is inside a quoted field, which opens only at the start of a field.
-    private static List<(string Text, int Line)> Records(string text)
+    internal static List<(string Text, int Line)> Records(string text, char separator)
     {
         var records = new List<(string, int)>();
         int start = 0, line = 1, startLine = 1;
@@ -92,48 +97,70 @@ internal static class CsvReadings
                 start = i + 1;
                 startLine = ++line;
             }
-            fieldStart = c is ',' or '\n';
+            fieldStart = c == separator || c == '\n';
         }
         records.Add((text[start..].TrimEnd('\r'), startLine));
         return records;
     }
 
-    private static string? CheckHeader(string header, out int columns)
+    private static string? CheckHeader(string header, CsvLayout layout, out Columns columns)
     {
-        columns = 0;
-        var fields = SplitFields(header, out _);
-        var names = fields?.Select(f => f.Trim().ToLowerInvariant()).ToArray();
-        if (names is ["time", "value"] or ["time", "value", "unit"])
+        columns = default;
+        var fields = SplitFields(header, layout.Separator, out _);
+        if (fields is null || fields.Count == 0 || header.Trim().Length == 0)
         {
-            columns = names.Length;
+            return "Line 1 must be a header line naming the columns (for example 'time,value').";
+        }
+        var time = CsvLayout.Find(layout.TimeColumn, fields);
+        var value = CsvLayout.Find(layout.ValueColumn, fields);
+        var unit = layout.UnitColumn is { } u ? CsvLayout.Find(u, fields) : CsvLayout.Find(CsvLayout.DefaultUnitColumn, fields);
+        if (time >= 0 && value >= 0 && (unit >= 0 || layout.UnitColumn is null) && time != value && time != unit && value != unit)
+        {
+            columns = new Columns(time, value, unit, fields.Count);
             return null;
         }
-        if (header.Contains(';', StringComparison.Ordinal) && !header.Contains(',', StringComparison.Ordinal))
+        if (fields.Count == 1 && layout.Separator == ',' && header.Contains(';', StringComparison.Ordinal))
         {
-            return "Line 1: the CSV is separated by ';'. Use ',' between fields (and '.' as the decimal point).";
+            return "Line 1: the CSV is separated by ';'; say so with separator=; (and decimal=, for decimal commas).";
         }
-        return $"Line 1 must be the header 'time,value' or 'time,value,unit'; found '{IsoTime.Clip(header)}'.";
+        if (fields.Count == 1 && layout.Separator == ',' && header.Contains('\t', StringComparison.Ordinal))
+        {
+            return "Line 1: the CSV is separated by tabs; say so with separator=tab.";
+        }
+        var missing = time < 0 ? ("timeColumn", layout.TimeColumn) : value < 0 ? ("valueColumn", layout.ValueColumn) : unit < 0 ? ("unitColumn", layout.UnitColumn!) : default;
+        var names = string.Join(", ", fields.Select(f => $"'{IsoTime.Clip(f.Trim())}'"));
+        return missing.Item1 is null
+            ? $"Line 1: the time, value and unit columns must be three different columns; the header has {names}."
+            : $"Line 1: the header has no column '{IsoTime.Clip(missing.Item2)}' ({missing.Item1}); it has {names}. Name the column or give its 1-based position.";
     }
 
-    private static RawReading ParseRow(string line, int index, int lineNumber, int columns)
+    private static RawReading ParseRow(string line, int index, int lineNumber, Columns columns, CsvLayout layout)
     {
-        var fields = SplitFields(line, out var splitError);
+        var fields = SplitFields(line, layout.Separator, out var splitError);
         if (fields is null)
         {
             return new RawReading(index, lineNumber, null, null, null, splitError);
         }
-        var time = fields.Count > 0 ? fields[0].Trim() : null;
-        if (fields.Count != columns)
+        var time = fields.Count > columns.Time ? fields[columns.Time].Trim() : null;
+        if (fields.Count != columns.Count)
         {
             return new RawReading(index, lineNumber, time, null, null,
-                $"expected {columns} fields (as in the header), found {fields.Count}.");
+                $"expected {columns.Count} fields (as in the header), found {fields.Count}.");
         }
-        var valueText = fields[1].Trim();
-        var unit = columns == 3 && fields[2].Trim().Length > 0 ? fields[2].Trim() : null;
+        var valueText = fields[columns.Value].Trim();
+        var unit = columns.Unit >= 0 && fields[columns.Unit].Trim().Length > 0 ? TemperatureUnits.Normalise(fields[columns.Unit].Trim()) : null;
+        if (layout.DecimalMark == ',')
+        {
+            if (valueText.Contains('.', StringComparison.Ordinal))
+            {
+                return new RawReading(index, lineNumber, time, null, unit, $"value '{IsoTime.Clip(valueText)}' has a '.', but the decimal mark is ','.");
+            }
+            valueText = valueText.Replace(',', '.');
+        }
         if (!double.TryParse(valueText, NumberStyles.AllowLeadingSign | NumberStyles.AllowDecimalPoint | NumberStyles.AllowExponent,
                 CultureInfo.InvariantCulture, out var value))
         {
-            return new RawReading(index, lineNumber, time, null, unit, $"value '{IsoTime.Clip(valueText)}' is not a number.");
+            return new RawReading(index, lineNumber, time, null, unit, $"value '{IsoTime.Clip(fields[columns.Value].Trim())}' is not a number.");
         }
         if (!double.IsFinite(value))
         {
@@ -143,7 +170,7 @@ internal static class CsvReadings
     }
 
     // Fields of one record; null with an error when a quoted field is not closed properly.
-    private static List<string>? SplitFields(string line, out string? error)
+    private static List<string>? SplitFields(string line, char separator, out string? error)
     {
         error = null;
         var fields = new List<string>(3);
@@ -175,7 +202,7 @@ internal static class CsvReadings
                     }
                     field.Append(line[i++]);
                 }
-                if (i < line.Length && line[i] != ',')
+                if (i < line.Length && line[i] != separator)
                 {
                     error = "text follows a closing quote; quote the whole field.";
                     return null;
@@ -183,7 +210,7 @@ internal static class CsvReadings
             }
             else
             {
-                while (i < line.Length && line[i] != ',')
+                while (i < line.Length && line[i] != separator)
                 {
                     if (line[i] == '"')
                     {
@@ -198,7 +225,7 @@ internal static class CsvReadings
             {
                 return fields;
             }
-            i++; // the comma
+            i++; // the separator
         }
     }
 }

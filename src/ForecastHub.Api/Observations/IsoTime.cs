@@ -14,7 +14,17 @@ public static class IsoTime
 
     public static bool TryParse(ReadOnlySpan<char> text, out DateTimeOffset value, out string error)
     {
-        value = default;
+        var ok = TryParse(text, offsetRequired: true, out var local, out var offset, out error);
+        value = ok ? new DateTimeOffset(local, offset!.Value) : default;
+        return ok;
+    }
+
+    /// <summary>The same rules, but a time without an offset may be allowed: then <paramref name="offset"/>
+    /// is null and <paramref name="local"/> is the wall-clock time as written (to the millisecond).</summary>
+    public static bool TryParse(ReadOnlySpan<char> text, bool offsetRequired, out DateTime local, out TimeSpan? offset, out string error)
+    {
+        local = default;
+        offset = null;
         error = "";
         var s = text.Trim();
         if (s.Length < 16 || !Digits(s, 0, 4, out var year) || s[4] != '-' || !Digits(s, 5, 2, out var month) || s[7] != '-'
@@ -51,7 +61,9 @@ public static class IsoTime
                 fractionTicks = long.Parse(digits, CultureInfo.InvariantCulture);
             }
         }
-        if (!TryOffset(s[i..], out var offset, out error))
+        var hasOffset = offsetRequired || i < s.Length;
+        var zoneOffset = TimeSpan.Zero;
+        if (hasOffset && !TryOffset(s[i..], out zoneOffset, out error))
         {
             return false;
         }
@@ -65,15 +77,15 @@ public static class IsoTime
             error = $"{s[11..Math.Min(s.Length, 19)]} is not a time of day (hours 00-23, minutes and seconds 00-59).";
             return false;
         }
-        var local = new DateTime(year, month, day, hour, minute, second, DateTimeKind.Unspecified).AddTicks(fractionTicks);
-        var utcTicks = local.Ticks - offset.Ticks;
+        var written = new DateTime(year, month, day, hour, minute, second, DateTimeKind.Unspecified).AddTicks(fractionTicks);
+        var utcTicks = written.Ticks - zoneOffset.Ticks;
         if (utcTicks < DateTimeOffset.MinValue.UtcTicks || utcTicks > DateTimeOffset.MaxValue.UtcTicks)
         {
             error = "time is outside the representable range.";
             return false;
         }
-        var truncated = local.AddTicks(-(utcTicks % TimeSpan.TicksPerMillisecond));
-        value = new DateTimeOffset(truncated, offset);
+        local = written.AddTicks(-(utcTicks % TimeSpan.TicksPerMillisecond));
+        offset = hasOffset ? zoneOffset : null;
         return true;
     }
 

@@ -1,4 +1,5 @@
 using ForecastHub.Storage.Readings;
+using Microsoft.AspNetCore.Mvc;
 
 namespace ForecastHub.Api.Observations;
 
@@ -28,9 +29,10 @@ public sealed record GridPage(string SiteId, string Resolution, string Cadence, 
 internal readonly record struct RawReading(int Index, int? Line, string? Time, double? Value, string? Unit, string? Error);
 
 /// <summary>A request's readings after the row rules: how many rows were sent, the valid readings
-/// (with their request index), the refused rows, and the time text and CSV line of a row by index.</summary>
+/// (with their request index), the refused rows, the time text and CSV line of a row by index, and
+/// the values sent in degrees C that the physical range refused (for the batch's unit check).</summary>
 internal sealed record ReadingBatch(int Count, List<IncomingReading> Valid, List<RejectedReading> Rejected,
-    Func<int, string?> TimeText, Func<int, int?> Line);
+    Func<int, string?> TimeText, Func<int, int?> Line, List<double> ImpossibleCelsius);
 
 /// <summary>The JSON body of a post as the OpenAPI document shows it; the handler parses the body
 /// itself, strictly, and also reads <c>text/csv</c> (<c>time,value[,unit]</c>).</summary>
@@ -38,3 +40,34 @@ public sealed record ObservationsBody(string? Unit, IReadOnlyList<ReadingBody> R
 
 /// <summary>One reading: ISO 8601 time with an offset, and the value in the body's unit.</summary>
 public sealed record ReadingBody(string Time, double Value);
+
+/// <summary>The query of a post: the unit and conflict policy of every body, the layout of a CSV
+/// export (<see cref="CsvLayout"/>), and whether times without an offset are the site's local times.</summary>
+public sealed record IngestQuery
+{
+    /// <summary>Unit of values without their own: C (default), F or K.</summary>
+    [FromQuery(Name = "unit")] public string? Unit { get; init; }
+
+    /// <summary>reject (default) or replace: what a different value for a stored time does.</summary>
+    [FromQuery(Name = "onConflict")] public string? OnConflict { get; init; }
+
+    /// <summary>CSV: the time column, by header name or 1-based position (default 'time').</summary>
+    [FromQuery(Name = "timeColumn")] public string? TimeColumn { get; init; }
+
+    /// <summary>CSV: the value column, by header name or 1-based position (default 'value').</summary>
+    [FromQuery(Name = "valueColumn")] public string? ValueColumn { get; init; }
+
+    /// <summary>CSV: the unit column, by header name or 1-based position (default: a column named 'unit', if any).</summary>
+    [FromQuery(Name = "unitColumn")] public string? UnitColumn { get; init; }
+
+    /// <summary>CSV: the field separator, ',' (default), ';' or 'tab'.</summary>
+    [FromQuery(Name = "separator")] public string? Separator { get; init; }
+
+    /// <summary>CSV: the decimal mark, '.' (default) or ','.</summary>
+    [FromQuery(Name = "decimal")] public string? DecimalMark { get; init; }
+
+    /// <summary>true: times without an offset are wall-clock times of the site's zone (see the README for repeated hours).</summary>
+    [FromQuery(Name = "localTimes")] public bool? LocalTimes { get; init; }
+
+    internal bool NamesCsvLayout => TimeColumn is not null || ValueColumn is not null || UnitColumn is not null || Separator is not null || DecimalMark is not null;
+}

@@ -1,10 +1,12 @@
 using System.Globalization;
+using System.Security.Claims;
 using System.Text;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
+using ForecastHub.Core.Grid;
 using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
@@ -36,9 +38,33 @@ public static class ObservationsEndpoints
     }
 
     public static async Task<Results<Ok<ObservationsAnswer>, ProblemHttpResult>> Post(
-        string siteId, HttpRequest request, [FromQuery] string? unit, [FromQuery] string? onConflict,
-        IReadingStore readings, ServiceMetrics metrics, TimeProvider clock, CancellationToken cancellationToken)
+        string siteId, HttpRequest request, [AsParameters] IngestQuery query,
+        IReadingStore readings, ISiteStore sites, ServiceMetrics metrics, TimeProvider clock, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(request);
+        var isJson = RequestBody.IsJson(request);
+        if (!isJson && !RequestBody.IsCsv(request))
+        {
+            return ApiProblems.UnsupportedMediaType("Send readings as 'application/json' or 'text/csv'.");
+        }
+        var body = await RequestBody.ReadAsync(request, MaxBodyBytes, cancellationToken).ConfigureAwait(false);
+        if (body is null)
+        {
+            return ApiProblems.TooLarge($"The body is larger than {MaxBodyBytes / (1024 * 1024)} MiB; send at most {MaxReadings} readings per request.");
+        }
+        return await IngestAsync(siteId, body, isJson, query, request.HttpContext.User, readings, sites, metrics, clock, cancellationToken).ConfigureAwait(false);
+    }
+
+    /// <summary>Everything a post does after its body has arrived and its key was allowed to write the
+    /// site (<paramref name="caller"/>): the one ingest path of HTTP and MQTT.</summary>
+    public static async Task<Results<Ok<ObservationsAnswer>, ProblemHttpResult>> IngestAsync(
+        string siteId, byte[] body, bool isJson, IngestQuery query, ClaimsPrincipal caller,
+        IReadingStore readings, ISiteStore sites, ServiceMetrics metrics, TimeProvider clock, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(query);
+        ArgumentNullException.ThrowIfNull(caller);
+        ArgumentNullException.ThrowIfNull(sites);
+        var (unit, onConflict) = (query.Unit, query.OnConflict);
         if (!SiteRules.IsValidSiteId(siteId))
         {
             return SitesEndpoints.NoSuchSite(siteId);
@@ -51,21 +77,33 @@ public static class ObservationsEndpoints
         {
             return ApiProblems.BadRequest("onConflict", "onConflict must be 'reject' (the default) or 'replace'.");
         }
-        var isJson = RequestBody.IsJson(request);
-        if (!isJson && !RequestBody.IsCsv(request))
+        var (layout, layoutField, layoutError) = CsvLayout.From(query.TimeColumn, query.ValueColumn, query.UnitColumn, query.Separator, query.DecimalMark);
+        if (layout is null)
         {
-            return ApiProblems.UnsupportedMediaType("Send readings as 'application/json' or 'text/csv'.");
+            return ApiProblems.BadRequest(layoutField!, layoutError!);
         }
-        var body = await RequestBody.ReadAsync(request, MaxBodyBytes, cancellationToken).ConfigureAwait(false);
-        if (body is null)
+        if (isJson && query.NamesCsvLayout)
         {
-            return ApiProblems.TooLarge($"The body is larger than {MaxBodyBytes / (1024 * 1024)} MiB; send at most {MaxReadings} readings per request.");
+            return ApiProblems.BadRequest("timeColumn", "timeColumn, valueColumn, unitColumn, separator and decimal describe a text/csv body; this body is JSON.");
         }
+        var site = await sites.GetAsync(siteId, cancellationToken).ConfigureAwait(false);
+        if (site is null)
+        {
+            return SitesEndpoints.NoSuchSite(siteId);
+        }
+        var localZone = query.LocalTimes == true ? GridBuilder.FindZone(site.TimeZone) : null;
         var now = clock.GetUtcNow();
-        var (batch, problem) = isJson ? ReadJson(body, unit, now) : ReadCsv(body, unit, now);
+        var (batch, problem) = isJson
+            ? (localZone is null ? ReadJson(body, unit, now) : Validate(ParseJson(body), unit, now, localZone))
+            : Validate(ParseCsv(body, layout), unit, now, localZone);
         if (problem is not null)
         {
             return problem;
+        }
+        if (UnitPlausibility.Check(batch!, site.Quality) is { } unitProblem)
+        {
+            return TypedResults.Problem(statusCode: StatusCodes.Status422UnprocessableEntity, title: "The unit looks wrong",
+                detail: unitProblem, extensions: new Dictionary<string, object?> { ["field"] = "unit" });
         }
         metrics.Readings.Inc(batch!.Rejected.Count, "rejected");
         var policy = onConflict == "replace" ? ConflictPolicy.Replace : ConflictPolicy.Reject;
@@ -75,8 +113,8 @@ public static class ObservationsEndpoints
             return SitesEndpoints.NoSuchSite(siteId);
         }
         // A key that may not read the series learns only that a different value is stored.
-        var mayRead = request.HttpContext.User.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Admin)
-            || request.HttpContext.User.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Read);
+        var mayRead = caller.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Admin)
+            || caller.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Read);
         var answer = Summarise(batch, result, mayRead);
         if (answer.Accepted + answer.Duplicates + answer.Replaced == 0)
         {
@@ -135,11 +173,8 @@ public static class ObservationsEndpoints
     internal static (ReadingBatch? Batch, ProblemHttpResult? Problem) ReadJsonStrict(byte[] body, string? queryUnit, DateTimeOffset now) =>
         Validate(ParseJson(body), queryUnit, now);
 
-    private static (ReadingBatch? Batch, ProblemHttpResult? Problem) ReadCsv(byte[] body, string? queryUnit, DateTimeOffset now) =>
-        Validate(ParseCsv(body), queryUnit, now);
-
     private static (ReadingBatch? Batch, ProblemHttpResult? Problem) Validate(
-        (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) parsed, string? unit, DateTimeOffset now)
+        (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) parsed, string? unit, DateTimeOffset now, TimeZoneInfo? localZone = null)
     {
         var (rows, bodyUnit, problem) = parsed;
         if (problem is not null)
@@ -158,8 +193,8 @@ public static class ObservationsEndpoints
         {
             return (null, ApiProblems.BadRequest("readings", "The request holds no readings."));
         }
-        var (valid, rejected) = ReadingValidation.Validate(rows, bodyUnit ?? unit ?? TemperatureUnits.Celsius, now);
-        return (new ReadingBatch(rows.Count, valid, rejected, i => rows[i].Time, i => rows[i].Line), null);
+        var (valid, rejected, impossible) = ReadingValidation.Validate(rows, bodyUnit ?? unit ?? TemperatureUnits.Celsius, now, localZone);
+        return (new ReadingBatch(rows.Count, valid, rejected, i => rows[i].Time, i => rows[i].Line, impossible), null);
     }
 
     private static (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) ParseJson(byte[] body)
@@ -177,9 +212,9 @@ public static class ObservationsEndpoints
         return (rows, unit, null);
     }
 
-    private static (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) ParseCsv(byte[] body)
+    private static (List<RawReading>? Rows, string? Unit, ProblemHttpResult? Problem) ParseCsv(byte[] body, CsvLayout layout)
     {
-        var (rows, error, tooMany) = CsvReadings.Parse(body, MaxReadings);
+        var (rows, error, tooMany) = CsvReadings.Parse(body, MaxReadings, layout);
         if (rows is null)
         {
             return (null, null, tooMany ? ApiProblems.TooLarge(error!) : ApiProblems.BadRequest("body", error!));

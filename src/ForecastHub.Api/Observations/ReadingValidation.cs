@@ -13,37 +13,60 @@ internal static class ReadingValidation
     /// <summary>The earliest reading time stored; an earlier one is almost always a broken clock or a missing year.</summary>
     public static readonly DateTimeOffset Earliest = new(1800, 1, 1, 0, 0, 0, TimeSpan.Zero);
 
-    public static (List<IncomingReading> Valid, List<RejectedReading> Rejected) Validate(
-        IReadOnlyList<RawReading> rows, string defaultUnit, DateTimeOffset now)
+    /// <summary>The row rules; with <paramref name="localZone"/>, times without an offset are read in that zone
+    /// (<see cref="LocalTimes"/>). <c>Impossible</c>: the values of rows in degrees C refused for the physical range.</summary>
+    public static (List<IncomingReading> Valid, List<RejectedReading> Rejected, List<double> ImpossibleCelsius) Validate(
+        IReadOnlyList<RawReading> rows, string defaultUnit, DateTimeOffset now, TimeZoneInfo? localZone = null)
     {
         var valid = new List<IncomingReading>(rows.Count);
         var rejected = new List<RejectedReading>();
+        var impossible = new List<double>();
         var latest = now + MaxAhead;
+        var local = localZone is null ? null : new LocalTimes(localZone, rows.Select(r => r.Error is null ? r.Time : null));
         foreach (var row in rows)
         {
-            var reason = Check(row, defaultUnit, latest, out var reading);
+            var reason = Check(row, defaultUnit, latest, local, out var reading);
             if (reason is null)
             {
                 valid.Add(reading);
+                continue;
             }
-            else
+            rejected.Add(new RejectedReading(row.Index, row.Line, Clip(row.Time), reason));
+            if (reading.OriginalUnit == TemperatureUnits.Celsius)
             {
-                rejected.Add(new RejectedReading(row.Index, row.Line, Clip(row.Time), reason));
+                impossible.Add(reading.OriginalValue);
             }
         }
-        return (valid, rejected);
+        return (valid, rejected, impossible);
+    }
+
+    /// <summary>The value as sent and, when the unit is not C, as converted; and which other unit would put it in range.</summary>
+    private static string OutsidePhysicalRange(double value, string unit, double celsius)
+    {
+        var sent = string.Create(CultureInfo.InvariantCulture, $"value {value:0.###} {unit}");
+        var converted = unit == TemperatureUnits.Celsius ? sent : string.Create(CultureInfo.InvariantCulture, $"{sent} ({celsius:0.##} C)");
+        // From C the mix-ups are F and K; from F or K, C.
+        string[] candidates = unit == TemperatureUnits.Celsius ? [TemperatureUnits.Fahrenheit, TemperatureUnits.Kelvin] : [TemperatureUnits.Celsius];
+        var other = candidates
+            .Select(u => (Unit: u, C: TemperatureUnits.ToCelsius(value, u)))
+            .FirstOrDefault(x => x.C >= SiteRules.PhysicalMinC && x.C <= SiteRules.PhysicalMaxC);
+        var hint = other.Unit is null ? "check the unit" : string.Create(CultureInfo.InvariantCulture, $"check the unit: as {other.Unit} it would be {other.C:0.##} C");
+        return string.Create(CultureInfo.InvariantCulture,
+            $"{converted} is outside the physical range {SiteRules.PhysicalMinC}..{SiteRules.PhysicalMaxC} C; {hint}.");
     }
 
     public static string? Clip(string? time) => time is null ? null : IsoTime.Clip(time);
 
-    private static string? Check(RawReading row, string defaultUnit, DateTimeOffset latest, out IncomingReading reading)
+    private static string? Check(RawReading row, string defaultUnit, DateTimeOffset latest, LocalTimes? local, out IncomingReading reading)
     {
         reading = default;
         if (row.Error is not null)
         {
             return row.Error;
         }
-        if (!IsoTime.TryParse(row.Time, out var time, out var timeError))
+        DateTimeOffset time;
+        string timeError;
+        if (local is null ? !IsoTime.TryParse(row.Time, out time, out timeError) : !local.TryRead(row.Time, out time, out timeError))
         {
             return timeError;
         }
@@ -51,7 +74,8 @@ internal static class ReadingValidation
     }
 
     /// <summary>The rules after the time has been read: at most <see cref="MaxAhead"/> past the clock
-    /// (<paramref name="latest"/> = now + MaxAhead), a known unit, inside the physical range.</summary>
+    /// (<paramref name="latest"/> = now + MaxAhead), a known unit, inside the physical range. A reading
+    /// refused for the range is still returned in <paramref name="reading"/>, for the batch's unit check.</summary>
     public static string? CheckRead(int index, long timeMs, double value, string unit, DateTimeOffset latest, out IncomingReading reading)
     {
         reading = default;
@@ -69,12 +93,11 @@ internal static class ReadingValidation
             return $"unit '{IsoTime.Clip(unit)}' is not known: {TemperatureUnits.UnknownUnitMessage}";
         }
         var celsius = TemperatureUnits.ToCelsius(value, unit);
+        reading = new IncomingReading(index, timeMs, celsius, value, unit);
         if (celsius < SiteRules.PhysicalMinC || celsius > SiteRules.PhysicalMaxC)
         {
-            return string.Create(CultureInfo.InvariantCulture,
-                $"value {value} {unit} is {celsius:0.##} C, outside the physical range {SiteRules.PhysicalMinC}..{SiteRules.PhysicalMaxC} C; check the unit.");
+            return OutsidePhysicalRange(value, unit, celsius);
         }
-        reading = new IncomingReading(index, timeMs, celsius, value, unit);
         return null;
     }
 }

@@ -17,5 +17,23 @@ public static class TemperatureUnits
         _ => throw new ArgumentException($"Unknown unit '{unit}'.", nameof(unit)),
     };
 
+    /// <summary>The unit as exports spell it ('°C', 'degF', 'c') in the contract's form; other text unchanged (and refused later).</summary>
+    public static string Normalise(string unit)
+    {
+        ArgumentNullException.ThrowIfNull(unit);
+        var u = unit.Trim().TrimStart('°', 'º');
+        if (u.StartsWith("deg", StringComparison.OrdinalIgnoreCase))
+        {
+            u = u[3..].TrimStart(' ', '_');
+        }
+        return u.ToUpperInvariant() switch
+        {
+            "C" or "CELSIUS" => Celsius,
+            "F" or "FAHRENHEIT" => Fahrenheit,
+            "K" or "KELVIN" => Kelvin,
+            _ => unit,
+        };
+    }
+
     public const string UnknownUnitMessage = "unit must be 'C', 'F' or 'K'.";
 }

@@ -89,6 +89,7 @@ internal static class Utf8JsonReadings
     {
         var valid = new List<IncomingReading>(Math.Min(maxReadings, body.Length / 32));
         var rejected = new List<RejectedReading>();
+        var impossible = new List<double>();
         var times = new List<(int Start, int Length)>(valid.Capacity);
         while (reader.Read() && reader.TokenType == JsonTokenType.StartObject)
         {
@@ -124,14 +125,18 @@ internal static class Utf8JsonReadings
             else
             {
                 rejected.Add(new RejectedReading(index, null, ReadingValidation.Clip(StrictUtf8.GetString(timeBytes)), reason));
+                if (reading.OriginalUnit == TemperatureUnits.Celsius)
+                {
+                    impossible.Add(reading.OriginalValue);
+                }
             }
         }
         if (reader.TokenType != JsonTokenType.EndArray || times.Count == 0)
         {
             return null;
         }
-        return new ReadingBatch(times.Count, valid, rejected, 
-            index => StrictUtf8.GetString(body, times[index].Start, times[index].Length), _ => null);
+        return new ReadingBatch(times.Count, valid, rejected,
+            index => StrictUtf8.GetString(body, times[index].Start, times[index].Length), _ => null, impossible);
     }
 
     // One { "time": "...", "value": n, "unit"?: "..." } object; false for any other shape.

@@ -6,8 +6,8 @@ namespace ForecastHub.Api.Sites;
 /// Site records in memory, so a busy read (a forecast served from the cache) costs no database read.
 /// Every change or deletion through this store drops the site's entry after it is written, and a
 /// read that started before a change is not cached afterwards (the generation check), so no stale
-/// record survives a change. This process must be the only writer of the sites table (it is: one
-/// node per database file). Bounded: the whole cache is dropped when sites outnumber the cap.
+/// record survives a change. Changes made by other nodes (PostgreSQL) arrive as change notices that
+/// call <see cref="Forget"/>. Bounded: the whole cache is dropped when sites outnumber the cap.
 /// </summary>
 public sealed class CachedSiteStore(ISiteStore inner) : ISiteStore
 {
@@ -94,6 +94,23 @@ public sealed class CachedSiteStore(ISiteStore inner) : ISiteStore
         {
             Invalidate(id);
         }
+    }
+
+    /// <summary>Drops the site's entry (a change made elsewhere), or every entry when <paramref name="id"/> is null.</summary>
+    public void Forget(string? id)
+    {
+        if (id is null)
+        {
+            lock (gate)
+            {
+                generation++;
+                entries.Clear();
+            }
+
+            return;
+        }
+
+        Invalidate(id);
     }
 
     private void Invalidate(string id)

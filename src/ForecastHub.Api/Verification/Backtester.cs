@@ -20,8 +20,9 @@ public static class Backtester
     private static readonly double[] Levels = [0.80, 0.95];
 
     /// <param name="thresholds">Thresholds whose next-24-hour risk is verified (the site's and any asked for); none skips the sample paths.</param>
+    /// <param name="progress">Called after each day with the days done and the days in all.</param>
     public static BacktestResponse? Run(SiteRecord site, IReadOnlyList<GridReading> readings, DateTimeOffset dataEnd, int days, int refitEveryDays,
-        IReadOnlyList<RiskThreshold>? thresholds = null)
+        IReadOnlyList<RiskThreshold>? thresholds = null, Action<long, long>? progress = null)
     {
         ArgumentNullException.ThrowIfNull(site);
         ArgumentNullException.ThrowIfNull(readings);
@@ -52,6 +53,7 @@ public static class Backtester
         var origins = 0;
         for (var day = firstDay; day <= lastDay; day = day.AddDays(1))
         {
+            progress?.Invoke(day.DayNumber - firstDay.DayNumber, days);
             var origin = GridBuilder.LocalDayStart(day, zone);
             var history = readings.Where(r => r.Time < origin).ToList();
             if (history.Count == 0)

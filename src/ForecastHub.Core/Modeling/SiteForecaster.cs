@@ -20,6 +20,10 @@ public static class SiteForecaster
 {
     public const int DefaultPaths = 2000;
 
+    /// <summary>Missing steps walked at most: beyond them the AR state is forgotten (its psi-weights have died
+    /// away), so the walk starts this many steps before the end from the anomaly mean, at the full spread.</summary>
+    public const int MaxWalkedSteps = 1000;
+
     public static SiteForecast Forecast(
         SiteModel model,
         TimeGrid recent,
@@ -54,8 +58,10 @@ public static class SiteForecaster
 
         var zone = GridBuilder.FindZone(model.TimeZone);
         var missing = recent.Count - 1 - last;
-        var horizons = missing + steps;
-        NextDayPlan? plan = model.Cadence == GridCadence.Hourly && paths > 0 ? PlanNextDay(recent, last, zone) : null;
+        var walked = Math.Min(missing, MaxWalkedSteps);
+        var start = last + missing - walked; // the step the walk starts from: the last value, or a forgotten state
+        var horizons = walked + steps;
+        NextDayPlan? plan = model.Cadence == GridCadence.Hourly && paths > 0 ? PlanNextDay(recent, start, zone) : null;
         var total = Math.Max(horizons, plan?.Last ?? 0);
         if (risk is not null)
         {
@@ -63,23 +69,26 @@ public static class SiteForecaster
         }
 
         var ar = model.Ar;
-        var historyTimes = recent.Times.AsSpan(Math.Max(0, last - ar.Order + 1), Math.Min(ar.Order, last + 1)).ToArray();
-        var historyClimatology = model.Climatology.Mean(historyTimes);
-        var anomalies = new double[last + 1];
+        var anomalies = new double[start + 1];
         Array.Fill(anomalies, double.NaN);
-        for (var i = 0; i < historyTimes.Length; i++)
+        if (start == last)
         {
-            var t = last - historyTimes.Length + 1 + i;
-            if (double.IsInfinity(recent.Values[t]))
+            var historyTimes = recent.Times.AsSpan(Math.Max(0, last - ar.Order + 1), Math.Min(ar.Order, last + 1)).ToArray();
+            var historyClimatology = model.Climatology.Mean(historyTimes);
+            for (var i = 0; i < historyTimes.Length; i++)
             {
-                throw new SeriesException(SeriesProblem.NonFinite, $"Grid value at {recent.Times[t]:O} is not finite.");
-            }
+                var t = last - historyTimes.Length + 1 + i;
+                if (double.IsInfinity(recent.Values[t]))
+                {
+                    throw new SeriesException(SeriesProblem.NonFinite, $"Grid value at {recent.Times[t]:O} is not finite.");
+                }
 
-            anomalies[t] = recent.Values[t] - historyClimatology[i];
+                anomalies[t] = recent.Values[t] - historyClimatology[i];
+            }
         }
 
-        var history = AnomalyPath.History(ar, anomalies, last);
-        var times = GridClock.Following(model.Cadence, zone, recent.Times[last], total);
+        var history = AnomalyPath.History(ar, anomalies, start);
+        var times = GridClock.Following(model.Cadence, zone, recent.Times[start], total);
         var climatology = model.Climatology.Mean(times);
         var g = model.VarianceSeason.Factors(times);
         var psi = ArForecast.PsiWeights(ar.Coefficients, total);
@@ -103,10 +112,15 @@ public static class SiteForecaster
             notes.Add($"The newest {missing} grid step(s) are missing; the forecast starts from {recent.Times[last]:O} and its intervals are wider.");
         }
 
+        if (start > last)
+        {
+            notes.Add($"The data end more than {MaxWalkedSteps} steps ago, beyond the model's memory: the forecast is the climatology with the anomaly's full spread.");
+        }
+
         var result = new ForecastStep[steps];
         for (var s = 0; s < steps; s++)
         {
-            var k = missing + s;
+            var k = walked + s;
             var intervals = levels.Select(level => table is null
                 ? GaussianInterval.Of(mean[k], sd[k], level)
                 : Calibration.Interval(table, k + 1, mean[k], sd[k], level)).ToArray();

@@ -204,7 +204,7 @@ public sealed class OfflineVerbsTests : IDisposable
         var (code, _, errors) = await Run("fit", csv);
 
         Assert.Equal(2, code);
-        Assert.Contains("no model can be fitted", errors, StringComparison.Ordinal);
+        Assert.Contains("the service fits a site from 168 on", errors, StringComparison.Ordinal);
     }
 
     [Fact]
@@ -213,6 +213,7 @@ public sealed class OfflineVerbsTests : IDisposable
         var (code, output, _) = await Run("fit", "--help");
 
         Assert.Equal(0, code);
-        Assert.Contains("time,value", output, StringComparison.Ordinal);
+        Assert.Contains("--time-column", output, StringComparison.Ordinal);
+        Assert.Contains("--local-times", output, StringComparison.Ordinal);
     }
 }

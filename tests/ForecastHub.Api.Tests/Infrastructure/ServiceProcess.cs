@@ -7,7 +7,7 @@ using ForecastHub.TestData;
 namespace ForecastHub.Api.Tests.Infrastructure;
 
 /// <summary>The built ForecastHub.Api running as a child process on 127.0.0.1 with a free port, on
-/// a given SQLite file: real Kestrel, real process death.</summary>
+/// a given SQLite file or PostgreSQL database: real Kestrel, real process death.</summary>
 public sealed class ServiceProcess : IAsyncDisposable
 {
     private readonly Process _process;
@@ -24,25 +24,32 @@ public sealed class ServiceProcess : IAsyncDisposable
 
     public bool HasExited => _process.HasExited;
 
-    public static async Task<ServiceProcess> StartAsync(string databasePath, TimeSpan? readyWithin = null)
+    public static Task<ServiceProcess> StartAsync(string databasePath, TimeSpan? readyWithin = null) =>
+        StartAsync(Path.GetDirectoryName(databasePath)!, [$"--Storage:Path={databasePath}"], readyWithin);
+
+    /// <summary>A node on the PostgreSQL database of <paramref name="connectionString"/>, with more settings as <c>--Key=value</c> arguments.</summary>
+    public static Task<ServiceProcess> StartOnPostgresAsync(string connectionString, params string[] settings) =>
+        StartAsync(Path.GetTempPath(), ["--Storage:Provider=postgres", $"--Storage:ConnectionString={connectionString}", .. settings], null);
+
+    private static async Task<ServiceProcess> StartAsync(string workingDirectory, IReadOnlyList<string> settings, TimeSpan? readyWithin)
     {
         var port = ChildProcesses.FreeLoopbackPort();
         var baseAddress = new Uri($"http://127.0.0.1:{port}/");
         var dll = Path.Combine(AppContext.BaseDirectory, "ForecastHub.Api.dll");
         var start = new ProcessStartInfo("dotnet")
         {
-            WorkingDirectory = Path.GetDirectoryName(databasePath)!,
+            WorkingDirectory = workingDirectory,
             RedirectStandardOutput = true,
             RedirectStandardError = true,
             UseShellExecute = false,
         };
         foreach (var arg in new[]
                  {
-                     dll, "--urls", baseAddress.ToString().TrimEnd('/'), $"--Storage:Path={databasePath}",
+                     dll, "--urls", baseAddress.ToString().TrimEnd('/'),
                      $"--Auth:AdminKey={ApiFactory.AdminKey}", "--Serilog:MinimumLevel:Default=Warning",
                      // These tests push requests as fast as they can; the per-key limit has its own tests.
                      "--RateLimiting:Enabled=false",
-                 })
+                 }.Concat(settings))
         {
             start.ArgumentList.Add(arg);
         }
