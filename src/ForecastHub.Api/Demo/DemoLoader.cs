@@ -56,5 +56,16 @@ public sealed class DemoLoader(ISiteStore sites, IReadingStore readings, TimePro
         site.Kind == DemoSiteKind.ColdStore ? new QualityLimits(MinC: -5, MaxC: 10) : QualityLimits.Default,
         SiteRules.DefaultModel("hourly"),
         now,
-        now);
+        now)
+    {
+        Risk = SiteRiskSettings.Default with { Thresholds = Thresholds(site.Kind) },
+    };
+
+    // The levels each kind of site watches: frost for orchard and tunnel air, warming for the cold store.
+    private static SiteThreshold[] Thresholds(DemoSiteKind kind) => kind switch
+    {
+        DemoSiteKind.ColdStore => [new SiteThreshold("too-warm", "above", 5, 0.2)],
+        DemoSiteKind.Tunnel => [new SiteThreshold("frost", "below", 0, 0.3)],
+        _ => [new SiteThreshold("frost", "below", 0, 0.3), new SiteThreshold("hard-frost", "below", -2, 0.2)],
+    };
 }

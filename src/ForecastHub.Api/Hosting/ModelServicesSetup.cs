@@ -57,6 +57,7 @@ public static class ModelServicesSetup
         services.AddSingleton<ModelHealthService>();
         services.AddSingleton<FleetHealth>();
         services.AddSingleton<ForecastService>();
+        services.AddSingleton<SiteRiskService>();
         services.AddSingleton<VerificationService>();
         services.AddSingleton<ISweepStep, DayAheadArchiveStep>();
         services.AddSingleton<RefitWorker>();

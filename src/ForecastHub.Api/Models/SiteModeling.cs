@@ -1,3 +1,4 @@
+using System.Globalization;
 using System.Text.Json;
 using System.Text.Json.Serialization;
 using ForecastHub.Api.Forecasts;
@@ -5,6 +6,7 @@ using ForecastHub.Core.Autoregression;
 using ForecastHub.Core.Climatology;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Modeling;
+using ForecastHub.Core.Risk;
 using ForecastHub.Core.Selection;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Sites;
@@ -15,7 +17,8 @@ using CoreSettings = ForecastHub.Core.Modeling.ModelSettings;
 namespace ForecastHub.Api.Models;
 
 /// <summary>A forecast from the core, mapped to the HTTP contract (levels in percent).</summary>
-public sealed record ForecastPath(DateTimeOffset LastData, int MissingSteps, string IntervalMethod, IReadOnlyList<ApiStep> Steps, ApiNextDay? NextDay);
+public sealed record ForecastPath(DateTimeOffset LastData, int MissingSteps, string IntervalMethod, IReadOnlyList<ApiStep> Steps, ApiNextDay? NextDay,
+    IReadOnlyList<RiskResponse> Risk);
 
 /// <summary>
 /// The one place the service meets the modeling pipeline of ForecastHub.Core: settings from the
@@ -40,8 +43,9 @@ public sealed class SiteModeling
         JsonSerializer.Deserialize<SiteModel>(json, Json) ?? throw new InvalidOperationException("A stored model is empty.");
 
     /// <summary>Forecasts <paramref name="steps"/> grid steps after the last step of <paramref name="recent"/>; levels in percent, thresholds in degrees C.</summary>
+    /// <param name="risk">The site's thresholds and night; query thresholds are added after the site's, and windows start from <paramref name="now"/>.</param>
     public ForecastPath Forecast(SiteModel model, TimeGrid recent, int steps, IReadOnlyList<double> levels,
-        IReadOnlyList<double> below, IReadOnlyList<double> above, int seed)
+        IReadOnlyList<double> below, IReadOnlyList<double> above, int seed, SiteRiskSettings? risk = null, DateTimeOffset? now = null)
     {
         ArgumentNullException.ThrowIfNull(levels);
         ArgumentNullException.ThrowIfNull(below);
@@ -49,13 +53,53 @@ public sealed class SiteModeling
         var fractions = levels.Select(l => l / 100).ToArray();
         var thresholds = below.Select(v => new Threshold(v, ThresholdDirection.Below))
             .Concat(above.Select(v => new Threshold(v, ThresholdDirection.Above))).ToArray();
-        var forecast = SiteForecaster.Forecast(model, recent, steps, fractions, thresholds, seed);
-        var path = forecast.Steps.Select(s => new ApiStep(s.Time, s.Mean, s.Sd, Intervals(s.Intervals))).ToArray();
+        var settings = risk ?? SiteRiskSettings.Default;
+        var request = new RiskRequest(RiskThresholds(settings, below, above), Night(settings), now ?? recent.Times[^1]);
+        var forecast = SiteForecaster.Forecast(model, recent, steps, fractions, thresholds, seed, risk: request);
+        var path = forecast.Steps.Select(s => new ApiStep(s.Time, s.Mean, s.Sd, Intervals(s.Intervals),
+            [.. s.Probabilities.Select(p => new StepProbabilityResponse(p.Id, p.Threshold, Wire(p.Direction), p.Probability))])).ToArray();
+        var alertLevels = settings.Thresholds.ToDictionary(t => t.Id, t => t.AlertProbability, StringComparer.Ordinal);
+        var risks = forecast.Risk.Select(r => new RiskResponse(
+            r.Threshold.Id,
+            r.Threshold.ValueC,
+            Wire(r.Threshold.Direction),
+            r.Threshold.Id is { } id ? alertLevels.GetValueOrDefault(id) : null,
+            new RiskWindowResponse(r.Window.Name, r.Window.From, r.Window.To),
+            r.Probability,
+            r.FirstCrossing is { } c ? new CrossingResponse(c.Median, c.P10, c.P90) : null,
+            r.ExpectedHoursBeyond,
+            Summary(r.Extreme))).ToArray();
         var nextDay = forecast.NextDay is { } day
             ? new ApiNextDay(day.Date, Summary(day.Min), Summary(day.Max), Summary(day.Mean),
                 [.. day.Probabilities.Select(p => new Forecasts.ThresholdProbability(p.Threshold, p.Direction == ThresholdDirection.Below ? "below" : "above", p.Probability))])
             : null;
-        return new ForecastPath(forecast.LastData, forecast.MissingSteps, Wire(forecast.IntervalMethod), path, nextDay);
+        return new ForecastPath(forecast.LastData, forecast.MissingSteps, Wire(forecast.IntervalMethod), path, nextDay, risks);
+    }
+
+    /// <summary>The site's thresholds, then the query's that the site does not already have (same direction and value).</summary>
+    public static IReadOnlyList<RiskThreshold> RiskThresholds(SiteRiskSettings settings, IReadOnlyList<double> below, IReadOnlyList<double> above)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        var list = settings.Thresholds
+            .Select(t => new RiskThreshold(t.Id, t.Direction == "above" ? ThresholdDirection.Above : ThresholdDirection.Below, t.ValueC))
+            .ToList();
+        foreach (var t in below.Select(v => new RiskThreshold(null, ThresholdDirection.Below, v))
+                     .Concat(above.Select(v => new RiskThreshold(null, ThresholdDirection.Above, v))))
+        {
+            if (!list.Any(s => s.Direction == t.Direction && s.ValueC == t.ValueC))
+            {
+                list.Add(t);
+            }
+        }
+
+        return list;
+    }
+
+    public static NightHours Night(SiteRiskSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        return new NightHours(TimeOnly.ParseExact(settings.NightStart, "HH:mm", CultureInfo.InvariantCulture),
+            TimeOnly.ParseExact(settings.NightEnd, "HH:mm", CultureInfo.InvariantCulture));
     }
 
     /// <summary>The climatology (seasonal mean) of the model at each time.</summary>
@@ -209,6 +253,8 @@ public sealed class SiteModeling
         OrderPolicy.Pacf => "pacf",
         _ => "pacf-aic",
     };
+
+    private static string Wire(ThresholdDirection value) => value == ThresholdDirection.Below ? "below" : "above";
 
     private static string Wire(IntervalMethod value) => value == IntervalMethod.Gaussian ? "gaussian" : "calibrated";
 

@@ -16,7 +16,16 @@ public sealed record SiteBody(
     double? Longitude,
     double? ElevationM,
     QualityBody? Quality,
-    ModelBody? Model);
+    ModelBody? Model,
+    IReadOnlyList<ThresholdBody>? Thresholds = null,
+    NightBody? Night = null);
+
+/// <summary>A site threshold: <c>id</c> a slug unique in the site, <c>direction</c> "below" or "above",
+/// <c>valueC</c> in degrees C, <c>alertProbability</c> in (0, 1] (absent: shown, never alerts).</summary>
+public sealed record ThresholdBody(string? Id, string? Direction, double? ValueC, double? AlertProbability);
+
+/// <summary>The site's night as local clock times "HH:mm"; an end at or before the start runs past midnight.</summary>
+public sealed record NightBody(string? StartLocal, string? EndLocal);
 
 public sealed record QualityBody(double? MinC, double? MaxC, double? MaxStepCPerHour, double? FlatlineHours);
 
@@ -36,7 +45,9 @@ public record SiteResponse(
     ModelResponse Model,
     DateTimeOffset CreatedAt,
     DateTimeOffset UpdatedAt,
-    long SettingsVersion)
+    long SettingsVersion,
+    IReadOnlyList<ThresholdResponse> Thresholds,
+    NightResponse Night)
 {
     public static SiteResponse From(SiteRecord site)
     {
@@ -46,9 +57,15 @@ public record SiteResponse(
             new QualityResponse(site.Quality.MinC, site.Quality.MaxC, site.Quality.MaxStepCPerHour, site.Quality.FlatlineHours),
             new ModelResponse(site.Model.Seasonality, site.Model.Method, site.Model.OrderPolicy, site.Model.MaxOrder,
                 site.Model.FitWindowDays, site.Model.IntervalMethod),
-            site.CreatedAt, site.UpdatedAt, site.SettingsVersion);
+            site.CreatedAt, site.UpdatedAt, site.SettingsVersion,
+            [.. site.Risk.Thresholds.Select(t => new ThresholdResponse(t.Id, t.Direction, t.ValueC, t.AlertProbability))],
+            new NightResponse(site.Risk.NightStart, site.Risk.NightEnd));
     }
 }
+
+public sealed record ThresholdResponse(string Id, string Direction, double ValueC, double? AlertProbability);
+
+public sealed record NightResponse(string StartLocal, string EndLocal);
 
 public sealed record QualityResponse(double MinC, double MaxC, double MaxStepCPerHour, double FlatlineHours);
 

@@ -22,6 +22,8 @@ public static partial class SiteRules
     public const int MinFitWindowDays = 7;
     public const int MaxFitWindowDays = 7305;
     public const int MaxNameLength = 200;
+    public const int MaxThresholds = 8;
+    public static readonly string[] Directions = ["below", "above"];
 
     /// <summary>DESIGN section 5: readings outside this range after conversion are impossible.</summary>
     public const double PhysicalMinC = -95;
@@ -29,6 +31,12 @@ public static partial class SiteRules
 
     [GeneratedRegex("^[a-z0-9][a-z0-9-]{0,62}$")]
     public static partial Regex SiteId();
+
+    [GeneratedRegex("^[a-z0-9][a-z0-9-]{0,31}$")]
+    private static partial Regex ThresholdId();
+
+    [GeneratedRegex("^([01][0-9]|2[0-3]):[0-5][0-9]$")]
+    private static partial Regex ClockTime();
 
     [GeneratedRegex(@"^[A-Za-z0-9_+\-]+(/[A-Za-z0-9_+\-]+){0,3}$")]
     private static partial Regex TimeZoneShape();
@@ -124,12 +132,17 @@ public static partial class SiteRules
         var quality = MergeQuality(body.Quality, current?.Quality, errors);
         var model = MergeModel(body.Model, current?.Model ?? DefaultModel(cadence ?? "hourly"), errors);
 
+        var risk = MergeRisk(body, raw, current?.Risk ?? SiteRiskSettings.Default, errors);
+
         if (errors.Count > 0)
         {
             return null;
         }
         return new SiteRecord(id!, name!.Trim(), timeZone!, cadence!, dailyStatistic, latitude, longitude, elevation,
-            quality, model, current?.CreatedAt ?? now, now, current?.SettingsVersion ?? 1);
+            quality, model, current?.CreatedAt ?? now, now, current?.SettingsVersion ?? 1)
+        {
+            Risk = risk,
+        };
     }
 
     private static QualityLimits MergeQuality(QualityBody? body, QualityLimits? current, Dictionary<string, string[]> errors)
@@ -165,6 +178,83 @@ public static partial class SiteRules
         CheckRange(model.MaxOrder, 1, MaxMaxOrder, "model.maxOrder", errors);
         CheckRange(model.FitWindowDays, MinFitWindowDays, MaxFitWindowDays, "model.fitWindowDays", errors);
         return model;
+    }
+
+    /// <summary>Thresholds sent replace the whole list (null or [] clears it); night fields sent replace their value.</summary>
+    private static SiteRiskSettings MergeRisk(SiteBody body, JsonElement raw, SiteRiskSettings current, Dictionary<string, string[]> errors)
+    {
+        var thresholds = current.Thresholds;
+        if (raw.ValueKind == JsonValueKind.Object && raw.TryGetProperty("thresholds", out _))
+        {
+            var sent = body.Thresholds ?? [];
+            if (sent.Count > MaxThresholds)
+            {
+                errors["thresholds"] = [$"A site has at most {MaxThresholds} thresholds; {sent.Count} were sent."];
+            }
+
+            var list = new List<SiteThreshold>();
+            for (var i = 0; i < sent.Count && i < MaxThresholds; i++)
+            {
+                var t = sent[i];
+                var at = $"thresholds[{i}]";
+                if (t is null)
+                {
+                    errors[at] = [$"{at} must be an object {{id, direction, valueC, alertProbability?}}."];
+                    continue;
+                }
+
+                if (t.Id is null || !ThresholdId().IsMatch(t.Id))
+                {
+                    errors[$"{at}.id"] = [$"{at}.id is required: a slug of lower-case letters, digits and '-', at most 32 characters, such as 'frost'."];
+                }
+                else if (list.Any(other => other.Id == t.Id))
+                {
+                    errors[$"{at}.id"] = [$"{at}.id '{t.Id}' is used twice; threshold ids must be unique within the site."];
+                }
+
+                if (t.Direction is null || !Directions.Contains(t.Direction))
+                {
+                    errors[$"{at}.direction"] = [$"{at}.direction must be 'below' or 'above'."];
+                }
+
+                if (t.ValueC is not { } v || !double.IsFinite(v) || v < PhysicalMinC || v > PhysicalMaxC)
+                {
+                    errors[$"{at}.valueC"] = [$"{at}.valueC is required: a temperature in degrees C between {PhysicalMinC} and {PhysicalMaxC}."];
+                }
+
+                if (t.AlertProbability is { } a && !(a > 0 && a <= 1))
+                {
+                    errors[$"{at}.alertProbability"] = [$"{at}.alertProbability must be above 0 and at most 1 (leave it out for a threshold that never alerts)."];
+                }
+
+                list.Add(new SiteThreshold(t.Id ?? "", t.Direction ?? "", t.ValueC ?? double.NaN, t.AlertProbability));
+            }
+
+            thresholds = list;
+        }
+
+        var start = body.Night?.StartLocal ?? current.NightStart;
+        var end = body.Night?.EndLocal ?? current.NightEnd;
+        if (raw.ValueKind == JsonValueKind.Object && raw.TryGetProperty("night", out var night) && night.ValueKind == JsonValueKind.Null)
+        {
+            (start, end) = (SiteRiskSettings.Default.NightStart, SiteRiskSettings.Default.NightEnd);
+        }
+
+        if (!ClockTime().IsMatch(start))
+        {
+            errors["night.startLocal"] = ["night.startLocal must be a local clock time \"HH:mm\" from 00:00 to 23:59, such as \"18:00\"."];
+        }
+
+        if (!ClockTime().IsMatch(end))
+        {
+            errors["night.endLocal"] = ["night.endLocal must be a local clock time \"HH:mm\" from 00:00 to 23:59, such as \"09:00\"."];
+        }
+        else if (start == end)
+        {
+            errors["night.endLocal"] = ["night.endLocal must differ from night.startLocal (an end at or before the start runs past midnight)."];
+        }
+
+        return new SiteRiskSettings(thresholds, start, end);
     }
 
     private static void CheckChoice(string value, string[] allowed, string field, Dictionary<string, string[]> errors)

@@ -18,7 +18,11 @@ public sealed record SiteRecord(
     ModelSettings Model,
     DateTimeOffset CreatedAt,
     DateTimeOffset UpdatedAt,
-    long SettingsVersion = 1);
+    long SettingsVersion = 1)
+{
+    /// <summary>Thresholds and night hours; a change re-evaluates risk but needs no refit.</summary>
+    public SiteRiskSettings Risk { get; init; } = SiteRiskSettings.Default;
+}
 
 /// <summary>Model settings of DESIGN section 3, as validated strings and numbers.</summary>
 public sealed record ModelSettings(
@@ -28,3 +32,22 @@ public sealed record ModelSettings(
     int MaxOrder,
     int FitWindowDays,
     string IntervalMethod);
+
+/// <summary>One threshold of a site (DESIGN section 10): <c>direction</c> is "below" or "above";
+/// without <c>alertProbability</c> it is shown but never alerts.</summary>
+public sealed record SiteThreshold(string Id, string Direction, double ValueC, double? AlertProbability);
+
+/// <summary>A site's thresholds (at most 8, ids unique) and its night as local "HH:mm" clock times.
+/// Equal when the thresholds are equal one by one, so an unchanged PATCH stays a no-op.</summary>
+public sealed record SiteRiskSettings(IReadOnlyList<SiteThreshold> Thresholds, string NightStart, string NightEnd)
+{
+    public static SiteRiskSettings Default { get; } = new([], "18:00", "09:00");
+
+    /// <summary>A canonical text of the settings, for cache keys.</summary>
+    public string Key => string.Join(';', Thresholds.Select(t => FormattableString.Invariant($"{t.Id},{t.Direction},{t.ValueC:R},{t.AlertProbability:R}"))) + "|" + NightStart + "-" + NightEnd;
+
+    public bool Equals(SiteRiskSettings? other) =>
+        other is not null && NightStart == other.NightStart && NightEnd == other.NightEnd && Thresholds.SequenceEqual(other.Thresholds);
+
+    public override int GetHashCode() => HashCode.Combine(NightStart, NightEnd, Thresholds.Count);
+}

@@ -1,4 +1,5 @@
 using ForecastHub.Core.Quality;
+using System.Text.Json;
 using Microsoft.Data.Sqlite;
 
 namespace ForecastHub.Storage.Sites;
@@ -9,7 +10,7 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         id, name, time_zone, cadence, daily_statistic, latitude, longitude, elevation_m,
         min_c, max_c, max_step_c_per_hour, flatline_hours,
         seasonality, method, order_policy, max_order, fit_window_days, interval_method,
-        created_at_ms, updated_at_ms, settings_version
+        created_at_ms, updated_at_ms, settings_version, thresholds_json, night_start, night_end
         """;
 
     public Task<bool> CreateAsync(SiteRecord site, CancellationToken cancellationToken = default)
@@ -20,7 +21,7 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
             using var insert = connection.Command(transaction, $"""
                 INSERT INTO sites ({Columns})
                 VALUES ($id, $name, $tz, $cadence, $daily, $lat, $lon, $elev, $minC, $maxC, $step, $flat,
-                        $seasonality, $method, $policy, $maxOrder, $window, $interval, $created, $updated, $version)
+                        $seasonality, $method, $policy, $maxOrder, $window, $interval, $created, $updated, $version, $thresholds, $nightStart, $nightEnd)
                 ON CONFLICT (id) DO NOTHING;
                 """);
             Bind(insert, site);
@@ -62,7 +63,8 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
             {
                 return current;
             }
-            var settingsChanged = proposed with { Name = current.Name } != current;
+            // Names and risk settings need no refit; a risk change re-evaluates through the forecast cache key.
+            var settingsChanged = proposed with { Name = current.Name, Risk = current.Risk } != current;
             var updated = proposed with
             {
                 Id = current.Id,
@@ -76,7 +78,8 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
                     min_c = $minC, max_c = $maxC, max_step_c_per_hour = $step, flatline_hours = $flat,
                     seasonality = $seasonality, method = $method, order_policy = $policy, max_order = $maxOrder,
                     fit_window_days = $window, interval_method = $interval,
-                    updated_at_ms = $updated, settings_version = $version
+                    updated_at_ms = $updated, settings_version = $version,
+                    thresholds_json = $thresholds, night_start = $nightStart, night_end = $nightEnd
                 WHERE id = $id;
                 """);
             Bind(write, updated);
@@ -120,7 +123,12 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         .With("$interval", site.Model.IntervalMethod)
         .With("$created", site.CreatedAt.ToUnixTimeMilliseconds())
         .With("$updated", site.UpdatedAt.ToUnixTimeMilliseconds())
-        .With("$version", site.SettingsVersion);
+        .With("$version", site.SettingsVersion)
+        .With("$thresholds", JsonSerializer.Serialize(site.Risk.Thresholds, Json))
+        .With("$nightStart", site.Risk.NightStart)
+        .With("$nightEnd", site.Risk.NightEnd);
+
+    private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web);
 
     private static SiteRecord ReadSite(SqliteDataReader r) => new(
         Id: r.GetString(0),
@@ -135,5 +143,8 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         Model: new ModelSettings(r.GetString(12), r.GetString(13), r.GetString(14), r.GetInt32(15), r.GetInt32(16), r.GetString(17)),
         CreatedAt: SqliteExtensions.FromUnixMs(r.GetInt64(18)),
         UpdatedAt: SqliteExtensions.FromUnixMs(r.GetInt64(19)),
-        SettingsVersion: r.GetInt64(20));
+        SettingsVersion: r.GetInt64(20))
+    {
+        Risk = new SiteRiskSettings(JsonSerializer.Deserialize<SiteThreshold[]>(r.GetString(21), Json) ?? [], r.GetString(22), r.GetString(23)),
+    };
 }

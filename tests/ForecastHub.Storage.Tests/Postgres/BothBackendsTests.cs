@@ -3,6 +3,7 @@ using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Keys;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Readings;
+using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Verification;
 
 namespace ForecastHub.Storage.Tests.Postgres;
@@ -56,6 +57,23 @@ public sealed class BothBackendsTests
         var stored = await b.Sites.GetAsync("site-a");
         Assert.Equal(("Renamed", 10, 2L), (stored!.Name, stored.Model.MaxOrder, stored.SettingsVersion));
         Assert.Null(await b.Sites.UpdateAsync("missing", s => s));
+    }
+
+    [Theory]
+    [MemberData(nameof(Backend.Names), MemberType = typeof(Backend))]
+    public async Task ThresholdsAndNightReadBackEqualAndTheirChangeNeedsNoRefit(string backend)
+    {
+        await using var b = await WithSiteAsync(backend);
+        var risk = new SiteRiskSettings([new SiteThreshold("frost", "below", -1.5, 0.3), new SiteThreshold("heat", "above", 31, null)], "20:30", "07:00");
+
+        var updated = await b.Sites.UpdateAsync("site-a", s => s with { Risk = risk });
+        var again = await b.Sites.UpdateAsync("site-a", s => s with { Risk = new SiteRiskSettings([.. risk.Thresholds], "20:30", "07:00") });
+
+        Assert.Equal(1, updated!.SettingsVersion);
+        Assert.Equal(updated.UpdatedAt.ToUnixTimeMilliseconds(), again!.UpdatedAt.ToUnixTimeMilliseconds());
+        var stored = await b.Sites.GetAsync("site-a");
+        Assert.Equal(risk, stored!.Risk);
+        Assert.Equal(SiteRiskSettings.Default, SiteStoreTests.Site().Risk);
     }
 
     [Theory]
