@@ -1,4 +1,4 @@
--- Schema version 5: webhooks, their delivery outbox, and the alert state that keeps a raise from
+-- Schema version 6: webhooks, their delivery outbox, and the alert state that keeps a raise from
 -- being sent twice.
 
 -- A webhook subscription. The signing secret is kept as issued (the signer needs the key itself,
