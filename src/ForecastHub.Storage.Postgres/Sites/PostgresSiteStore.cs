@@ -67,15 +67,7 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
             {
                 return current;
             }
-            // Names and risk settings need no refit; a risk change re-evaluates through the forecast cache key.
-            var settingsChanged = proposed with { Name = current.Name, Risk = current.Risk } != current;
-            var updated = proposed with
-            {
-                Id = current.Id,
-                CreatedAt = current.CreatedAt,
-                UpdatedAt = clock.GetUtcNow(),
-                SettingsVersion = current.SettingsVersion + (settingsChanged ? 1 : 0),
-            };
+            var updated = current.UpdatedTo(proposed, clock.GetUtcNow());
             await using var write = Bind(connection.Command(transaction, """
                 UPDATE sites SET name = $2, time_zone = $3, cadence = $4, daily_statistic = $5,
                     latitude = $6, longitude = $7, elevation_m = $8,

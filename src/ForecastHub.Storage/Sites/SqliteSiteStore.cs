@@ -63,15 +63,7 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
             {
                 return current;
             }
-            // Names and risk settings need no refit; a risk change re-evaluates through the forecast cache key.
-            var settingsChanged = proposed with { Name = current.Name, Risk = current.Risk } != current;
-            var updated = proposed with
-            {
-                Id = current.Id,
-                CreatedAt = current.CreatedAt,
-                UpdatedAt = clock.GetUtcNow(),
-                SettingsVersion = current.SettingsVersion + (settingsChanged ? 1 : 0),
-            };
+            var updated = current.UpdatedTo(proposed, clock.GetUtcNow());
             using var write = connection.Command(transaction, """
                 UPDATE sites SET name = $name, time_zone = $tz, cadence = $cadence, daily_statistic = $daily,
                     latitude = $lat, longitude = $lon, elevation_m = $elev,
