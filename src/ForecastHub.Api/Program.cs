@@ -1,3 +1,5 @@
+using ForecastHub.Api.Alerts;
+using ForecastHub.Api.Http;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Cluster;
 using ForecastHub.Api.CommandLine;
@@ -9,16 +11,24 @@ using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Keys;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Api.Models;
+using ForecastHub.Api.Mqtt;
 using ForecastHub.Api.Observations;
 using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
 using ForecastHub.Api.Verification;
+using ForecastHub.Api.Webhooks;
+using ForecastHub.Storage;
 
 // Verbs that run without a web host: the container's health probe and the offline fit/backtest.
 if (HealthProbe.IsRequested(args))
 {
     return await HealthProbe.RunAsync(args, Console.Out);
+}
+
+if (CheckStorageVerb.IsRequested(args))
+{
+    return CheckStorageVerb.Run(args, Console.Out, Console.Error);
 }
 
 if (OfflineVerbs.IsRequested(args))
@@ -44,6 +54,7 @@ builder.AddForecastHubLogging();
 builder.Services.AddForecastHubProblems();
 builder.Services.AddForecastHubRequestLimits();
 builder.Services.AddForecastHubRateLimits();
+builder.Services.AddForecastHubHttpConventions();
 builder.Services.AddForecastHubOpenApi();
 
 // Storage first (the backend Storage:Provider names): its migrations run before anything else reads it at start.
@@ -52,13 +63,17 @@ builder.Services.AddForecastHubAuth();
 builder.AddDemoMode(demoFlag);
 
 // Features. AddSites before AddModels: the refit notification wraps the site cache.
-builder.Services.AddServiceMetrics();
+// AddWebhooks and AddAlerts after AddModels: alerts wrap the reading and model stores.
+builder.Services.AddForecastHubMetrics();
 builder.Services.AddCluster();
 builder.Services.AddSites();
 builder.Services.AddModels();
 builder.Services.AddForecasts();
 builder.Services.AddVerification();
 builder.Services.AddModelHealth();
+builder.Services.AddForecastHubMqtt();
+builder.Services.AddWebhooks();
+builder.Services.AddAlerts();
 
 var app = builder.Build();
 
@@ -75,6 +90,20 @@ api.MapForecasts();
 api.MapVerification();
 api.MapModelHealth();
 app.MapMetrics();
+api.MapWebhooks();
+api.MapAlerts();
+
+try
+{
+    // Checked and migrated before the host starts, so storage it cannot use stops it with one line
+    // an operator can act on rather than the host's stack trace.
+    await app.Services.GetRequiredService<IStorageSchema>().MigrateAsync();
+}
+catch (StorageStartupException error)
+{
+    await Console.Error.WriteLineAsync(error.Message);
+    return 1;
+}
 
 app.Run();
 return 0;

@@ -13,6 +13,7 @@ public sealed class SqliteDatabase : IDisposable
 {
     private readonly SemaphoreSlim _writeLock = new(1, 1);
     private readonly int _busyTimeoutMs;
+    private readonly string _maxPageCountPragma;
 
     public SqliteDatabase(StorageOptions options)
     {
@@ -28,9 +29,13 @@ public sealed class SqliteDatabase : IDisposable
             ForeignKeys = true,
             DefaultTimeout = Math.Max(1, options.BusyTimeoutMs / 1000),
         }.ToString();
+        _maxPageCountPragma = options.MaxSizeMb is { } mb ? $" PRAGMA max_page_count = {mb * 1024L * 1024L / 4096};" : "";
     }
 
     public string FilePath { get; }
+
+    /// <summary>What SQLite has reported about the file since start: damage, or a full disk.</summary>
+    public StorageHealth Health { get; } = new();
 
     public string ConnectionString { get; }
 
@@ -45,7 +50,7 @@ public sealed class SqliteDatabase : IDisposable
         var connection = new SqliteConnection(ConnectionString);
         connection.Open();
         using var pragma = connection.CreateCommand();
-        pragma.CommandText = $"PRAGMA busy_timeout = {_busyTimeoutMs}; PRAGMA synchronous = FULL;";
+        pragma.CommandText = $"PRAGMA busy_timeout = {_busyTimeoutMs}; PRAGMA synchronous = FULL;{_maxPageCountPragma}";
         pragma.ExecuteNonQuery();
         return connection;
     }
@@ -62,7 +67,13 @@ public sealed class SqliteDatabase : IDisposable
             using var transaction = connection.BeginTransaction(deferred: false);
             var result = work(connection, transaction);
             transaction.Commit();
+            Health.WriteSucceeded();
             return result;
+        }
+        catch (SqliteException error)
+        {
+            Health.Observe(error);
+            throw;
         }
         finally
         {
@@ -75,9 +86,33 @@ public sealed class SqliteDatabase : IDisposable
     public T Read<T>(Func<SqliteConnection, SqliteTransaction, T> read)
     {
         ArgumentNullException.ThrowIfNull(read);
+        try
+        {
+            using var connection = Open();
+            using var transaction = connection.BeginTransaction(deferred: true);
+            return read(connection, transaction);
+        }
+        catch (SqliteException error)
+        {
+            Health.Observe(error);
+            throw;
+        }
+    }
+
+    /// <summary>Runs SQLite's integrity check (<c>quick</c>: <c>PRAGMA quick_check</c>, which skips
+    /// matching indexes to their tables) and answers what it reports, empty when the file is sound.</summary>
+    public IReadOnlyList<string> Check(bool quick, int maxProblems)
+    {
         using var connection = Open();
-        using var transaction = connection.BeginTransaction(deferred: true);
-        return read(connection, transaction);
+        using var check = connection.CreateCommand();
+        check.CommandText = $"PRAGMA {(quick ? "quick_check" : "integrity_check")}({Math.Max(1, maxProblems)});";
+        using var reader = check.ExecuteReader();
+        var rows = new List<string>();
+        while (reader.Read())
+        {
+            rows.Add(reader.GetString(0));
+        }
+        return rows is ["ok"] ? [] : rows;
     }
 
     public void Dispose() => _writeLock.Dispose();

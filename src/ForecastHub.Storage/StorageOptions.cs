@@ -18,6 +18,10 @@ public sealed class StorageOptions
     /// <summary>How long a connection waits for a lock held by another process before failing.</summary>
     public int BusyTimeoutMs { get; set; } = 30_000;
 
+    /// <summary>A cap on the file's size in MiB (4 KiB pages); a write past it is refused as on a full
+    /// disk (507). Null: no cap but the disk's.</summary>
+    public int? MaxSizeMb { get; set; }
+
     /// <summary>The PostgreSQL connection string (Npgsql keywords) when <see cref="Provider"/> is <c>postgres</c>.</summary>
     public string? ConnectionString { get; set; }
 

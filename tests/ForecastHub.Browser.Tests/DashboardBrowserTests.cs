@@ -64,22 +64,69 @@ public sealed class DashboardBrowserTests
     }
 
     [Fact]
-    public async Task ChangingTheThresholdAsksForTheProbabilityBelowTheNewValue()
+    public async Task OnAPhoneTheNightRiskIsOnTheFirstScreenBeforeAnyDiagnostics()
     {
         await using var server = await DemoServer.StartAsync();
         await server.WaitForModelsAsync(["ambrel-low"]);
-        await using var browser = await HeadlessBrowser.OpenAsync();
+        await using var browser = await HeadlessBrowser.OpenAsync(390, 844);
+        var page = browser.Page;
+
+        await page.GotoAsync(new Uri(server.BaseAddress, "#site=ambrel-low").ToString());
+        await page.Locator("#risk-panel .risk-row").First.WaitForAsync();
+
+        var chance = await page.Locator("#risk-panel .risk-chance").First.BoundingBoxAsync();
+        var strip = await page.Locator("#risk-panel svg.risk-strip").First.BoundingBoxAsync();
+        var facts = await page.Locator("#risk-panel .risk-facts").First.BoundingBoxAsync();
+        var diagnostics = await page.Locator("#diagnostics-heading").BoundingBoxAsync();
+        var forecastChart = await page.Locator("#forecast-panel").BoundingBoxAsync();
+        Assert.True(chance!.Y + chance.Height <= 844, $"chance ends at {chance.Y + chance.Height}");
+        Assert.True(strip!.Y + strip.Height <= 844, $"hour strip ends at {strip.Y + strip.Height}");
+        Assert.True(facts!.Y + facts.Height <= 844, $"first crossing and hours end at {facts.Y + facts.Height}");
+        Assert.True(diagnostics!.Y > strip.Y && forecastChart!.Y > strip.Y);
+        Assert.True(strip.X + strip.Width <= 390);
+        Assert.Matches(@"\d+(\.\d)? %", await page.Locator("#risk-panel .risk-chance").First.InnerTextAsync());
+        Assert.True(int.Parse(await page.Locator("#risk-panel svg.risk-strip").First.GetAttributeAsync("data-hours") ?? "0", CultureInfo.InvariantCulture) >= 1);
+        Assert.Equal("frost", await page.Locator("#risk-panel .risk-row").First.GetAttributeAsync("data-threshold"));
+        Assert.Contains("front", await page.Locator("#caution-banner").InnerTextAsync(), StringComparison.OrdinalIgnoreCase);
+        await browser.ScreenshotAsync("dashboard-phone-night-risk.png");
+        Assert.Empty(browser.Problems);
+    }
+
+    [Fact]
+    public async Task ThresholdsEditedOnThePageAreKeptByTheServiceAndSurviveAReload()
+    {
+        await using var server = await DemoServer.StartAsync();
+        await server.WaitForModelsAsync(["ambrel-low"]);
+        await using var browser = await HeadlessBrowser.OpenAsync(390, 844);
         var page = browser.Page;
         await page.GotoAsync(new Uri(server.BaseAddress, "#site=ambrel-low").ToString());
-        await page.Locator("#nextday-panel").WaitForAsync();
+        await page.Locator("#threshold-editor .threshold-row").First.WaitForAsync();
 
-        await page.Locator("#below").FillAsync("25");
-        var request = page.WaitForRequestAsync(r => r.Url.Contains("/forecast?", StringComparison.Ordinal));
-        await page.Locator("#threshold-form button").ClickAsync();
-        var sent = await request;
-        await page.Locator("#nextday-panel .probability .text:has-text('25.0 °C')").WaitForAsync();
+        // Without a key the page says which key is needed and nothing changes.
+        await page.Locator("#threshold-editor .t-value").First.FillAsync("1.5");
+        await page.Locator("#threshold-save").ClickAsync();
+        await page.Locator("#threshold-status:has-text('admin key')").WaitForAsync();
 
-        Assert.Contains("below=25", sent.Url, StringComparison.Ordinal);
-        Assert.Empty(browser.Problems);
+        // The key is kept for the tab; a reload draws the page once with it, so no redraw races the edits below.
+        await page.Locator("#api-key").FillAsync(DemoServer.AdminKey);
+        await page.Locator("#key-form button").ClickAsync();
+        await page.ReloadAsync();
+        await page.Locator("#threshold-editor .threshold-row").First.WaitForAsync();
+        await page.Locator("#threshold-editor .t-value").First.FillAsync("1.5");
+        await page.Locator("#threshold-editor .t-add").ClickAsync();
+        var added = page.Locator("#threshold-editor .threshold-row").Last;
+        await added.Locator(".t-id").FillAsync("mild");
+        await added.Locator(".t-direction").SelectOptionAsync("above");
+        await added.Locator(".t-value").FillAsync("4");
+        await page.Locator("#threshold-save").ClickAsync();
+        await page.Locator("#risk-panel .risk-row[data-threshold='mild']").WaitForAsync();
+
+        await page.ReloadAsync();
+        await page.Locator("#risk-panel .risk-row[data-threshold='mild']").WaitForAsync();
+
+        Assert.Equal("1.5", await page.Locator("#threshold-editor .t-value").First.InputValueAsync());
+        Assert.Equal(3, await page.Locator("#threshold-editor .threshold-row").CountAsync());
+        Assert.Contains("above 4.0 °C", await page.Locator("#risk-panel .risk-row[data-threshold='mild']").InnerTextAsync(), StringComparison.Ordinal);
+        Assert.DoesNotContain(browser.Problems, p => !p.Contains("401", StringComparison.Ordinal));
     }
 }

@@ -11,6 +11,9 @@ namespace ForecastHub.Browser.Tests;
 /// </summary>
 internal sealed class DemoServer : IAsyncDisposable
 {
+    /// <summary>The admin key the demo server is started with, for tests that change settings from the page.</summary>
+    public const string AdminKey = "browser-test-admin-key-5d1e0c7a9b3f";
+
     private static readonly TimeSpan StartTimeout = TimeSpan.FromSeconds(90);
     private readonly Process process;
     private readonly StringBuilder output = new();
@@ -56,6 +59,7 @@ internal sealed class DemoServer : IAsyncDisposable
         start.ArgumentList.Add("--demo");
         start.ArgumentList.Add($"--urls=http://127.0.0.1:{port}");
         start.ArgumentList.Add($"--Storage:Path={Path.Combine(folder, "demo.db")}");
+        start.ArgumentList.Add($"--Auth:AdminKey={AdminKey}");
         var process = Process.Start(start) ?? throw new InvalidOperationException("dotnet did not start");
         var server = new DemoServer(process, new Uri($"http://127.0.0.1:{port}/"), folder);
         process.OutputDataReceived += (_, e) => server.Append(e.Data);

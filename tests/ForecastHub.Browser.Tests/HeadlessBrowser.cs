@@ -55,7 +55,7 @@ internal sealed class HeadlessBrowser : IAsyncDisposable
         }
     }
 
-    public static async Task<HeadlessBrowser> OpenAsync()
+    public static async Task<HeadlessBrowser> OpenAsync(int width = 1440, int height = 1000)
     {
         var playwright = await Playwright.CreateAsync();
         var browser = await playwright.Chromium.LaunchAsync(new BrowserTypeLaunchOptions
@@ -66,7 +66,7 @@ internal sealed class HeadlessBrowser : IAsyncDisposable
         });
         var page = await browser.NewPageAsync(new BrowserNewPageOptions
         {
-            ViewportSize = new ViewportSize { Width = 1440, Height = 1000 },
+            ViewportSize = new ViewportSize { Width = width, Height = height },
             TimezoneId = "UTC",
             Locale = "en-GB",
         });

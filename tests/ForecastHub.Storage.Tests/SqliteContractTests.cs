@@ -17,7 +17,7 @@ internal sealed class SqliteBackend : IStorageBackend
     private SqliteBackend(TestDatabase database, TimeProvider clock)
     {
         this.database = database;
-        Schema = new SqliteStorageSchema(new MigrationRunner(database.Database));
+        Schema = new SqliteStorageSchema(database.Database, new MigrationRunner(database.Database));
         Sites = new SqliteSiteStore(database.Database, clock);
         Readings = new SqliteReadingStore(database.Database);
         Summaries = new SqliteReadingSummaryStore(database.Database);

@@ -1,6 +1,7 @@
 using ForecastHub.Core.Climatology;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Modeling;
+using ForecastHub.Core.Risk;
 
 namespace ForecastHub.Storage.Contract;
 
@@ -21,6 +22,25 @@ public abstract class SiteStoreContract : StorageContract
 
         Assert.Equal(hourly, await Backend.Sites.GetAsync("hourly-site"));
         Assert.Equal(daily, await Backend.Sites.GetAsync("daily-site"));
+    }
+
+    [Fact]
+    public async Task ThresholdsAndNightReadBackEqualAndTheirChangeKeepsTheSettingsVersion()
+    {
+        var site = await CreateSiteAsync();
+        Assert.Equal(SiteRiskSettings.Default, site.Risk);
+        var risk = new SiteRiskSettings(
+            [new SiteThreshold("frost", ThresholdDirection.Below, -1.5, 0.3), new SiteThreshold("heat", ThresholdDirection.Above, 31, null)],
+            new NightHours(new TimeOnly(20, 30), new TimeOnly(7, 0)));
+        Clock.Advance(TimeSpan.FromMinutes(5));
+
+        var updated = await Backend.Sites.UpdateAsync(site.Id, s => s with { Risk = risk });
+        Clock.Advance(TimeSpan.FromMinutes(5));
+        var again = await Backend.Sites.UpdateAsync(site.Id, s => s with { Risk = risk with { Thresholds = [.. risk.Thresholds] } });
+
+        Assert.Equal((1L, Start.AddMinutes(5)), (updated!.SettingsVersion, updated.UpdatedAt));
+        Assert.Equal(updated, again);
+        Assert.Equal(risk, (await Backend.Sites.GetAsync(site.Id))!.Risk);
     }
 
     [Fact]

@@ -55,7 +55,7 @@ service_rate=$(echo "$service_out" | sed -n 's/^service_rate=//p')
 kill "$pid"; pid=""
 
 # The same shape of rows as the service stores: 100 sites x 10,000 hourly times from 2022-01-01.
-awk 'BEGIN { for (i = 0; i < 1000000; i++) printf "%d,%d,%.2f,%.2f,C,0,0\n", int(i / 10000), 1640995200000 + (i % 10000) * 3600000, 10 + (i % 97) * 0.1, 10 + (i % 97) * 0.1 }' >"$work/rows.csv"
+awk 'BEGIN { for (i = 0; i < 1000000; i++) printf "%d,%.0f,%.2f,%.2f,C,0,0\n", int(i / 10000), 1640995200000 + (i % 10000) * 3600000, 10 + (i % 97) * 0.1, 10 + (i % 97) * 0.1 }' >"$work/rows.csv"
 psql_db -d forecasthub -c "CREATE TABLE copy_readings (site_key bigint NOT NULL, time_ms bigint NOT NULL, value_c double precision NOT NULL,
   original_value double precision NOT NULL, original_unit text NOT NULL, flags integer NOT NULL DEFAULT 0,
   received_at_ms bigint NOT NULL, PRIMARY KEY (site_key, time_ms));"

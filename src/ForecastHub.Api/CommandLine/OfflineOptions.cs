@@ -21,6 +21,11 @@ public sealed record OfflineOptions(
     int? TestDays,
     int RefitEveryDays)
 {
+    /// <summary>Thresholds in degrees C whose next-24-hour risk the backtest verifies (--below, --above).</summary>
+    public IReadOnlyList<double> Below { get; init; } = [];
+
+    public IReadOnlyList<double> Above { get; init; } = [];
+
     /// <summary>The file's layout (columns, separator, decimal mark).</summary>
     public CsvLayout Layout { get; init; } = CsvLayout.Default;
 
@@ -60,6 +65,9 @@ public sealed record OfflineOptions(
           --interval-method calibrated|gaussian          (default: calibrated)
           --test-days N                days at the end scored by the backtest (default: fit 30, backtest 90)
           --refit-every-days N         backtest refit interval (default: 7)
+          --below C[,C...]             verify the chance of falling below each threshold in the next 24 hours
+                                       (Brier score, skill against the same month's base rate, reliability table)
+          --above C[,C...]             the same for rising above each threshold
           --out FILE.json              JSON report (default: beside the input, FILE.fit.json / FILE.backtest.json)
 
         The text report goes to standard output; exit code 0 on success, 2 on bad input.
@@ -82,6 +90,8 @@ public sealed record OfflineOptions(
     private static readonly string[] Texts = ["--time-zone", "--out", "--time-column", "--value-column", "--unit-column", "--separator", "--decimal"];
 
     private static readonly string[] Switches = ["--local-times"];
+
+    private static readonly string[] Thresholds = ["--below", "--above"];
 
     /// <summary>Reads the arguments after the verb; an error names the bad option.</summary>
     public static (OfflineOptions? Options, string? Error) Parse(string verb, IReadOnlyList<string> args)
@@ -109,7 +119,7 @@ public sealed record OfflineOptions(
             var (name, value) = arg.Contains('=', StringComparison.Ordinal)
                 ? (arg[..arg.IndexOf('=', StringComparison.Ordinal)], arg[(arg.IndexOf('=', StringComparison.Ordinal) + 1)..])
                 : (arg, i + 1 < args.Count ? args[++i] : null);
-            if (!Choices.ContainsKey(name) && !Numbers.Contains(name) && !Texts.Contains(name))
+            if (!Choices.ContainsKey(name) && !Numbers.Contains(name) && !Texts.Contains(name) && !Thresholds.Contains(name))
             {
                 return (null, $"unknown option '{name}'.");
             }
@@ -124,6 +134,10 @@ public sealed record OfflineOptions(
             if (Numbers.Contains(name) && (!int.TryParse(value, NumberStyles.None, CultureInfo.InvariantCulture, out var n) || n < 1))
             {
                 return (null, $"option '{name}' must be a whole number of at least 1, not '{value}'.");
+            }
+            if (Thresholds.Contains(name) && ParseThresholds(value) is null)
+            {
+                return (null, $"option '{name}' must be up to 8 comma-separated temperatures in degrees C between -95 and 65, not '{value}'.");
             }
             values[name] = value;
         }
@@ -159,9 +173,29 @@ public sealed record OfflineOptions(
             Number("--test-days"),
             Number("--refit-every-days") ?? 7)
         {
+            Below = values.TryGetValue("--below", out var below) ? ParseThresholds(below)! : [],
+            Above = values.TryGetValue("--above", out var above) ? ParseThresholds(above)! : [],
             Layout = layout,
             Unit = values.GetValueOrDefault("--unit"),
             LocalTimes = values.ContainsKey("--local-times"),
         }, null);
+    }
+
+    private static double[]? ParseThresholds(string text)
+    {
+        var parts = text.Split(',', StringSplitOptions.TrimEntries);
+        var values = new List<double>();
+        foreach (var part in parts)
+        {
+            if (!double.TryParse(part, NumberStyles.AllowLeadingSign | NumberStyles.AllowDecimalPoint, CultureInfo.InvariantCulture, out var v)
+                || v is < -95 or > 65)
+            {
+                return null;
+            }
+
+            values.Add(v);
+        }
+
+        return values.Count is > 0 and <= 8 ? [.. values.Distinct()] : null;
     }
 }

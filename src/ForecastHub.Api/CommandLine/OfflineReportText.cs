@@ -100,6 +100,15 @@ internal static class OfflineReportText
         {
             Line($"  {i.Level:0} % interval: covers {100 * i.Coverage:0.0} % of outcomes, mean width {i.MeanWidth:0.00} C, interval score {i.IntervalScore:0.00}");
         }
+        foreach (var t in backtest.Thresholds)
+        {
+            Line($"  {t.Direction} {t.Threshold:0.0} C in the next 24 hours: {t.Count} forecasts, happened {100 * t.BaseRate:0.0} %; Brier {t.Brier:0.0000} (same-month base rate {t.ClimatologyBrier:0.0000}), skill {t.BrierSkill:0.000}");
+            Line($"    {"chance",11} {"n",6} {"forecast",9} {"observed",9}");
+            foreach (var b in t.Reliability.Where(b => b.Count > 0))
+            {
+                Line($"    {100 * b.From,4:0}-{100 * b.To,3:0} % {b.Count,6} {100 * b.ForecastMean,8:0.0}% {100 * b.ObservedFrequency,8:0.0}%");
+            }
+        }
         if (perHorizon)
         {
             Line($"  {"step",5} {"n",6} {"MAE",7} {"pers.",7} {"clim.",7} {"skill p",8} {"skill c",8} {"cov80",6} {"cov95",6}");

@@ -97,7 +97,8 @@ public static class OfflineVerbs
 
         var testDays = options.TestDays ?? (options.Verb == "fit" ? FitTestDays : BacktestTestDays);
         using var progress = CommandLineProgress.Start(errors, "backtest");
-        var backtest = Backtester.Run(site, readings, dataEnd, testDays, options.RefitEveryDays, progress.Report);
+        var backtest = Backtester.Run(site, readings, dataEnd, testDays, options.RefitEveryDays,
+            site.Risk.WithQueryThresholds(options.Below, options.Above), progress.Report);
         progress.Done();
         var report = new OfflineReport(options.Verb, now, input, model, backtest);
         await File.WriteAllTextAsync(jsonPath, JsonSerializer.Serialize(report, Json)).ConfigureAwait(false);

@@ -2,6 +2,7 @@ using System.Diagnostics;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
+using ForecastHub.Core.Risk;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
 
@@ -57,5 +58,16 @@ public sealed class DemoLoader(ISiteStore sites, IReadingStore readings, TimePro
         site.Kind == DemoSiteKind.ColdStore ? new QualityLimits(MinC: -5, MaxC: 10) : QualityLimits.Default,
         ModelSettings.DefaultFor(GridCadence.Hourly),
         now,
-        now);
+        now)
+    {
+        Risk = SiteRiskSettings.Default with { Thresholds = Thresholds(site.Kind) },
+    };
+
+    // The levels each kind of site watches: frost for orchard and tunnel air, warming for the cold store.
+    private static SiteThreshold[] Thresholds(DemoSiteKind kind) => kind switch
+    {
+        DemoSiteKind.ColdStore => [new SiteThreshold("too-warm", ThresholdDirection.Above, 5, 0.2)],
+        DemoSiteKind.Tunnel => [new SiteThreshold("frost", ThresholdDirection.Below, 0, 0.3)],
+        _ => [new SiteThreshold("frost", ThresholdDirection.Below, 0, 0.3), new SiteThreshold("hard-frost", ThresholdDirection.Below, -2, 0.2)],
+    };
 }

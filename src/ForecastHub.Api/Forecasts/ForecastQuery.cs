@@ -18,7 +18,8 @@ public sealed record ForecastQuery(int Steps, IReadOnlyList<double> Levels, IRea
     /// Parses the query string values; on a bad value answers the field and a reason instead.
     /// Steps default to 48 (hourly) or 3 (daily); levels to 80,95; thresholds in degrees C.
     /// </summary>
-    public static (ForecastQuery? Query, string? Field, string? Error) Parse(bool isDaily, string? steps, string? levels, string? below, string? above)
+    public static (ForecastQuery? Query, string? Field, string? Error) Parse(bool isDaily, string? steps, string? levels, string? below, string? above,
+        string unit = Observations.TemperatureUnits.Celsius)
     {
         var maxSteps = isDaily ? MaxDailySteps : MaxHourlySteps;
         var stepCount = isDaily ? 3 : 48;
@@ -35,14 +36,16 @@ public sealed record ForecastQuery(int Steps, IReadOnlyList<double> Levels, IRea
             return (null, "levels", levelError);
         }
 
-        const string thresholdRule = "must be a comma-separated list of up to 10 temperatures in degrees C between -95 and 65.";
-        var (belowList, belowError) = ParseList(below, [], MaxThresholds, v => v is >= -95 and <= 65, "below", "below " + thresholdRule);
+        // Thresholds come in the answer's unit and are kept in degrees C (rounded, so 32 F is exactly 0 C).
+        const string thresholdRule = "must be a comma-separated list of up to 10 temperatures in the answer's unit, between -95 and 65 degrees C.";
+        Func<double, double> toCelsius = v => Math.Round(Observations.TemperatureUnits.ToCelsius(v, unit), 9);
+        var (belowList, belowError) = ParseList(below, [], MaxThresholds, v => v is >= -95 and <= 65, "below", "below " + thresholdRule, toCelsius);
         if (belowError is not null)
         {
             return (null, "below", belowError);
         }
 
-        var (aboveList, aboveError) = ParseList(above, [], MaxThresholds, v => v is >= -95 and <= 65, "above", "above " + thresholdRule);
+        var (aboveList, aboveError) = ParseList(above, [], MaxThresholds, v => v is >= -95 and <= 65, "above", "above " + thresholdRule, toCelsius);
         if (aboveError is not null)
         {
             return (null, "above", aboveError);
@@ -52,7 +55,7 @@ public sealed record ForecastQuery(int Steps, IReadOnlyList<double> Levels, IRea
     }
 
     private static (IReadOnlyList<double>? Values, string? Error) ParseList(string? text, IReadOnlyList<double> fallback, int max,
-        Func<double, bool> valid, string field, string rule)
+        Func<double, bool> valid, string field, string rule, Func<double, double>? convert = null)
     {
         if (string.IsNullOrWhiteSpace(text))
         {
@@ -69,7 +72,7 @@ public sealed record ForecastQuery(int Steps, IReadOnlyList<double> Levels, IRea
         foreach (var part in parts)
         {
             if (!double.TryParse(part, NumberStyles.AllowLeadingSign | NumberStyles.AllowDecimalPoint, CultureInfo.InvariantCulture, out var v)
-                || !double.IsFinite(v) || !valid(v))
+                || !double.IsFinite(v) || !valid(v = convert?.Invoke(v) ?? v))
             {
                 return (null, $"'{Shorten(part)}' in {field} is not valid: {rule}");
             }

@@ -69,7 +69,9 @@ public sealed class ForecastService(
         var entry = cache.AddOrUpdate(site.Id,
             _ => new SiteEntry(dataVersion, modelVersion, step),
             (_, old) => old.Matches(dataVersion, modelVersion, step) ? old : new SiteEntry(dataVersion, modelVersion, step));
-        if (entry.Answers.TryGetValue(query.Key, out var hit))
+        // The site's thresholds and night are part of the key, so changing them re-evaluates the risk.
+        var key = query.Key + "#" + site.Risk.Key;
+        if (entry.Answers.TryGetValue(key, out var hit))
         {
             metrics.ForecastDuration.Observe(watch.Elapsed.TotalSeconds, "hit");
             return (hit, null);
@@ -91,7 +93,7 @@ public sealed class ForecastService(
         }
 
         var computed = new CachedForecast(forecast);
-        return (entry.Answers.Count < MaxEntriesPerSite ? entry.Answers.GetOrAdd(query.Key, computed) : computed, null);
+        return (entry.Answers.Count < MaxEntriesPerSite ? entry.Answers.GetOrAdd(key, computed) : computed, null);
     }
 
     /// <summary>
@@ -137,13 +139,16 @@ public sealed class ForecastService(
         }
 
         var isDaily = site.IsDaily;
-        var path = ForecastMapping.Forecast(model.Model, grid, query.Steps, query.Levels, query.Below, query.Above, MonteCarloSeed);
+        // Risk windows start from the current grid step, so the answer stays the same for the whole step it is cached for.
+        var path = ForecastMapping.Forecast(model.Model, grid, query.Steps, query.Levels, query.Below, query.Above, MonteCarloSeed,
+            site.Risk, SiteGridLoader.AlignDown(site, now));
         var assessment = await health.EvaluateAsync(site, cancellationToken);
         var unit = isDaily ? "day" : "hour";
         var gap = path.MissingSteps == 0
             ? null
             : new ForecastDataGap(path.LastData, path.MissingSteps,
                 $"The newest {path.MissingSteps} {unit}{(path.MissingSteps == 1 ? "" : "s")} before now have no data; the forecast starts from the data of {path.LastData:O} and its intervals are wider for it.");
+        var reason = Confidence(assessment, path.LastData);
         return new ForecastResponse(
             site.Id,
             now,
@@ -153,8 +158,32 @@ public sealed class ForecastService(
             new ForecastModelUsed(model.Model.Ar.Order, WireNames.Methods.Of(model.Model.Ar.Method), model.Stored.FittedAt, path.IntervalMethod),
             path.Steps,
             path.NextDay,
+            path.Risk,
+            reason is null ? "normal" : "reduced",
+            reason,
             gap,
             ForecastCautions.All);
+    }
+
+    /// <summary>Reduced confidence when the site is stale, sensor-suspect or drifting (the most urgent state is the code).</summary>
+    public static ConfidenceReason? Confidence(Core.Health.HealthAssessment assessment, DateTimeOffset lastData)
+    {
+        ArgumentNullException.ThrowIfNull(assessment);
+        var state = assessment.State;
+        if (state is not (Core.Health.HealthState.Stale or Core.Health.HealthState.SensorSuspect or Core.Health.HealthState.Drifting))
+        {
+            return null;
+        }
+
+        var why = string.Join(" ", assessment.Reasons.Where(r => r.State == state).Select(r => r.Message));
+        var message = state switch
+        {
+            Core.Health.HealthState.SensorSuspect =>
+                $"The sensor looks suspect: {why} Readings flagged by quality control are left out, so the forecast starts from the last data that passed, {lastData:O}, and its intervals are wider for the hours since.",
+            Core.Health.HealthState.Stale => $"The data or the model is out of date: {why}",
+            _ => $"The model no longer fits the site well: {why}",
+        };
+        return new ConfidenceReason(state, message);
     }
 
     private sealed class SiteEntry(long dataVersion, long modelVersion, DateTimeOffset step)

@@ -13,10 +13,14 @@ public sealed class FleetHealth(ISiteStore sites, ModelHealthService health, Tim
 
     public FleetHealthResponse? Latest { get; private set; }
 
+    /// <summary>Every site's state and newest reading as of <see cref="Latest"/>, ordered by site id.</summary>
+    public IReadOnlyList<SiteHealthSample> LatestSites { get; private set; } = [];
+
     public async Task<FleetHealthResponse> ComputeAsync(CancellationToken cancellationToken)
     {
         var counts = HealthState.All.ToDictionary(s => s, _ => 0, StringComparer.Ordinal);
         var attention = new List<AttentionItem>();
+        var samples = new List<SiteHealthSample>();
         var total = 0;
         string? after = null;
         while (true)
@@ -26,6 +30,7 @@ public sealed class FleetHealth(ISiteStore sites, ModelHealthService health, Tim
             {
                 var assessment = await health.EvaluateAsync(site, cancellationToken);
                 counts[assessment.State]++;
+                samples.Add(new SiteHealthSample(site.Id, assessment.State, assessment.LastObservationAt));
                 total++;
                 if (assessment.State != HealthState.Ok)
                 {
@@ -45,7 +50,11 @@ public sealed class FleetHealth(ISiteStore sites, ModelHealthService health, Tim
         var ordered = attention.OrderBy(a => HealthState.Urgency(a.State)).ThenBy(a => a.SiteId, StringComparer.Ordinal).ToList();
         var result = new FleetHealthResponse(clock.GetUtcNow(), total, counts,
             [.. ordered.Take(AttentionCap)], ordered.Count > AttentionCap);
+        LatestSites = samples;
         Latest = result;
         return result;
     }
 }
+
+/// <summary>One site's health state and newest reading time, for the per-site gauges.</summary>
+public sealed record SiteHealthSample(string SiteId, string State, DateTimeOffset? LastObservationAt);

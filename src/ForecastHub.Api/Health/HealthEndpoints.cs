@@ -1,5 +1,6 @@
-using ForecastHub.Storage;
+using ForecastHub.Api.Mqtt;
 using Microsoft.AspNetCore.Http.HttpResults;
+using ForecastHub.Storage;
 
 namespace ForecastHub.Api.Health;
 
@@ -18,16 +19,21 @@ public static class HealthEndpoints
 
     public static Ok<LiveStatus> Live() => TypedResults.Ok(new LiveStatus("live"));
 
-    public static async Task<Results<Ok<ReadyStatus>, ProblemHttpResult>> Ready(IStorageSchema schema, CancellationToken cancellationToken)
+    public static async Task<Results<Ok<ReadyStatus>, ProblemHttpResult>> Ready(IStorageSchema schema, MqttSubscriptionState mqtt, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(schema);
+        ArgumentNullException.ThrowIfNull(mqtt);
         var readiness = await schema.CheckReadinessAsync(cancellationToken);
+        // The MQTT subscription is reported, never a reason to be unready: HTTP ingest works without it.
         return readiness.Ready
-            ? TypedResults.Ok(new ReadyStatus("ready", readiness.SchemaVersion))
+            ? TypedResults.Ok(new ReadyStatus("ready", readiness.SchemaVersion, new MqttStatus(mqtt.State, mqtt.Since, mqtt.LastError)))
             : TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready", detail: readiness.Problem);
     }
 }
 
 public sealed record LiveStatus(string Status);
 
-public sealed record ReadyStatus(string Status, int SchemaVersion);
+public sealed record ReadyStatus(string Status, int SchemaVersion, MqttStatus Mqtt);
+
+/// <summary>The MQTT subscription: <c>off</c> (no Mqtt:Server), <c>connecting</c>, <c>connected</c> or <c>reconnecting</c>.</summary>
+public sealed record MqttStatus(string State, DateTimeOffset? Since, string? LastError);

@@ -1,3 +1,4 @@
+using ForecastHub.Api.Http;
 using ForecastHub.Api.OpenApi;
 using Serilog;
 
@@ -11,6 +12,7 @@ public static class PipelineSetup
     public static WebApplication UseForecastHubPipeline(this WebApplication app)
     {
         ArgumentNullException.ThrowIfNull(app);
+        app.UseForwardedHeadersFromKnownProxies();
         app.UseSerilogRequestLogging(options =>
             options.MessageTemplate = "HTTP {RequestMethod} {RequestPath} responded {StatusCode} in {Elapsed:0.0} ms");
         // What the server refuses while the app reads a body (broken chunk framing, a body below the
@@ -24,6 +26,7 @@ public static class PipelineSetup
         app.UseForecastHubOpenApi();
         app.UseRouting();
         app.UseRequestBodyLimits();
+        app.UseConfiguredCors();
         app.UseAuthentication();
         // After authentication, so the limit is counted per key; before authorization, so refused
         // calls count too.

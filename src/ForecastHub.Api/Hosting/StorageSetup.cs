@@ -36,6 +36,7 @@ public static class StorageSetup
             .Validate(o => o.Provider is StorageOptions.Sqlite or StorageOptions.Postgres, "Storage:Provider must be 'sqlite' or 'postgres'.")
             .Validate(o => o.IsPostgres || !string.IsNullOrWhiteSpace(o.Path), "Storage:Path must name a file.")
             .Validate(o => o.BusyTimeoutMs > 0, "Storage:BusyTimeoutMs must be positive.")
+            .Validate(o => o.MaxSizeMb is null or > 0, "Storage:MaxSizeMb must be positive (leave it out for no cap).")
             .Validate(o => !o.IsPostgres || !string.IsNullOrWhiteSpace(o.ConnectionString),
                 "Storage:ConnectionString must name the PostgreSQL database when Storage:Provider is 'postgres'.")
             .ValidateOnStart();
@@ -51,7 +52,7 @@ public static class StorageSetup
         Add<IForecastArchive>(services, sp => new SqliteForecastArchive(Sqlite(sp)), sp => new PostgresForecastArchive(Postgres(sp)));
         Add<IReadingSummaryStore>(services, sp => new SqliteReadingSummaryStore(Sqlite(sp)), sp => new PostgresReadingSummaryStore(Postgres(sp)));
         Add<IWorkLeases>(services, sp => new LocalWorkLeases(Clock(sp)), sp => new PostgresWorkLeases(Postgres(sp)));
-        Add<IStorageSchema>(services, sp => new SqliteStorageSchema(sp.GetRequiredService<MigrationRunner>()),
+        Add<IStorageSchema>(services, sp => new SqliteStorageSchema(Sqlite(sp), sp.GetRequiredService<MigrationRunner>()),
             sp => new PostgresStorageSchema(sp.GetRequiredService<PostgresMigrationRunner>()));
         services.AddHostedService<MigrationStartup>();
         return services;

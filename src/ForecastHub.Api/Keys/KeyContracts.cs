@@ -20,4 +20,4 @@ public sealed record KeyResponse(string Id, string Scope, IReadOnlyList<string> 
 }
 
 /// <summary>One page of keys; <c>next</c> is the link to the following page, null on the last.</summary>
-public sealed record KeyList(IReadOnlyList<KeyResponse> Keys, string? Next);
+public sealed record KeyList(IReadOnlyList<KeyResponse> Keys, string? Next) : Http.IPagedList;

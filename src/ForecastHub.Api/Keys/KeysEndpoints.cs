@@ -1,3 +1,4 @@
+using ForecastHub.Api.Http;
 using System.Text.Json;
 using System.Text.RegularExpressions;
 using ForecastHub.Api.Auth;
@@ -22,12 +23,6 @@ public static partial class KeysEndpoints
 
     private static readonly string[] Scopes = [ApiKeyScopes.Admin, ApiKeyScopes.Ingest, ApiKeyScopes.Read];
 
-    private static readonly JsonSerializerOptions BodyOptions = new(JsonSerializerDefaults.Web)
-    {
-        UnmappedMemberHandling = System.Text.Json.Serialization.JsonUnmappedMemberHandling.Disallow,
-        AllowDuplicateProperties = false,
-    };
-
     /// <summary>Key management; every call needs an admin key.</summary>
     public static RouteGroupBuilder MapKeys(this IEndpointRouteBuilder routes)
     {
@@ -38,7 +33,7 @@ public static partial class KeysEndpoints
             .WithRequestBodyLimit(MaxBodyBytes)
             .ProducesProblem(StatusCodes.Status409Conflict);
         group.MapGet("/", List).WithName("ListKeys").WithSummary("List API keys by id, one page at a time, without their secrets.")
-            .ProducesProblem(StatusCodes.Status400BadRequest);
+            .ProducesProblem(StatusCodes.Status400BadRequest).WithNextLinkHeader();
         group.MapGet("/{keyId}", Get).WithName("GetKey").WithSummary("Read one API key without its secret.");
         group.MapDelete("/{keyId}", Revoke).WithName("RevokeKey")
             .WithSummary("Revoke an API key; it stops working at once and stays listed with its revocation time.")
@@ -50,7 +45,8 @@ public static partial class KeysEndpoints
         HttpRequest request, HttpResponse response, IApiKeyStore keys, ISiteStore sites, TimeProvider clock, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(response);
-        var (body, problem) = await ReadBody(request, cancellationToken).ConfigureAwait(false);
+        var (body, problem) = await RequestBody.ReadObjectAsync<KeyBody>(request, MaxBodyBytes, "key request",
+            "{\"scope\": \"read\"}", cancellationToken).ConfigureAwait(false);
         if (problem is not null)
         {
             return problem;
@@ -170,36 +166,5 @@ public static partial class KeysEndpoints
             errors["label"] = [$"label may be at most {MaxLabelLength} characters."];
         }
         return errors;
-    }
-
-    private static async Task<(KeyBody? Body, ProblemHttpResult? Problem)> ReadBody(HttpRequest request, CancellationToken cancellationToken)
-    {
-        if (!RequestBody.IsJson(request))
-        {
-            return (null, ApiProblems.UnsupportedMediaType("Send the key request as JSON with 'Content-Type: application/json'."));
-        }
-        var bytes = await RequestBody.ReadAsync(request, MaxBodyBytes, cancellationToken).ConfigureAwait(false);
-        if (bytes is null)
-        {
-            return (null, ApiProblems.TooLarge($"A key request may be at most {MaxBodyBytes / 1024} KiB."));
-        }
-        using var document = RequestBody.ParseJson(bytes, out var error);
-        if (document is null)
-        {
-            return (null, ApiProblems.BadRequest("body", error!));
-        }
-        if (document.RootElement.ValueKind != JsonValueKind.Object)
-        {
-            return (null, ApiProblems.BadRequest("body", "The body must be a JSON object such as {\"scope\": \"read\"}."));
-        }
-        try
-        {
-            return (document.RootElement.Deserialize<KeyBody>(BodyOptions)!, null);
-        }
-        catch (JsonException e)
-        {
-            var field = (e.Path ?? "$").TrimStart('$').TrimStart('.');
-            return (null, ApiProblems.BadRequest(field, $"'{field}' is not allowed here or has the wrong type."));
-        }
     }
 }

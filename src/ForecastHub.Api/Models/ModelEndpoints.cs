@@ -1,3 +1,4 @@
+using ForecastHub.Api.Http;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Problems;
 using ForecastHub.Storage.Models;
@@ -13,7 +14,7 @@ public static class ModelEndpoints
     {
         ArgumentNullException.ThrowIfNull(api);
         var group = api.MapGroup("/sites/{siteId}/model").WithTags("Models");
-        group.MapGet("", GetModel).WithName("GetModel").RequireAuthorization(AuthPolicies.Read)
+        group.MapGet("", GetModel).WithName("GetModel").WithSiteETag().RequireAuthorization(AuthPolicies.Read)
             .WithSummary("The serving model with every diagnostic: fit window, seasonality, AR terms, order selection, ACF, residual tests.");
         group.MapPost("/refit", Refit).WithName("RefitModel").RequireAuthorization(AuthPolicies.Admin)
             .WithSummary("Refits the site now from its stored data and answers the new model.")

@@ -22,12 +22,7 @@ public static class ModelsSetup
         services.AddSingleton<IValidateOptions<RefitOptions>>(new ThrowingValidator<RefitOptions>(o => o.Validate()));
 
         services.AddSingleton<SiteVersions>();
-        services.AddSingleton(sp =>
-        {
-            var queue = new RefitQueue();
-            sp.GetRequiredService<ServiceMetrics>().AddRefitQueueGauge(() => queue.Count);
-            return queue;
-        });
+        services.AddSingleton<RefitQueue>();
         services.Decorate<IReadingStore>((sp, inner) => new NotifyingReadingStore(inner,
             sp.GetRequiredService<SiteVersions>(), sp.GetRequiredService<RefitQueue>(), sp.GetRequiredService<ServiceMetrics>()));
         services.Decorate<ISiteStore>((sp, inner) => new NotifyingSiteStore(inner,

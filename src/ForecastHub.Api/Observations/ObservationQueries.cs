@@ -189,13 +189,7 @@ public static class ObservationQueries
         return QueryHelpers.AddQueryString(request.Path.ToString(), query);
     }
 
-    private static void SetLink(HttpContext context, string? next)
-    {
-        if (next is not null)
-        {
-            context.Response.Headers.Link = $"<{next}>; rel=\"next\"";
-        }
-    }
+    private static void SetLink(HttpContext context, string? next) => Http.NextLink.Set(context.Response, next);
 
     private static ContentHttpResult Csv(HttpContext context, StringBuilder csv, string? next)
     {

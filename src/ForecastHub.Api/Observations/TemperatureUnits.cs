@@ -17,6 +17,18 @@ public static class TemperatureUnits
         _ => throw new ArgumentException($"Unknown unit '{unit}'.", nameof(unit)),
     };
 
+    /// <summary>A temperature stored in degrees C, in <paramref name="unit"/>.</summary>
+    public static double FromCelsius(double value, string unit) => unit switch
+    {
+        Celsius => value,
+        Fahrenheit => (value * 9 / 5) + 32,
+        Kelvin => value + 273.15,
+        _ => throw new ArgumentException($"Unknown unit '{unit}'.", nameof(unit)),
+    };
+
+    /// <summary>A temperature difference (a standard deviation, an interval width) in <paramref name="unit"/>.</summary>
+    public static double SpreadFromCelsius(double value, string unit) => unit == Fahrenheit ? value * 9 / 5 : value;
+
     /// <summary>The unit as exports spell it ('°C', 'degF', 'c') in the contract's form; other text unchanged (and refused later).</summary>
     public static string Normalise(string unit)
     {

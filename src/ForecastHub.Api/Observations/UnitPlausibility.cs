@@ -25,6 +25,21 @@ internal static class UnitPlausibility
     {
         ArgumentNullException.ThrowIfNull(batch);
         ArgumentNullException.ThrowIfNull(limits);
+        // The usual batch lies wholly inside the site's limits and the typical span: plausible without sorting.
+        var (low, high) = (Math.Max(limits.MinC, TypicalMinC), Math.Min(limits.MaxC, TypicalMaxC));
+        var inside = batch.ImpossibleCelsius.Count == 0;
+        foreach (var r in batch.Valid)
+        {
+            if (r.OriginalUnit == TemperatureUnits.Celsius && (r.OriginalValue < low || r.OriginalValue > high))
+            {
+                inside = false;
+                break;
+            }
+        }
+        if (inside)
+        {
+            return null;
+        }
         var sent = batch.Valid.Where(r => r.OriginalUnit == TemperatureUnits.Celsius).Select(r => r.OriginalValue)
             .Concat(batch.ImpossibleCelsius).ToArray();
         return Check(sent, limits);

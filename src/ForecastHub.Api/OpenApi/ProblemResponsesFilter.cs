@@ -39,6 +39,11 @@ public sealed class ProblemResponsesFilter : IOperationFilter
             Add(operation, context, StatusCodes.Status429TooManyRequests, "This key made too many requests; see Retry-After.");
         }
 
+        if (metadata.OfType<Http.ConditionalGet>().Any())
+        {
+            operation.Responses["304"] = new OpenApiResponse { Description = "Not modified: the If-None-Match ETag still matches; no body." };
+        }
+
         var route = context.ApiDescription.RelativePath ?? "";
         if (route.Contains("{siteId}", StringComparison.Ordinal) || route.Contains("{keyId}", StringComparison.Ordinal))
         {

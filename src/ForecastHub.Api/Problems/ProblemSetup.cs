@@ -11,6 +11,7 @@ public static class ProblemSetup
             context.ProblemDetails.Instance ??= context.HttpContext.Request.Path;
             context.ProblemDetails.Extensions["traceId"] = context.HttpContext.TraceIdentifier;
         });
+        services.AddExceptionHandler<StorageProblems>();
         return services;
     }
 }

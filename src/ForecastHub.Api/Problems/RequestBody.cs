@@ -1,4 +1,5 @@
 using System.Text.Json;
+using Microsoft.AspNetCore.Http.HttpResults;
 
 namespace ForecastHub.Api.Problems;
 
@@ -60,6 +61,47 @@ public static class RequestBody
         {
             error = $"The body is not valid JSON: {e.Message}";
             return null;
+        }
+    }
+
+    private static readonly JsonSerializerOptions StrictBodyOptions = new(JsonSerializerDefaults.Web)
+    {
+        UnmappedMemberHandling = System.Text.Json.Serialization.JsonUnmappedMemberHandling.Disallow,
+        AllowDuplicateProperties = false,
+    };
+
+    /// <summary>Reads a small JSON object body into <typeparamref name="T"/>, refusing unknown members;
+    /// on failure the problem names what went wrong (<paramref name="what"/> is "key request" and the like).</summary>
+    public static async Task<(T? Body, ProblemHttpResult? Problem)> ReadObjectAsync<T>(
+        HttpRequest request, int maxBytes, string what, string example, CancellationToken cancellationToken)
+        where T : class
+    {
+        if (!IsJson(request))
+        {
+            return (null, ApiProblems.UnsupportedMediaType($"Send the {what} as JSON with 'Content-Type: application/json'."));
+        }
+        var bytes = await ReadAsync(request, maxBytes, cancellationToken).ConfigureAwait(false);
+        if (bytes is null)
+        {
+            return (null, ApiProblems.TooLarge($"A {what} may be at most {maxBytes / 1024} KiB."));
+        }
+        using var document = ParseJson(bytes, out var error);
+        if (document is null)
+        {
+            return (null, ApiProblems.BadRequest("body", error!));
+        }
+        if (document.RootElement.ValueKind != JsonValueKind.Object)
+        {
+            return (null, ApiProblems.BadRequest("body", $"The body must be a JSON object such as {example}."));
+        }
+        try
+        {
+            return (document.RootElement.Deserialize<T>(StrictBodyOptions)!, null);
+        }
+        catch (JsonException e)
+        {
+            var field = (e.Path ?? "$").TrimStart('$').TrimStart('.');
+            return (null, ApiProblems.BadRequest(field, $"'{field}' is not allowed here or has the wrong type."));
         }
     }
 

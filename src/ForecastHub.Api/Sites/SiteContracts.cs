@@ -17,7 +17,16 @@ public sealed record SiteBody(
     double? Longitude,
     double? ElevationM,
     QualityBody? Quality,
-    ModelBody? Model);
+    ModelBody? Model,
+    IReadOnlyList<ThresholdBody>? Thresholds = null,
+    NightBody? Night = null);
+
+/// <summary>A site threshold: <c>id</c> a slug unique in the site, <c>direction</c> "below" or "above",
+/// <c>valueC</c> in degrees C, <c>alertProbability</c> in (0, 1] (absent: shown, never alerts).</summary>
+public sealed record ThresholdBody(string? Id, string? Direction, double? ValueC, double? AlertProbability);
+
+/// <summary>The site's night as local clock times "HH:mm"; an end at or before the start runs past midnight.</summary>
+public sealed record NightBody(string? StartLocal, string? EndLocal);
 
 public sealed record QualityBody(double? MinC, double? MaxC, double? MaxStepCPerHour, double? FlatlineHours);
 
@@ -37,7 +46,9 @@ public record SiteResponse(
     SiteModelSettingsResponse Model,
     DateTimeOffset CreatedAt,
     DateTimeOffset UpdatedAt,
-    long SettingsVersion)
+    long SettingsVersion,
+    IReadOnlyList<ThresholdResponse> Thresholds,
+    NightResponse Night)
 {
     public static SiteResponse From(SiteRecord site)
     {
@@ -47,9 +58,15 @@ public record SiteResponse(
             site.Latitude, site.Longitude, site.ElevationM,
             new QualityResponse(site.Quality.MinC, site.Quality.MaxC, site.Quality.MaxStepCPerHour, site.Quality.FlatlineHours),
             SiteModelSettingsResponse.From(site.Model),
-            site.CreatedAt, site.UpdatedAt, site.SettingsVersion);
+            site.CreatedAt, site.UpdatedAt, site.SettingsVersion,
+            [.. site.Risk.Thresholds.Select(t => new ThresholdResponse(t.Id, WireNames.ThresholdDirections.Of(t.Direction), t.ValueC, t.AlertProbability))],
+            new NightResponse(WireNames.ClockTime(site.Risk.Night.Start), WireNames.ClockTime(site.Risk.Night.End)));
     }
 }
+
+public sealed record ThresholdResponse(string Id, string Direction, double ValueC, double? AlertProbability);
+
+public sealed record NightResponse(string StartLocal, string EndLocal);
 
 public sealed record QualityResponse(double MinC, double MaxC, double MaxStepCPerHour, double FlatlineHours);
 
@@ -75,7 +92,7 @@ public sealed record ListedSiteResponse(SiteResponse Site, string HealthState)
 }
 
 /// <summary>One page of sites; <c>next</c> is the link to the following page, null on the last.</summary>
-public sealed record SiteList(IReadOnlyList<ListedSiteResponse> Sites, string? Next);
+public sealed record SiteList(IReadOnlyList<ListedSiteResponse> Sites, string? Next) : Http.IPagedList;
 
 internal static class QualityDefaults
 {

@@ -3,6 +3,7 @@ using System.Text.RegularExpressions;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
+using ForecastHub.Core.Risk;
 using ForecastHub.Core.Settings;
 using ForecastHub.Storage.Sites;
 
@@ -21,6 +22,9 @@ public static partial class SiteRules
 
     [GeneratedRegex("^[a-z0-9][a-z0-9-]{0,62}$")]
     public static partial Regex SiteId();
+
+    [GeneratedRegex("^[a-z0-9][a-z0-9-]{0,31}$")]
+    private static partial Regex ThresholdId();
 
     [GeneratedRegex(@"^[A-Za-z0-9_+\-]+(/[A-Za-z0-9_+\-]+){0,3}$")]
     private static partial Regex TimeZoneShape();
@@ -124,12 +128,17 @@ public static partial class SiteRules
         var quality = MergeQuality(body.Quality, current?.Quality, errors);
         var model = MergeModel(body.Model, current?.Model ?? ModelSettings.DefaultFor(cadence ?? GridCadence.Hourly), errors);
 
+        var risk = MergeRisk(body, raw, current?.Risk ?? SiteRiskSettings.Default, errors);
+
         if (errors.Count > 0)
         {
             return null;
         }
         return new SiteRecord(id!, name!.Trim(), timeZone!, cadence!.Value, dailyStatistic, latitude, longitude, elevation,
-            quality, model, current?.CreatedAt ?? now, now, current?.SettingsVersion ?? 1);
+            quality, model, current?.CreatedAt ?? now, now, current?.SettingsVersion ?? 1)
+        {
+            Risk = risk,
+        };
     }
 
     private static QualityLimits MergeQuality(QualityBody? body, QualityLimits? current, Dictionary<string, string[]> errors)
@@ -163,6 +172,84 @@ public static partial class SiteRules
         CheckRange(model.MaxOrder, 1, ModelSettings.MaxMaxOrder, "model.maxOrder", errors);
         CheckRange(model.FitWindowDays, ModelSettings.MinFitWindowDays, ModelSettings.MaxFitWindowDays, "model.fitWindowDays", errors);
         return model;
+    }
+
+    /// <summary>Thresholds sent replace the whole list (null or [] clears it); night fields sent replace their value.</summary>
+    private static SiteRiskSettings MergeRisk(SiteBody body, JsonElement raw, SiteRiskSettings current, Dictionary<string, string[]> errors)
+    {
+        var thresholds = current.Thresholds;
+        if (raw.ValueKind == JsonValueKind.Object && raw.TryGetProperty("thresholds", out _))
+        {
+            var sent = body.Thresholds ?? [];
+            if (sent.Count > SiteRiskSettings.MaxThresholds)
+            {
+                errors["thresholds"] = [$"A site has at most {SiteRiskSettings.MaxThresholds} thresholds; {sent.Count} were sent."];
+            }
+
+            var list = new List<SiteThreshold>();
+            for (var i = 0; i < sent.Count && i < SiteRiskSettings.MaxThresholds; i++)
+            {
+                var t = sent[i];
+                var at = $"thresholds[{i}]";
+                if (t is null)
+                {
+                    errors[at] = [$"{at} must be an object {{id, direction, valueC, alertProbability?}}."];
+                    continue;
+                }
+
+                if (t.Id is null || !ThresholdId().IsMatch(t.Id))
+                {
+                    errors[$"{at}.id"] = [$"{at}.id is required: a slug of lower-case letters, digits and '-', at most 32 characters, such as 'frost'."];
+                }
+                else if (list.Any(other => other.Id == t.Id))
+                {
+                    errors[$"{at}.id"] = [$"{at}.id '{t.Id}' is used twice; threshold ids must be unique within the site."];
+                }
+
+                if (!WireNames.ThresholdDirections.TryParse(t.Direction, out var direction))
+                {
+                    errors[$"{at}.direction"] = [$"{at}.direction must be 'below' or 'above'."];
+                }
+
+                if (t.ValueC is not { } v || !double.IsFinite(v) || v < PhysicalMinC || v > PhysicalMaxC)
+                {
+                    errors[$"{at}.valueC"] = [$"{at}.valueC is required: a temperature in degrees C between {PhysicalMinC} and {PhysicalMaxC}."];
+                }
+
+                if (t.AlertProbability is { } a && !(a > 0 && a <= 1))
+                {
+                    errors[$"{at}.alertProbability"] = [$"{at}.alertProbability must be above 0 and at most 1 (leave it out for a threshold that never alerts)."];
+                }
+
+                list.Add(new SiteThreshold(t.Id ?? "", direction, t.ValueC ?? double.NaN, t.AlertProbability));
+            }
+
+            thresholds = list;
+        }
+
+        var night = current.Night;
+        if (raw.ValueKind == JsonValueKind.Object && raw.TryGetProperty("night", out var sentNight) && sentNight.ValueKind == JsonValueKind.Null)
+        {
+            night = NightHours.Default;
+        }
+
+        var start = night.Start;
+        if (body.Night?.StartLocal is { } startText && !WireNames.TryParseClockTime(startText, out start))
+        {
+            errors["night.startLocal"] = ["night.startLocal must be a local clock time \"HH:mm\" from 00:00 to 23:59, such as \"18:00\"."];
+        }
+
+        var end = night.End;
+        if (body.Night?.EndLocal is { } endText && !WireNames.TryParseClockTime(endText, out end))
+        {
+            errors["night.endLocal"] = ["night.endLocal must be a local clock time \"HH:mm\" from 00:00 to 23:59, such as \"09:00\"."];
+        }
+        else if (start == end && !errors.ContainsKey("night.startLocal"))
+        {
+            errors["night.endLocal"] = ["night.endLocal must differ from night.startLocal (an end at or before the start runs past midnight)."];
+        }
+
+        return new SiteRiskSettings(thresholds, new NightHours(start, end));
     }
 
     // The value of a word in the body, the current value when the body leaves it out; an unknown word is an error naming the field.

@@ -1,3 +1,4 @@
+using ForecastHub.Api.Http;
 using System.Text.Json;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Health;
@@ -29,7 +30,7 @@ public static class SitesEndpoints
             .Accepts<SiteBody>("application/json").WithRequestBodyLimit(MaxBodyBytes).ProducesProblem(StatusCodes.Status409Conflict)
             .RequireAuthorization(AuthPolicies.Admin);
         group.MapGet("/", List).WithName("ListSites").WithSummary("List sites by id, one page at a time, each with its model-health state.")
-            .ProducesProblem(StatusCodes.Status400BadRequest);
+            .ProducesProblem(StatusCodes.Status400BadRequest).WithNextLinkHeader();
         group.MapGet("/{siteId}", Get).WithName("GetSite").WithSummary("Read a site and its settings.");
         group.MapPatch("/{siteId}", Update).WithName("UpdateSite")
             .WithSummary("Change a site's settings; a change of anything but the name raises settingsVersion.")

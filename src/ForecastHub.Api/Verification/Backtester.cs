@@ -2,6 +2,7 @@ using ForecastHub.Api.Forecasts;
 using ForecastHub.Api.Models;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Modeling;
+using ForecastHub.Core.Risk;
 using ForecastHub.Core.Verification;
 using ForecastHub.Storage.Sites;
 
@@ -18,9 +19,10 @@ public static class Backtester
 {
     private static readonly double[] Levels = [0.80, 0.95];
 
-    /// <summary><paramref name="progress"/>: called after each day with the days done and the days in all.</summary>
+    /// <param name="thresholds">Thresholds whose next-24-hour risk is verified (the site's and any asked for); none skips the sample paths.</param>
+    /// <param name="progress">Called after each day with the days done and the days in all.</param>
     public static BacktestResponse? Run(SiteRecord site, IReadOnlyList<GridReading> readings, DateTimeOffset dataEnd, int days, int refitEveryDays,
-        Action<long, long>? progress = null)
+        IReadOnlyList<RiskThreshold>? thresholds = null, Action<long, long>? progress = null)
     {
         ArgumentNullException.ThrowIfNull(site);
         ArgumentNullException.ThrowIfNull(readings);
@@ -41,6 +43,9 @@ public static class Backtester
             }
         }
 
+        thresholds ??= [];
+        var night = site.Risk.Night;
+        var events = thresholds.Select(_ => new ThresholdScoreAccumulator()).ToArray();
         var accumulator = new ScoreAccumulator(horizons, Levels);
         var pooled = new ScoreAccumulator(1, Levels);
         SiteModel? model = null;
@@ -75,7 +80,10 @@ public static class Backtester
                 continue;
             }
 
-            var forecast = SiteForecaster.Forecast(model, recent, horizons, Levels, [], seed: day.DayNumber, paths: 1);
+            var risk = thresholds.Count == 0 ? null : new RiskRequest(thresholds, night, origin);
+            var forecast = SiteForecaster.Forecast(model, recent, horizons, Levels, [], seed: day.DayNumber,
+                paths: risk is null ? 1 : SiteForecaster.DefaultPaths, risk: risk);
+            ScoreEvents(forecast, isDaily, thresholds, observed, zone, events);
             var times = forecast.Steps.Select(s => s.Time).ToArray();
             var climatology = model.Climatology.Mean(times);
             for (var h = 0; h < forecast.Steps.Count; h++)
@@ -109,6 +117,41 @@ public static class Backtester
             origins,
             refitEveryDays,
             [.. perHorizon.Where(s => s.Count > 0).Select(s => ScoresResponse.From(s, s.Horizon))],
-            ScoresResponse.From(pooled.Result()[0], null));
+            ScoresResponse.From(pooled.Result()[0], null))
+        {
+            Thresholds = [.. thresholds.Select((t, i) => ThresholdScoresResponse.From(t, RiskWindow.Next24h, events[i].Result()))],
+        };
+    }
+
+    /// <summary>The next-24-hour event of each threshold: at least one observed step beyond it, when at least
+    /// 80 % of the window's steps were observed; the reference base rate is that of the window's local month.</summary>
+    private static void ScoreEvents(SiteForecast forecast, bool isDaily, IReadOnlyList<RiskThreshold> thresholds,
+        Dictionary<DateTimeOffset, double> observed, TimeZoneInfo zone, ThresholdScoreAccumulator[] events)
+    {
+        foreach (var risk in forecast.Risk.Where(r => r.Window.Name == RiskWindow.Next24h))
+        {
+            var index = IndexOf(thresholds, risk.Threshold);
+            var times = isDaily
+                ? [risk.Window.From]
+                : Enumerable.Range(0, (int)Math.Round((risk.Window.To - risk.Window.From).TotalHours)).Select(h => risk.Window.From.AddHours(h)).ToArray();
+            var values = times.Where(observed.ContainsKey).Select(t => observed[t]).ToArray();
+            if (index >= 0 && values.Length > 0 && values.Length >= 0.8 * times.Length)
+            {
+                events[index].Add(risk.Probability, values.Any(risk.Threshold.IsBeyond), TimeZoneInfo.ConvertTime(risk.Window.From, zone).Month);
+            }
+        }
+    }
+
+    private static int IndexOf(IReadOnlyList<RiskThreshold> thresholds, RiskThreshold threshold)
+    {
+        for (var i = 0; i < thresholds.Count; i++)
+        {
+            if (thresholds[i] == threshold)
+            {
+                return i;
+            }
+        }
+
+        return -1;
     }
 }

@@ -1,3 +1,4 @@
+using ForecastHub.Api.Http;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Problems;
 using ForecastHub.Storage.Sites;
@@ -11,7 +12,7 @@ public static class VerificationEndpoints
     {
         ArgumentNullException.ThrowIfNull(api);
         var group = api.MapGroup("/sites/{siteId}").WithTags("Verification").RequireAuthorization(AuthPolicies.Read);
-        group.MapGet("/verification", GetVerification).WithName("GetVerification")
+        group.MapGet("/verification", GetVerification).WithName("GetVerification").WithSiteETag()
             .WithSummary("A rolling-origin backtest of the site's own history and the live scores of its archived day-ahead forecasts.")
             .ProducesProblem(StatusCodes.Status409Conflict);
         return group;

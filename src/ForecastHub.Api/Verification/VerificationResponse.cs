@@ -1,3 +1,4 @@
+using ForecastHub.Core.Risk;
 using ForecastHub.Core.Verification;
 
 namespace ForecastHub.Api.Verification;
@@ -16,7 +17,57 @@ public sealed record BacktestResponse(
     int Origins,
     int RefitEveryDays,
     IReadOnlyList<ScoresResponse> Horizons,
-    ScoresResponse Pooled);
+    ScoresResponse Pooled)
+{
+    /// <summary>Per threshold (the site's, and any asked for), the verification of its next-24-hour risk.</summary>
+    public IReadOnlyList<ThresholdScoresResponse> Thresholds { get; init; } = [];
+}
+
+/// <summary>
+/// Verification of one threshold's risk over a window: the Brier score, its skill against the base
+/// rate of the same calendar month (1 - BS / BS_ref) and a reliability table of 10 probability bins.
+/// <c>id</c> is the site threshold's id, null for one asked for in the request. A score that is not a
+/// finite number (skill when the event never happened, so the base rate made no error) is null and
+/// <c>notes</c> says which: JSON has no NaN or Infinity.
+/// </summary>
+public sealed record ThresholdScoresResponse(
+    string? Id,
+    double Threshold,
+    string Direction,
+    string Window,
+    int Count,
+    double? BaseRate,
+    double? Brier,
+    double? ClimatologyBrier,
+    double? BrierSkill,
+    IReadOnlyList<ReliabilityBinResponse> Reliability,
+    IReadOnlyList<string> Notes)
+{
+    public static ThresholdScoresResponse From(RiskThreshold threshold, string window, ThresholdVerification scores)
+    {
+        ArgumentNullException.ThrowIfNull(threshold);
+        ArgumentNullException.ThrowIfNull(scores);
+        var notes = new List<string>();
+        double? Finite(double value, string name)
+        {
+            if (double.IsFinite(value))
+            {
+                return value;
+            }
+            notes.Add($"{name} is not a finite number (no events or no forecasts to score it against) and is given as null.");
+            return null;
+        }
+        return new(threshold.Id, threshold.ValueC, threshold.Direction == Core.Modeling.ThresholdDirection.Below ? "below" : "above", window,
+            scores.Count, Finite(scores.BaseRate, "baseRate"), Finite(scores.Brier, "brier"), Finite(scores.ClimatologyBrier, "climatologyBrier"),
+            Finite(scores.BrierSkill, "brierSkill"),
+            [.. scores.Reliability.Select(b => new ReliabilityBinResponse(b.From, b.To,
+                double.IsFinite(b.ForecastMean) ? b.ForecastMean : null, double.IsFinite(b.ObservedFrequency) ? b.ObservedFrequency : null, b.Count))],
+            notes);
+    }
+}
+
+/// <summary>Forecasts with a probability in [from, to): their mean, how often the event happened, how many (null: none in the bin).</summary>
+public sealed record ReliabilityBinResponse(double From, double To, double? ForecastMean, double? ObservedFrequency, int Count);
 
 /// <summary>Scores as in DESIGN section 4. Bias is mean(forecast - observed); levels are percentages.
 /// A score that is not a finite number (skill against a reference that made no error, say) is null,

@@ -17,12 +17,15 @@ public sealed class VerificationService(
     IForecastArchive archive,
     TimeProvider clock)
 {
+    /// <summary>The service's hourly backtest stays at 60 days (its cost is paid on a dashboard view); the CLI backtests a year.</summary>
     public const int HourlyBacktestDays = 60;
     public const int DailyBacktestDays = 730;
     public const int RefitEveryDays = 7;
+
+    public const int HourlyRefitEveryDays = 7;
     public const int MaxLiveDays = 90;
 
-    private readonly ConcurrentDictionary<string, (DateTimeOffset FittedAt, BacktestResponse? Backtest)> backtests = new(StringComparer.Ordinal);
+    private readonly ConcurrentDictionary<string, (DateTimeOffset FittedAt, string RiskKey, BacktestResponse? Backtest)> backtests = new(StringComparer.Ordinal);
 
     /// <summary>Null when the site has no model yet.</summary>
     public async Task<VerificationResponse?> GetAsync(SiteRecord site, CancellationToken cancellationToken)
@@ -36,7 +39,7 @@ public sealed class VerificationService(
 
         var now = clock.GetUtcNow();
         BacktestResponse? backtest;
-        if (backtests.TryGetValue(site.Id, out var cached) && cached.FittedAt == model.Stored.FittedAt)
+        if (backtests.TryGetValue(site.Id, out var cached) && cached.FittedAt == model.Stored.FittedAt && cached.RiskKey == site.Risk.Key)
         {
             backtest = cached.Backtest;
         }
@@ -46,8 +49,10 @@ public sealed class VerificationService(
             var end = model.Stored.DataEnd;
             var readings = await grids.ReadAsync(site, end.AddDays(-(days + site.Model.FitWindowDays)),
                 SiteGridLoader.NextStep(site, SiteGridLoader.AlignDown(site, end)), cancellationToken);
-            backtest = readings is null ? null : Backtester.Run(site, readings, end, days, RefitEveryDays);
-            backtests[site.Id] = (model.Stored.FittedAt, backtest);
+            var refitEvery = site.IsDaily ? RefitEveryDays : HourlyRefitEveryDays;
+            backtest = readings is null ? null
+                : Backtester.Run(site, readings, end, days, refitEvery, site.Risk.WithQueryThresholds([], []));
+            backtests[site.Id] = (model.Stored.FittedAt, site.Risk.Key, backtest);
         }
 
         var from = DateOnly.FromDateTime(now.UtcDateTime).AddDays(-MaxLiveDays);

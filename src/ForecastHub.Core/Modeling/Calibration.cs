@@ -36,15 +36,17 @@ public static class Calibration
     {
         ArgumentNullException.ThrowIfNull(table);
         GaussianInterval.Multiplier(level);
-        var row = table.Quantiles[Math.Clamp(horizon, 1, table.Quantiles.Count) - 1];
+        var row = Row(table, horizon);
         return new PredictionInterval(level, mean + sd * Quantile(row, (1 - level) / 2), mean + sd * Quantile(row, (1 + level) / 2));
     }
 
     /// <summary>Quantile of the standardised error at probability p: linear in the normal score between table points, extrapolated beyond them.</summary>
-    public static double Quantile(IReadOnlyList<double> row, double p)
+    public static double Quantile(IReadOnlyList<double> row, double p) => QuantileAtScore(row, Normal.InvCDF(0, 1, p));
+
+    /// <summary>The standardised error at normal score z (the quantile at probability Phi(z)); piecewise linear in z.</summary>
+    public static double QuantileAtScore(IReadOnlyList<double> row, double z)
     {
         ArgumentNullException.ThrowIfNull(row);
-        var z = Normal.InvCDF(0, 1, p);
         var i = 1;
         while (i < Scores.Length - 1 && Scores[i] < z)
         {
@@ -53,6 +55,35 @@ public static class Calibration
 
         var w = (z - Scores[i - 1]) / (Scores[i] - Scores[i - 1]);
         return row[i - 1] + w * (row[i] - row[i - 1]);
+    }
+
+    /// <summary>
+    /// The inverse of <see cref="QuantileAtScore"/>: the smallest normal score z with Q(z) >= x, so P(error &lt; x) = Phi(z).
+    /// A flat end segment that x lies beyond gives -infinity or +infinity.
+    /// </summary>
+    public static double ScoreOf(IReadOnlyList<double> row, double x)
+    {
+        ArgumentNullException.ThrowIfNull(row);
+        var i = 1;
+        while (i < Scores.Length - 1 && row[i] < x)
+        {
+            i++;
+        }
+
+        var rise = row[i] - row[i - 1];
+        if (rise > 0)
+        {
+            return Scores[i - 1] + (x - row[i - 1]) / rise * (Scores[i] - Scores[i - 1]);
+        }
+
+        return x < row[i - 1] ? double.NegativeInfinity : x > row[i] ? double.PositiveInfinity : Scores[i - 1];
+    }
+
+    /// <summary>The calibration row used at a horizon (1-based); beyond the table the last row.</summary>
+    public static double[] Row(CalibrationTable table, int horizon)
+    {
+        ArgumentNullException.ThrowIfNull(table);
+        return table.Quantiles[Math.Clamp(horizon, 1, table.Quantiles.Count) - 1];
     }
 
     /// <param name="x">The climatology design columns at the window's times (null for a level-only design): fold

@@ -1,4 +1,5 @@
 using ForecastHub.Core.Forecasting;
+using ForecastHub.Core.Risk;
 
 namespace ForecastHub.Core.Modeling;
 
@@ -15,7 +16,11 @@ public sealed record Threshold(double Value, ThresholdDirection Direction);
 
 /// <summary>One forecast step; Horizon counts steps from the newest data (so it exceeds the step's
 /// position when the newest grid steps were missing).</summary>
-public sealed record ForecastStep(DateTimeOffset Time, int Horizon, double Mean, double Sd, IReadOnlyList<PredictionInterval> Intervals);
+public sealed record ForecastStep(DateTimeOffset Time, int Horizon, double Mean, double Sd, IReadOnlyList<PredictionInterval> Intervals)
+{
+    /// <summary>Chance of the step's value lying beyond each threshold of the risk request, from the interval's distribution.</summary>
+    public IReadOnlyList<StepProbability> Probabilities { get; init; } = [];
+}
 
 /// <summary>A distribution summarised by its mean and central intervals.</summary>
 public sealed record DistributionSummary(double Mean, IReadOnlyList<PredictionInterval> Intervals);
@@ -45,4 +50,8 @@ public sealed record SiteForecast(
     IntervalMethod IntervalMethod,
     IReadOnlyList<ForecastStep> Steps,
     NextDaySummary? NextDay,
-    IReadOnlyList<string> Notes);
+    IReadOnlyList<string> Notes)
+{
+    /// <summary>Per threshold and window of the risk request; empty without one.</summary>
+    public IReadOnlyList<WindowRisk> Risk { get; init; } = [];
+}

@@ -1,5 +1,6 @@
 using ForecastHub.Core.Forecasting;
 using ForecastHub.Core.Grid;
+using ForecastHub.Core.Risk;
 using ForecastHub.Core.Series;
 
 namespace ForecastHub.Core.Modeling;
@@ -30,7 +31,8 @@ public static class SiteForecaster
         IReadOnlyList<double> levels,
         IReadOnlyList<Threshold> thresholds,
         int seed,
-        int paths = DefaultPaths)
+        int paths = DefaultPaths,
+        RiskRequest? risk = null)
     {
         ArgumentNullException.ThrowIfNull(model);
         ArgumentNullException.ThrowIfNull(recent);
@@ -61,6 +63,10 @@ public static class SiteForecaster
         var horizons = walked + steps;
         NextDayPlan? plan = model.Cadence == GridCadence.Hourly && paths > 0 ? PlanNextDay(recent, start, zone) : null;
         var total = Math.Max(horizons, plan?.Last ?? 0);
+        if (risk is not null)
+        {
+            total = Math.Max(total, RiskWindows.HorizonsNeeded(model.Cadence, recent.Times[last], risk.Now));
+        }
 
         var ar = model.Ar;
         var anomalies = new double[start + 1];
@@ -118,11 +124,37 @@ public static class SiteForecaster
             var intervals = levels.Select(level => table is null
                 ? GaussianInterval.Of(mean[k], sd[k], level)
                 : Calibration.Interval(table, k + 1, mean[k], sd[k], level)).ToArray();
-            result[s] = new ForecastStep(times[k], k + 1, mean[k], sd[k], intervals);
+            result[s] = new ForecastStep(times[k], k + 1, mean[k], sd[k], intervals)
+            {
+                Probabilities = risk is null ? [] : StepProbabilities(PredictiveDistribution.Of(mean[k], sd[k], table, k + 1), risk.Thresholds),
+            };
         }
 
         var nextDay = plan is { } p ? Summarise(model, table, p, mean, g, levels, thresholds, paths, seed) : null;
-        return new SiteForecast(recent.Times[last], missing, table is null ? IntervalMethod.Gaussian : IntervalMethod.Calibrated, result, nextDay, notes);
+        var risks = risk is null || paths == 0 ? [] : AssessRisk(model, table, risk, zone, times, mean, sd, g, levels, paths, seed);
+        return new SiteForecast(recent.Times[last], missing, table is null ? IntervalMethod.Gaussian : IntervalMethod.Calibrated, result, nextDay, notes)
+        {
+            Risk = risks,
+        };
+    }
+
+    private static StepProbability[] StepProbabilities(PredictiveDistribution distribution, IReadOnlyList<RiskThreshold> thresholds) =>
+        [.. thresholds.Select(t => new StepProbability(t.Id, t.ValueC, t.Direction, distribution.Probability(t.Direction, t.ValueC)))];
+
+    private static IReadOnlyList<WindowRisk> AssessRisk(SiteModel model, CalibrationTable? table, RiskRequest risk, TimeZoneInfo zone,
+        DateTimeOffset[] times, double[] mean, double[] sd, double[] g, IReadOnlyList<double> levels, int paths, int seed)
+    {
+        var windows = RiskWindows.Plan(model.Cadence, zone, risk.Night, risk.Now, times);
+        if (windows.Count == 0 || risk.Thresholds.Count == 0)
+        {
+            return [];
+        }
+
+        var horizons = windows.Max(w => w.LastHorizon);
+        var distributions = Enumerable.Range(0, horizons).Select(k => PredictiveDistribution.Of(mean[k], sd[k], table, k + 1)).ToArray();
+        var sample = SamplePaths.Simulate(model.Ar, g, sd, horizons, paths, seed);
+        var stepHours = model.Cadence == GridCadence.Hourly ? 1.0 : 0.0;
+        return RiskWindows.Assess(distributions, times, stepHours, sample, windows, risk.Thresholds, levels);
     }
 
     private sealed record NextDayPlan(DateOnly Date, DateTimeOffset From, DateTimeOffset To, int First, int Last);

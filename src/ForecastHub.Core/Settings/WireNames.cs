@@ -1,3 +1,4 @@
+using System.Globalization;
 using ForecastHub.Core.Autoregression;
 using ForecastHub.Core.Climatology;
 using ForecastHub.Core.Grid;
@@ -48,4 +49,21 @@ public static class WireNames
     public static readonly WordTable<ThresholdDirection> ThresholdDirections = new(
         (ThresholdDirection.Below, "below"),
         (ThresholdDirection.Above, "above"));
+
+    /// <summary>A local clock time as sites write it ("HH:mm", 00:00 to 23:59, two digits each).</summary>
+    public static string ClockTime(TimeOnly time) => time.ToString("HH:mm", CultureInfo.InvariantCulture);
+
+    /// <summary>The time of a "HH:mm" clock text (two digits each); false for anything else.</summary>
+    public static bool TryParseClockTime(string? text, out TimeOnly time)
+    {
+        time = default;
+        return text is { Length: 5 } && char.IsAsciiDigit(text[0]) && char.IsAsciiDigit(text[1]) && text[2] == ':'
+            && char.IsAsciiDigit(text[3]) && char.IsAsciiDigit(text[4])
+            && TimeOnly.TryParseExact(text, "HH:mm", CultureInfo.InvariantCulture, DateTimeStyles.None, out time);
+    }
+
+    /// <summary>The time of a stored "HH:mm" clock text; anything else is a corrupt record.</summary>
+    public static TimeOnly ParseClockTime(string text) => TryParseClockTime(text, out var time)
+        ? time
+        : throw new FormatException($"'{text}' is not a clock time HH:mm.");
 }

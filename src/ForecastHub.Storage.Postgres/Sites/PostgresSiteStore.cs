@@ -11,7 +11,7 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
         id, name, time_zone, cadence, daily_statistic, latitude, longitude, elevation_m,
         min_c, max_c, max_step_c_per_hour, flatline_hours,
         seasonality, method, order_policy, max_order, fit_window_days, interval_method,
-        created_at_ms, updated_at_ms, settings_version
+        created_at_ms, updated_at_ms, settings_version, thresholds_json, night_start, night_end
         """;
 
     public Task<bool> CreateAsync(SiteRecord site, CancellationToken cancellationToken = default)
@@ -21,7 +21,7 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
         {
             await using var insert = Bind(connection.Command(transaction, $"""
                 INSERT INTO sites ({Columns})
-                VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16, $17, $18, $19, $20, $21)
+                VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16, $17, $18, $19, $20, $21, $22, $23, $24)
                 ON CONFLICT (id) DO NOTHING;
                 """), site);
             var created = await insert.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false) == 1;
@@ -66,21 +66,15 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
             {
                 return current;
             }
-            var settingsChanged = proposed with { Name = current.Name } != current;
-            var updated = proposed with
-            {
-                Id = current.Id,
-                CreatedAt = current.CreatedAt,
-                UpdatedAt = clock.GetUtcNow(),
-                SettingsVersion = current.SettingsVersion + (settingsChanged ? 1 : 0),
-            };
+            var updated = current.UpdatedTo(proposed, clock.GetUtcNow());
             await using var write = Bind(connection.Command(transaction, """
                 UPDATE sites SET name = $2, time_zone = $3, cadence = $4, daily_statistic = $5,
                     latitude = $6, longitude = $7, elevation_m = $8,
                     min_c = $9, max_c = $10, max_step_c_per_hour = $11, flatline_hours = $12,
                     seasonality = $13, method = $14, order_policy = $15, max_order = $16,
                     fit_window_days = $17, interval_method = $18,
-                    updated_at_ms = $20, settings_version = $21
+                    updated_at_ms = $20, settings_version = $21,
+                    thresholds_json = $22, night_start = $23, night_end = $24
                 WHERE id = $1 AND created_at_ms = $19;
                 """), updated);
             await write.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
@@ -110,7 +104,7 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
         return await reader.ReadAsync(cancellationToken).ConfigureAwait(false) ? ReadSite(reader) : null;
     }
 
-    // Positions $1..$21 follow Columns.
+    // Positions $1..$24 follow Columns.
     private static NpgsqlCommand Bind(NpgsqlCommand command, SiteRecord site) => command
         .With(site.Id)
         .With(site.Name)
@@ -132,7 +126,10 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
         .With(SiteColumns.IntervalMethod(site))
         .With(site.CreatedAt.ToUnixTimeMilliseconds())
         .With(site.UpdatedAt.ToUnixTimeMilliseconds())
-        .With(site.SettingsVersion);
+        .With(site.SettingsVersion)
+        .With(SiteColumns.Thresholds(site))
+        .With(SiteColumns.NightStart(site))
+        .With(SiteColumns.NightEnd(site));
 
     private static SiteRecord ReadSite(NpgsqlDataReader r) => new(
         Id: r.GetString(0),
@@ -147,5 +144,8 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
         Model: SiteColumns.ReadModel(r.GetString(12), r.GetString(13), r.GetString(14), r.GetInt32(15), r.GetInt32(16), r.GetString(17)),
         CreatedAt: NpgsqlExtensions.FromUnixMs(r.GetInt64(18)),
         UpdatedAt: NpgsqlExtensions.FromUnixMs(r.GetInt64(19)),
-        SettingsVersion: r.GetInt64(20));
+        SettingsVersion: r.GetInt64(20))
+    {
+        Risk = SiteColumns.ReadRisk(r.GetString(21), r.GetString(22), r.GetString(23)),
+    };
 }

@@ -11,12 +11,55 @@ public sealed class MigrationRunner(SqliteDatabase database, IReadOnlyList<Migra
     {
     }
 
+    private bool appliedLatest;
+
     /// <summary>The newest version this build knows.</summary>
     public int LatestVersion => migrations.Count == 0 ? 0 : migrations[^1].Version;
 
     /// <summary>Applies migrations up to <paramref name="targetVersion"/> (default: all) and
     /// answers the resulting schema version.</summary>
     public async Task<int> ApplyAsync(int? targetVersion = null, CancellationToken cancellationToken = default)
+    {
+        // The checks read the whole file once; a second call in the same process (the host's start after Program's) skips them.
+        if (targetVersion is null && appliedLatest)
+        {
+            return LatestVersion;
+        }
+        try
+        {
+            CheckBeforeMigrating();
+            var version = await MigrateAsync(targetVersion, cancellationToken).ConfigureAwait(false);
+            appliedLatest = version == LatestVersion;
+            return version;
+        }
+        catch (Exception error) when (error is SqliteException or IOException or UnauthorizedAccessException)
+        {
+            throw StorageStartupException.From(database.FilePath, error);
+        }
+    }
+
+    /// <summary>Refuses a file this build cannot trust: one written by a newer build (a schema
+    /// version above <see cref="LatestVersion"/>), or one SQLite's quick check finds damaged.
+    /// The quick check reads every page once without checking indexes against tables (see
+    /// docs/operations.md for its cost); <c>check-storage</c> runs the full check.</summary>
+    private void CheckBeforeMigrating()
+    {
+        var current = CurrentVersion();
+        if (current > LatestVersion)
+        {
+            throw new StorageStartupException(database.FilePath,
+                $"its schema version is {current}, but this build knows versions up to {LatestVersion}: a newer ForecastHub wrote it. " +
+                "Run that build (or a newer one) on it, or restore a backup taken before the upgrade.");
+        }
+        var problems = database.Check(quick: true, maxProblems: 1);
+        if (problems.Count > 0)
+        {
+            throw new StorageStartupException(database.FilePath,
+                $"SQLite's quick check found damage ({problems[0].ReplaceLineEndings(" ")}); run 'ForecastHub.Api check-storage' for a full report, then restore it from a backup.");
+        }
+    }
+
+    private async Task<int> MigrateAsync(int? targetVersion, CancellationToken cancellationToken)
     {
         using (var connection = database.Open())
         {

@@ -1,5 +1,7 @@
+using System.Text.Json;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Modeling;
+using ForecastHub.Core.Risk;
 using ForecastHub.Core.Settings;
 
 namespace ForecastHub.Storage.Sites;
@@ -34,6 +36,23 @@ public static class SiteColumns
         FitWindowDays = fitWindowDays,
         IntervalMethod = WireNames.IntervalMethods.Parse(intervalMethod),
     };
+
+    /// <summary>The thresholds as a JSON array of {id, direction, valueC, alertProbability} with the wire words.</summary>
+    public static string Thresholds(SiteRecord site) => JsonSerializer.Serialize(
+        Site(site).Risk.Thresholds.Select(t => new ThresholdRow(t.Id, WireNames.ThresholdDirections.Of(t.Direction), t.ValueC, t.AlertProbability)), Json);
+
+    public static string NightStart(SiteRecord site) => WireNames.ClockTime(Site(site).Risk.Night.Start);
+
+    public static string NightEnd(SiteRecord site) => WireNames.ClockTime(Site(site).Risk.Night.End);
+
+    public static SiteRiskSettings ReadRisk(string thresholdsJson, string nightStart, string nightEnd) => new(
+        [.. (JsonSerializer.Deserialize<ThresholdRow[]>(thresholdsJson, Json) ?? [])
+            .Select(t => new SiteThreshold(t.Id, WireNames.ThresholdDirections.Parse(t.Direction), t.ValueC, t.AlertProbability))],
+        new NightHours(WireNames.ParseClockTime(nightStart), WireNames.ParseClockTime(nightEnd)));
+
+    private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web);
+
+    private sealed record ThresholdRow(string Id, string Direction, double ValueC, double? AlertProbability);
 
     private static SiteRecord Site(SiteRecord site) => site ?? throw new ArgumentNullException(nameof(site));
 }

@@ -1,6 +1,7 @@
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
+using ForecastHub.Core.Risk;
 
 namespace ForecastHub.Storage.Sites;
 
@@ -26,4 +27,23 @@ public sealed record SiteRecord(
 
     /// <summary>How this site's readings become its grid.</summary>
     public GridOptions GridOptions => new(Cadence, TimeZone, DailyStatistic ?? Core.Grid.DailyStatistic.Mean);
+
+    /// <summary>Thresholds and night hours; a change re-evaluates risk but needs no refit.</summary>
+    public SiteRiskSettings Risk { get; init; } = SiteRiskSettings.Default;
+
+    /// <summary>The stored record after <paramref name="proposed"/> is applied at <paramref name="now"/>: id and
+    /// creation kept, and the settings version raised only when something a fit depends on changed.</summary>
+    public SiteRecord UpdatedTo(SiteRecord proposed, DateTimeOffset now)
+    {
+        ArgumentNullException.ThrowIfNull(proposed);
+        // Names and risk settings need no refit; a risk change re-evaluates through the forecast cache key.
+        var settingsChanged = proposed with { Name = Name, Risk = Risk } != this;
+        return proposed with
+        {
+            Id = Id,
+            CreatedAt = CreatedAt,
+            UpdatedAt = now,
+            SettingsVersion = SettingsVersion + (settingsChanged ? 1 : 0),
+        };
+    }
 }

@@ -9,7 +9,7 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         id, name, time_zone, cadence, daily_statistic, latitude, longitude, elevation_m,
         min_c, max_c, max_step_c_per_hour, flatline_hours,
         seasonality, method, order_policy, max_order, fit_window_days, interval_method,
-        created_at_ms, updated_at_ms, settings_version
+        created_at_ms, updated_at_ms, settings_version, thresholds_json, night_start, night_end
         """;
 
     public Task<bool> CreateAsync(SiteRecord site, CancellationToken cancellationToken = default)
@@ -20,7 +20,7 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
             using var insert = connection.Command(transaction, $"""
                 INSERT INTO sites ({Columns})
                 VALUES ($id, $name, $tz, $cadence, $daily, $lat, $lon, $elev, $minC, $maxC, $step, $flat,
-                        $seasonality, $method, $policy, $maxOrder, $window, $interval, $created, $updated, $version)
+                        $seasonality, $method, $policy, $maxOrder, $window, $interval, $created, $updated, $version, $thresholds, $nightStart, $nightEnd)
                 ON CONFLICT (id) DO NOTHING;
                 """);
             Bind(insert, site);
@@ -62,21 +62,15 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
             {
                 return current;
             }
-            var settingsChanged = proposed with { Name = current.Name } != current;
-            var updated = proposed with
-            {
-                Id = current.Id,
-                CreatedAt = current.CreatedAt,
-                UpdatedAt = clock.GetUtcNow(),
-                SettingsVersion = current.SettingsVersion + (settingsChanged ? 1 : 0),
-            };
+            var updated = current.UpdatedTo(proposed, clock.GetUtcNow());
             using var write = connection.Command(transaction, """
                 UPDATE sites SET name = $name, time_zone = $tz, cadence = $cadence, daily_statistic = $daily,
                     latitude = $lat, longitude = $lon, elevation_m = $elev,
                     min_c = $minC, max_c = $maxC, max_step_c_per_hour = $step, flatline_hours = $flat,
                     seasonality = $seasonality, method = $method, order_policy = $policy, max_order = $maxOrder,
                     fit_window_days = $window, interval_method = $interval,
-                    updated_at_ms = $updated, settings_version = $version
+                    updated_at_ms = $updated, settings_version = $version,
+                    thresholds_json = $thresholds, night_start = $nightStart, night_end = $nightEnd
                 WHERE id = $id;
                 """);
             Bind(write, updated);
@@ -120,7 +114,10 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         .With("$interval", SiteColumns.IntervalMethod(site))
         .With("$created", site.CreatedAt.ToUnixTimeMilliseconds())
         .With("$updated", site.UpdatedAt.ToUnixTimeMilliseconds())
-        .With("$version", site.SettingsVersion);
+        .With("$version", site.SettingsVersion)
+        .With("$thresholds", SiteColumns.Thresholds(site))
+        .With("$nightStart", SiteColumns.NightStart(site))
+        .With("$nightEnd", SiteColumns.NightEnd(site));
 
     private static SiteRecord ReadSite(SqliteDataReader r) => new(
         Id: r.GetString(0),
@@ -135,5 +132,8 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         Model: SiteColumns.ReadModel(r.GetString(12), r.GetString(13), r.GetString(14), r.GetInt32(15), r.GetInt32(16), r.GetString(17)),
         CreatedAt: SqliteExtensions.FromUnixMs(r.GetInt64(18)),
         UpdatedAt: SqliteExtensions.FromUnixMs(r.GetInt64(19)),
-        SettingsVersion: r.GetInt64(20));
+        SettingsVersion: r.GetInt64(20))
+    {
+        Risk = SiteColumns.ReadRisk(r.GetString(21), r.GetString(22), r.GetString(23)),
+    };
 }

@@ -99,6 +99,43 @@ public sealed class OfflineVerbsTests : IDisposable
     }
 
     [Fact]
+    public async Task BacktestWithThresholdsReportsBrierSkillAndReliabilityPerThreshold()
+    {
+        var csv = HourlyCsv(days: 100);
+
+        var (code, text, errors) = await Run("backtest", csv, "--test-days", "20", "--below", "2,4", "--above", "20");
+
+        Assert.True(code == 0, errors);
+        using var json = JsonDocument.Parse(await File.ReadAllTextAsync(Path.Combine(folder, "logger.backtest.json")));
+        var thresholds = json.RootElement.GetProperty("backtest").GetProperty("thresholds").EnumerateArray().ToArray();
+        Assert.Equal(3, thresholds.Length);
+        Assert.Equal(["below", "below", "above"], thresholds.Select(t => t.GetProperty("direction").GetString()));
+        foreach (var t in thresholds)
+        {
+            var count = t.GetProperty("count").GetInt32();
+            Assert.InRange(count, 15, 20);
+            var bins = t.GetProperty("reliability").EnumerateArray().ToArray();
+            Assert.Equal(10, bins.Length);
+            Assert.Equal(count, bins.Sum(b => b.GetProperty("count").GetInt32()));
+            Assert.InRange(t.GetProperty("brier").GetDouble(), 0, 1);
+        }
+
+        Assert.Contains("Brier", text, StringComparison.Ordinal);
+        Assert.Contains("same-month base rate", text, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public async Task BadThresholdOptionIsRefusedWithItsName()
+    {
+        var csv = HourlyCsv(days: 30);
+
+        var (code, _, errors) = await Run("backtest", csv, "--below", "frost");
+
+        Assert.Equal(2, code);
+        Assert.Contains("--below", errors, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public async Task BadRowsAreListedWithTheirLineAndTheRestIsFitted()
     {
         var csv = HourlyCsv(days: 60, "bad.csv", "2025-02-30T10:00:00+00:00,3.2", "2025-03-01T10:00:00,3.2");

@@ -12,6 +12,8 @@ public sealed class KubernetesManifestTests
         .SelectMany(Yaml.LoadDocuments)
         .ToList();
 
+    private static YamlMappingNode Kustomization => Yaml.LoadDocuments(Path.Combine(Folder, "kustomization.yaml")).Single();
+
     private static YamlMappingNode StatefulSet => Objects.Single(o => o.Str("kind") == "StatefulSet");
 
     private static YamlMappingNode Container => StatefulSet.Map("spec").Map("template").Map("spec").Seq("containers").Maps().Single();
@@ -31,7 +33,7 @@ public sealed class KubernetesManifestTests
     [Fact]
     public void KustomizationListsEveryManifestFile()
     {
-        var listed = Yaml.LoadDocuments(Path.Combine(Folder, "kustomization.yaml")).Single().Seq("resources").Scalars().Order();
+        var listed = Kustomization.Seq("resources").Scalars().Order();
         var present = Directory.GetFiles(Folder, "*.yaml").Select(Path.GetFileName).Where(n => n != "kustomization.yaml").Order();
 
         Assert.Equal(present, listed);
@@ -66,12 +68,17 @@ public sealed class KubernetesManifestTests
     }
 
     [Fact]
-    public void AdminKeyComesFromTheSecretInTheManifests()
+    public void AdminKeyComesFromASecretThatKustomizeGeneratesFromAnIgnoredFile()
     {
         var reference = Container.Seq("env").Maps().Single(e => e.Str("name") == "Auth__AdminKey").Map("valueFrom").Map("secretKeyRef");
-        var secret = Objects.Single(o => o.Str("kind") == "Secret" && o.Map("metadata").Str("name") == reference.Str("name"));
+        var generator = Kustomization.Seq("secretGenerator").Maps().Single(g => g.Str("name") == reference.Str("name"));
+        var envFile = generator.Seq("envs").Scalars().Single();
+        var ignored = File.ReadAllLines(RepoFiles.PathOf(".gitignore"));
 
-        Assert.True(secret.Map("stringData").Has(reference.Str("key")), $"secret lacks key '{reference.Str("key")}'");
+        Assert.Equal("admin-key", reference.Str("key"));
+        Assert.Contains("deploy/kubernetes/" + envFile, ignored);
+        Assert.DoesNotContain(Objects, o => o.Str("kind") == "Secret");
+        Assert.Contains($"{reference.Str("key")}=", File.ReadAllText(Path.Combine(Folder, "kustomization.yaml")), StringComparison.Ordinal);
     }
 
     [Fact]

@@ -24,8 +24,8 @@ public sealed class ServiceProcess : IAsyncDisposable
 
     public bool HasExited => _process.HasExited;
 
-    public static Task<ServiceProcess> StartAsync(string databasePath, TimeSpan? readyWithin = null) =>
-        StartAsync(Path.GetDirectoryName(databasePath)!, [$"--Storage:Path={databasePath}"], readyWithin);
+    public static Task<ServiceProcess> StartAsync(string databasePath, TimeSpan? readyWithin = null, IReadOnlyList<string>? extraArgs = null) =>
+        StartAsync(Path.GetDirectoryName(databasePath)!, [$"--Storage:Path={databasePath}", .. extraArgs ?? []], readyWithin);
 
     /// <summary>A node on the PostgreSQL database of <paramref name="connectionString"/>, with more settings as <c>--Key=value</c> arguments.</summary>
     public static Task<ServiceProcess> StartOnPostgresAsync(string connectionString, params string[] settings) =>
@@ -63,6 +63,38 @@ public sealed class ServiceProcess : IAsyncDisposable
         var service = new ServiceProcess(process, baseAddress);
         await service.WaitUntilReady(readyWithin ?? TimeSpan.FromSeconds(60));
         return service;
+    }
+
+    /// <summary>Runs the built service with <paramref name="arguments"/> until it exits by itself
+    /// (a start-up that fails, or a command-line verb) and answers its exit code and output.</summary>
+    public static async Task<(int ExitCode, string Output, string Error)> RunToExitAsync(IEnumerable<string> arguments, TimeSpan within)
+    {
+        var start = new ProcessStartInfo("dotnet")
+        {
+            WorkingDirectory = Path.GetTempPath(),
+            RedirectStandardOutput = true,
+            RedirectStandardError = true,
+            UseShellExecute = false,
+        };
+        start.ArgumentList.Add(Path.Combine(AppContext.BaseDirectory, "ForecastHub.Api.dll"));
+        foreach (var argument in arguments)
+        {
+            start.ArgumentList.Add(argument);
+        }
+        start.Environment["ASPNETCORE_ENVIRONMENT"] = "Production";
+        using var process = Process.Start(start)!;
+        var output = process.StandardOutput.ReadToEndAsync();
+        var error = process.StandardError.ReadToEndAsync();
+        try
+        {
+            await process.WaitForExitAsync().WaitAsync(within);
+        }
+        catch (TimeoutException)
+        {
+            await ChildProcesses.KillAsync(process);
+            throw new TimeoutException($"The service did not exit within {within.TotalSeconds.ToString(CultureInfo.InvariantCulture)} s; output: {await output}");
+        }
+        return (process.ExitCode, await output, await error);
     }
 
     public HttpClient CreateAdminClient()

@@ -134,7 +134,7 @@ public sealed class ModelLifecycleTests
         Assert.StartsWith("text/plain", response.Content.Headers.ContentType?.MediaType, StringComparison.Ordinal);
         Assert.Contains("forecasthub_readings_total{outcome=\"accepted\"} 192\n", text, StringComparison.Ordinal);
         Assert.Contains("forecasthub_fits_total{outcome=\"ok\"} ", text, StringComparison.Ordinal);
-        Assert.Contains("forecasthub_fit_duration_seconds_count ", text, StringComparison.Ordinal);
+        Assert.Matches(@"(?m)^forecasthub_fit_duration_seconds_count(\{\})? [1-9][0-9]*$", text);
         Assert.Contains("forecasthub_forecast_duration_seconds_count{cache=\"miss\"} 1\n", text, StringComparison.Ordinal);
         Assert.Contains("forecasthub_sites{state=\"ok\"} 1\n", text, StringComparison.Ordinal);
         Assert.Contains("# TYPE forecasthub_fit_duration_seconds histogram\n", text, StringComparison.Ordinal);

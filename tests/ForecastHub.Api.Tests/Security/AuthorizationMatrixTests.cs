@@ -72,6 +72,12 @@ public sealed class AuthorizationMatrixTests
         ["GET /api/v1/sites/{siteId}/health"] = Access.Read,
         ["GET /api/v1/health/models"] = Access.Read,
         ["GET /metrics"] = Access.Read,
+        ["POST /api/v1/webhooks"] = Access.Admin,
+        ["GET /api/v1/webhooks"] = Access.Admin,
+        ["GET /api/v1/webhooks/{webhookId}"] = Access.Admin,
+        ["DELETE /api/v1/webhooks/{webhookId}"] = Access.Admin,
+        ["GET /api/v1/webhooks/{webhookId}/deliveries"] = Access.Admin,
+        ["GET /api/v1/alerts"] = Access.Read,
     };
 
     [Fact]
@@ -195,7 +201,8 @@ public sealed class AuthorizationMatrixTests
     private static async Task<string> FillRoute(string pattern, HttpClient admin)
     {
         var path = pattern.Replace("{siteId}", ThisSite, StringComparison.Ordinal)
-            .Replace("{file}", "app.js", StringComparison.Ordinal);
+            .Replace("{file}", "app.js", StringComparison.Ordinal)
+            .Replace("{webhookId}", "wh-0123456789abcdef", StringComparison.Ordinal);
         if (path.Contains("{keyId}", StringComparison.Ordinal))
         {
             // A fresh key each time, so revoking it spends none of the matrix's own keys.

@@ -3,6 +3,7 @@ using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Keys;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Readings;
+using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Verification;
 
 namespace ForecastHub.Storage.Tests.Postgres;

@@ -6,7 +6,9 @@ const HISTORY_HOURS = 72;
 // Each card costs two calls; more sites than this are counted but not drawn (rate limits, page size).
 const MAX_CARDS = 24;
 const LEVELS = [80, 95];
-const state = { sites: [], selected: null, below: 0, above: null };
+// The page reloads the selected site's forecast and risk this often.
+const REFRESH_MS = 5 * 60 * 1000;
+const state = { sites: [], selected: null, editing: false };
 
 class ApiError extends Error {
   constructor(status, problem) {
@@ -16,11 +18,12 @@ class ApiError extends Error {
   }
 }
 
-async function getJson(path) {
+async function getJson(path, init) {
   const headers = { Accept: "application/json" };
   const key = sessionStorage.getItem(KEY_STORAGE);
   if (key) headers.Authorization = `Bearer ${key}`;
-  const response = await fetch(path, { headers });
+  if (init && init.body) headers["Content-Type"] = "application/json";
+  const response = await fetch(path, Object.assign({ headers }, init || {}));
   if (!response.ok) {
     let problem = null;
     try { problem = await response.json(); } catch { problem = null; }
@@ -188,22 +191,21 @@ async function selectSite(siteId) {
 }
 
 function forecastPath(base) {
-  const params = new URLSearchParams({ levels: LEVELS.join(",") });
-  if (isFinite(state.below)) params.set("below", String(state.below));
-  if (state.above !== null && isFinite(state.above)) params.set("above", String(state.above));
-  return `${base}/forecast?${params}`;
+  return `${base}/forecast?${new URLSearchParams({ levels: LEVELS.join(",") })}`;
 }
 
 function renderSite(data) {
   const { site, health, model, forecast } = data;
   const ok = v => v && !(v instanceof Error);
-  const parts = [siteHeader(site, health)];
   const noModelReason = !health || !health.modelFittedAt
     ? `No model yet: ${reasonText(health) || "the site needs more data before a model can be fitted."}`
     : null;
+  const parts = [riskPanel(site, ok(forecast) ? forecast : null, noModelReason || errorText(forecast)), siteHeader(site, health)];
   parts.push(h("div", { class: "row row-forecast" },
     forecastPanel(site, data.observations, ok(forecast) ? forecast : null, noModelReason || errorText(forecast)),
     ok(forecast) ? nextDayPanel(site, forecast) : unavailable("Tomorrow", noModelReason || errorText(forecast))));
+  parts.push(thresholdEditor(site));
+  parts.push(h("h2", { class: "diagnostics-heading", id: "diagnostics-heading" }, "Behind the forecast: how the model was built and how well it has done"));
   if (ok(model)) {
     parts.push(h("div", { class: "row row-three" }, acfPanel(model), pacfPanel(model), criteriaPanel(model)));
     parts.push(h("div", { class: "row row-three" }, modelPanel(model), residualPanel(model),
@@ -244,7 +246,7 @@ function forecastPanel(site, observations, forecast, missingText) {
   const steps = forecast ? forecast.steps.map(stepPoint) : [];
   const chart = Charts.forecast(historyPoints, steps, {
     originMs: forecast ? Date.parse(forecast.origin) : NaN,
-    threshold: state.below,
+    threshold: (site.thresholds || []).length ? site.thresholds[0].valueC : NaN,
     unit: "°C",
     timeZone: site.timeZone,
   });
@@ -253,7 +255,7 @@ function forecastPanel(site, observations, forecast, missingText) {
     forecast ? h("li", {}, h("span", { class: "swatch forecast" }), "forecast mean (dashed)") : null,
     forecast ? h("li", {}, h("span", { class: "swatch b80" }), "80 % interval (darker)") : null,
     forecast ? h("li", {}, h("span", { class: "swatch b95" }), "95 % interval (lighter)") : null,
-    h("li", {}, h("span", { class: "swatch threshold" }), `threshold ${num(state.below)} °C (dotted)`),
+    (site.thresholds || []).length ? h("li", {}, h("span", { class: "swatch threshold" }), `${site.thresholds[0].id} ${num(site.thresholds[0].valueC)} °C (dotted)`) : null,
     historyPoints.some(p => p.flagged) ? h("li", {}, h("span", { class: "swatch flag" }), "flagged reading (×), left out of fitting") : null);
   const why = forecast
     ? `Last ${HISTORY_HOURS} hours measured, then ${forecast.steps.length} steps ahead from ${localTime(forecast.origin, site.timeZone)}. ` +
@@ -276,34 +278,18 @@ function stepPoint(step) {
 
 function nextDayPanel(site, forecast) {
   const day = forecast.nextDay;
-  const form = h("form", { class: "threshold-form", id: "threshold-form" },
-    h("label", { for: "below" }, "Below"),
-    h("input", { id: "below", type: "number", step: "0.5", value: state.below, "aria-describedby": "below-hint" }),
-    h("span", { id: "below-hint" }, "°C"),
-    h("label", { for: "above" }, "above"),
-    h("input", { id: "above", type: "number", step: "0.5", value: state.above ?? "", placeholder: "none" }),
-    h("span", {}, "°C"),
-    h("button", { type: "submit" }, "Update"));
-  form.addEventListener("submit", event => {
-    event.preventDefault();
-    const below = parseFloat(form.querySelector("#below").value);
-    const above = parseFloat(form.querySelector("#above").value);
-    state.below = isFinite(below) ? below : 0;
-    state.above = isFinite(above) ? above : null;
-    selectSite(state.selected);
-  });
   if (!day) {
-    return panel("Tomorrow", "The next-day summary is given for hourly sites.", form);
+    return panel("Tomorrow", "The next-day summary is given for hourly sites; a daily site's risk for tomorrow is at the top.");
   }
   const interval80 = s => {
     const i = (s && s.intervals || []).find(x => Number(x.level) === 80);
     return i ? `80 %: ${num(i.lower)} to ${num(i.upper)} °C` : "";
   };
   const row = (label, s) => [h("dt", {}, label), h("dd", {}, h("span", { class: "big" }, degrees(s && s.mean)), h("span", { class: "range" }, interval80(s)))];
-  const probabilities = (day.probabilities || []).map(p => {
+  const probabilities = (forecast.risk || []).filter(r => r.window.name === "next24h").map(r => ({ threshold: r.threshold, direction: r.direction, probability: r.probability })).map(p => {
     const words = p.direction === "above"
-      ? `chance the temperature rises above ${num(p.threshold)} °C on ${day.date}`
-      : `chance the temperature falls below ${num(p.threshold)} °C on ${day.date}`;
+      ? `chance of rising above ${num(p.threshold)} °C in the next 24 hours`
+      : `chance of falling below ${num(p.threshold)} °C in the next 24 hours`;
     const meter = h("span", { class: "meter", role: "presentation" }, h("span", {}));
     meter.firstChild.style.width = `${Math.round(100 * Math.min(1, Math.max(0, p.probability)))}%`;
     return h("div", { class: "probability", "data-direction": p.direction },
@@ -313,8 +299,159 @@ function nextDayPanel(site, forecast) {
     h("h3", {}, "Tomorrow"),
     h("p", { class: "date" }, `${day.date}, local day in ${site.timeZone}; from simulated paths of the model.`),
     h("dl", {}, row("Minimum", day.min), row("Maximum", day.max), row("Mean", day.mean)),
-    form,
-    probabilities.length ? probabilities : h("p", { class: "note" }, "No threshold asked."));
+    probabilities.length ? probabilities : h("p", { class: "note" }, "No threshold set for this site."));
+}
+
+// ---- risk: the coming night first --------------------------------------------------------
+
+const CONFIDENCE_LABELS = {
+  "stale": "the data or the model is out of date",
+  "sensor-suspect": "the sensor looks suspect",
+  "drifting": "the model no longer fits this site well",
+};
+
+function riskPanel(site, forecast, missingText) {
+  const daily = site.cadence === "daily";
+  const title = daily ? `Tomorrow at ${site.name || site.id}` : `Tonight at ${site.name || site.id}`;
+  if (!forecast) {
+    return h("section", { class: "panel risk unavailable", id: "risk-panel" }, h("h2", {}, title), h("p", { class: "note" }, missingText || "No forecast yet."));
+  }
+  const windowName = daily ? "next24h" : "night";
+  const risks = (forecast.risk || []).filter(r => r.window.name === windowName && r.id);
+  const confidence = forecast.confidence === "reduced" && forecast.confidenceReason
+    ? h("p", { class: "confidence reduced", id: "confidence", "data-reason": forecast.confidenceReason.code, role: "note" },
+      h("strong", {}, `Reduced confidence: ${CONFIDENCE_LABELS[forecast.confidenceReason.code] || forecast.confidenceReason.code}. `),
+      forecast.confidenceReason.message)
+    : null;
+  const first = risks[0];
+  const span = first
+    ? `${localTime(first.window.from, site.timeZone)} to ${localTime(first.window.to, site.timeZone)}`
+    : "";
+  const body = risks.length
+    ? risks.map(r => riskRow(site, forecast, r, daily))
+    : [h("p", { class: "note" }, "No thresholds set for this site yet. Add the level that matters (for example frost below 0 °C) under “Thresholds for this site” below.")];
+  return h("section", { class: "panel risk", id: "risk-panel" },
+    h("h2", {}, title),
+    span ? h("p", { class: "why" }, `${daily ? "The next local day" : "The night"}, ${span} (${site.timeZone}). Chances from simulated paths of this site's model.`) : null,
+    confidence,
+    ...body);
+}
+
+function riskRow(site, forecast, r, daily) {
+  const verb = r.direction === "below" ? "below" : "above";
+  const alerting = typeof r.alertProbability === "number" && r.probability >= r.alertProbability;
+  const crossing = r.firstCrossing
+    ? `Most likely first ${verb} at ${localTime(r.firstCrossing.median, site.timeZone, false)}` +
+      (r.firstCrossing.p10 !== r.firstCrossing.p90 ? ` (8 in 10 paths between ${localTime(r.firstCrossing.p10, site.timeZone, false)} and ${localTime(r.firstCrossing.p90, site.timeZone, false)})` : "") + "."
+    : `No simulated path goes ${verb} ${num(r.threshold)} °C.`;
+  const hours = typeof r.expectedHoursBeyond === "number" ? `Expected ${num(r.expectedHoursBeyond)} hours ${verb}.` : "";
+  const steps = (forecast.steps || []).filter(s => Date.parse(s.time) + 3600e3 > Date.parse(r.window.from) && Date.parse(s.time) < Date.parse(r.window.to));
+  return h("div", { class: `risk-row${alerting ? " alerting" : ""}`, "data-threshold": r.id, "data-probability": r.probability },
+    h("div", { class: "risk-head" },
+      h("span", { class: "risk-chance" }, percent(r.probability)),
+      h("span", { class: "risk-label" }, `chance of ${r.id}: ${verb} ${num(r.threshold)} °C${daily ? " tomorrow" : " tonight"}`,
+        alerting ? h("span", { class: "alert-flag" }, ` at or above the alert level of ${percent(r.alertProbability)}`) : null)),
+    daily ? null : hourStrip(site, steps, r),
+    h("p", { class: "risk-facts" }, crossing, " ", hours));
+}
+
+// One cell per hour of the window; the darker the cell, the likelier that hour is beyond the threshold.
+function hourStrip(site, steps, r) {
+  const width = 360, height = 46, cell = steps.length ? width / steps.length : width;
+  const ns = "http://www.w3.org/2000/svg";
+  const root = document.createElementNS(ns, "svg");
+  root.setAttribute("viewBox", `0 0 ${width} ${height}`);
+  root.setAttribute("class", "risk-strip");
+  root.setAttribute("role", "img");
+  root.setAttribute("data-hours", String(steps.length));
+  root.setAttribute("aria-label", `Chance per hour of being ${r.direction} ${r.threshold} °C`);
+  steps.forEach((s, i) => {
+    const p = ((s.probabilities || []).find(x => x.id === r.id) || {}).probability || 0;
+    const rect = document.createElementNS(ns, "rect");
+    rect.setAttribute("class", "hour");
+    rect.setAttribute("x", String(i * cell + 0.5));
+    rect.setAttribute("y", "2");
+    rect.setAttribute("width", String(Math.max(1, cell - 1)));
+    rect.setAttribute("height", "26");
+    rect.setAttribute("fill-opacity", String(0.08 + 0.92 * Math.min(1, Math.max(0, p))));
+    rect.setAttribute("data-probability", String(p));
+    const tip = document.createElementNS(ns, "title");
+    tip.textContent = `${localTime(s.time, site.timeZone, false)}: ${percent(p)}`;
+    rect.appendChild(tip);
+    root.appendChild(rect);
+    if (i % 3 === 0) {
+      const label = document.createElementNS(ns, "text");
+      label.setAttribute("x", String(i * cell + 1));
+      label.setAttribute("y", "42");
+      label.textContent = localTime(s.time, site.timeZone, false);
+      root.appendChild(label);
+    }
+  });
+  return root;
+}
+
+// ---- thresholds, kept by the service --------------------------------------------------------
+
+function thresholdEditor(site) {
+  const rows = h("div", { class: "threshold-rows" });
+  const addRow = t => {
+    const row = h("div", { class: "threshold-row" },
+      h("label", {}, "Name", h("input", { class: "t-id", value: t.id || "", placeholder: "frost", required: true, pattern: "[a-z0-9][a-z0-9\\-]{0,31}" })),
+      h("label", {}, "When",
+        h("select", { class: "t-direction" },
+          h("option", { value: "below", selected: t.direction !== "above" }, "below"),
+          h("option", { value: "above", selected: t.direction === "above" }, "above"))),
+      h("label", {}, "°C", h("input", { class: "t-value", type: "number", step: "0.1", value: t.valueC ?? "", required: true })),
+      h("label", {}, "Alert at %", h("input", { class: "t-alert", type: "number", min: "1", max: "100", step: "1", value: typeof t.alertProbability === "number" ? Math.round(t.alertProbability * 100) : "", placeholder: "never" })),
+      h("button", { type: "button", class: "t-remove", onclick: () => { row.remove(); state.editing = true; } }, "Remove"));
+    rows.appendChild(row);
+  };
+  (site.thresholds || []).forEach(addRow);
+  const night = site.night || { startLocal: "18:00", endLocal: "09:00" };
+  const status = h("p", { class: "note", id: "threshold-status", role: "status" });
+  const form = h("form", { class: "threshold-editor", id: "threshold-editor", oninput: () => { state.editing = true; } },
+    rows,
+    h("p", {}, h("button", { type: "button", class: "t-add", onclick: () => { addRow({ direction: "below" }); state.editing = true; } }, "Add a threshold")),
+    site.cadence === "daily" ? null : h("p", { class: "night-hours" },
+      h("label", {}, "Night from ", h("input", { id: "night-start", type: "time", value: night.startLocal })),
+      h("label", {}, " to ", h("input", { id: "night-end", type: "time", value: night.endLocal })),
+      ` local time (${site.timeZone})`),
+    h("button", { type: "submit", id: "threshold-save" }, "Save thresholds"),
+    status);
+  form.addEventListener("submit", async event => {
+    event.preventDefault();
+    const thresholds = [...rows.querySelectorAll(".threshold-row")].map(row => {
+      const alert = parseFloat(row.querySelector(".t-alert").value);
+      return {
+        id: row.querySelector(".t-id").value.trim(),
+        direction: row.querySelector(".t-direction").value,
+        valueC: parseFloat(row.querySelector(".t-value").value),
+        alertProbability: isFinite(alert) ? alert / 100 : null,
+      };
+    });
+    const body = { thresholds };
+    if (site.cadence !== "daily") body.night = { startLocal: form.querySelector("#night-start").value, endLocal: form.querySelector("#night-end").value };
+    status.textContent = "Saving…";
+    try {
+      await getJson(`/api/v1/sites/${encodeURIComponent(site.id)}`, { method: "PATCH", body: JSON.stringify(body) });
+      state.editing = false;
+      status.textContent = "Saved.";
+      await selectSite(site.id);
+    } catch (error) {
+      status.textContent = error.status === 401 || error.status === 403
+        ? "Saving thresholds needs an admin key: enter it in the API key field at the top and save again."
+        : `Not saved: ${problemText(error)}`;
+    }
+  });
+  return h("section", { class: "panel thresholds", id: "thresholds-panel" },
+    h("h3", {}, "Thresholds for this site"),
+    h("p", { class: "why" }, "The levels that matter here, kept by the service for everyone who watches this site. Without an alert level a threshold is shown but never alerts."),
+    form);
+}
+
+function problemText(error) {
+  const errors = error.problem && error.problem.errors;
+  return errors ? Object.values(errors).flat().join(" ") : error.message;
 }
 
 function acfPanel(model) {
@@ -453,6 +590,11 @@ document.getElementById("key-form").addEventListener("submit", event => {
   if (key) sessionStorage.setItem(KEY_STORAGE, key); else sessionStorage.removeItem(KEY_STORAGE);
   loadFleet();
 });
+
+// Refresh the selected site unless its thresholds are being edited.
+setInterval(() => {
+  if (state.selected && !state.editing && !document.hidden) selectSite(state.selected).catch(() => {});
+}, REFRESH_MS);
 
 loadFleet().catch(error => {
   document.getElementById("fleet-summary").textContent = `Could not load the dashboard: ${error.message}`;

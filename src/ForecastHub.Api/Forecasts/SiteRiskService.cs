@@ -1,0 +1,32 @@
+using ForecastHub.Api.Models;
+using ForecastHub.Storage.Sites;
+
+namespace ForecastHub.Api.Forecasts;
+
+/// <summary>A site's risk now: per threshold and window, with the confidence and the cautions of the forecast it comes from.</summary>
+public sealed record CurrentSiteRisk(
+    string SiteId,
+    DateTimeOffset IssuedAt,
+    DateTimeOffset Origin,
+    string Confidence,
+    ConfidenceReason? ConfidenceReason,
+    IReadOnlyList<RiskResponse> Risk,
+    IReadOnlyList<string> Cautions);
+
+/// <summary>
+/// The one entry point for a site's current risk (alerts, sweeps, schedulers): the risk of the
+/// site's default forecast, computed from the same cache as GET .../forecast, so a sweep and a
+/// dashboard never see different numbers and a repeated call costs a look-up.
+/// </summary>
+public sealed class SiteRiskService(ForecastService forecasts)
+{
+    public async Task<(CurrentSiteRisk? Risk, ForecastUnavailable? Unavailable)> EvaluateAsync(SiteRecord site, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        var (query, _, _) = ForecastQuery.Parse(site.IsDaily, null, null, null, null);
+        var (forecast, unavailable) = await forecasts.GetAsync(site, query!, cancellationToken);
+        return forecast is null
+            ? (null, unavailable)
+            : (new CurrentSiteRisk(site.Id, forecast.IssuedAt, forecast.Origin, forecast.Confidence, forecast.ConfidenceReason, forecast.Risk, forecast.Cautions), null);
+    }
+}

@@ -1,0 +1,33 @@
+using ForecastHub.Storage.Webhooks;
+
+namespace ForecastHub.Storage.Alerts;
+
+/// <summary>A risk currently raised for one threshold and window of a site. <paramref name="DetailJson"/>
+/// is the latest evaluation as the alert list shows it.</summary>
+public sealed record RaisedAlert(
+    string SiteId,
+    string ThresholdId,
+    string WindowName,
+    DateTimeOffset WindowFrom,
+    DateTimeOffset WindowTo,
+    DateTimeOffset RaisedAt,
+    DateTimeOffset UpdatedAt,
+    string DetailJson);
+
+/// <summary>The alert memory of one site: what is raised and the health state last announced.</summary>
+public sealed record SiteAlertState(IReadOnlyList<RaisedAlert> Raised, string? HealthState);
+
+/// <summary>
+/// What one evaluation of a site changes, applied as one transaction: raised alerts written
+/// (new or refreshed), cleared ones removed, the announced health state, and the events for the
+/// outbox. A crash leaves either all of it or none of it.
+/// </summary>
+public sealed record SiteAlertChange(
+    string SiteId,
+    IReadOnlyList<RaisedAlert> Upserts,
+    IReadOnlyList<(string ThresholdId, string WindowName)> Clears,
+    string? HealthState,
+    IReadOnlyList<OutgoingEvent> Events)
+{
+    public bool IsEmpty => Upserts.Count == 0 && Clears.Count == 0 && HealthState is null && Events.Count == 0;
+}

@@ -1,0 +1,43 @@
+using Microsoft.Data.Sqlite;
+
+namespace ForecastHub.Storage;
+
+/// <summary>
+/// The storage trouble SQLite has reported since start, for readiness and for the answer a request
+/// gets. Damage (SQLITE_CORRUPT, SQLITE_NOTADB) stays until a restart, whose start-up check then
+/// refuses the file; a full disk (SQLITE_FULL) lasts until a write succeeds again.
+/// </summary>
+public sealed class StorageHealth
+{
+    public const int Corrupt = 11;
+    public const int Full = 13;
+    public const int NotADatabase = 26;
+
+    private volatile string? damage;
+    private volatile bool full;
+
+    /// <summary>What SQLite said when it found damage, or null.</summary>
+    public string? Damage => damage;
+
+    public bool IsFull => full;
+
+    public static bool IsDamage(SqliteException error) =>
+        error is { SqliteErrorCode: Corrupt or NotADatabase };
+
+    public static bool IsFullDisk(SqliteException error) => error is { SqliteErrorCode: Full };
+
+    public void Observe(SqliteException error)
+    {
+        ArgumentNullException.ThrowIfNull(error);
+        if (IsDamage(error))
+        {
+            damage ??= $"SQLite error {error.SqliteErrorCode}: {error.Message.ReplaceLineEndings(" ")}";
+        }
+        else if (IsFullDisk(error))
+        {
+            full = true;
+        }
+    }
+
+    public void WriteSucceeded() => full = false;
+}

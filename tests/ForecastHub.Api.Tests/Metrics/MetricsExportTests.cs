@@ -1,0 +1,118 @@
+using System.Globalization;
+using System.Net;
+using System.Net.Http.Headers;
+using System.Text.RegularExpressions;
+using ForecastHub.Api.Tests.Infrastructure;
+using ForecastHub.Api.Tests.Models;
+using Microsoft.AspNetCore.Http;
+using Microsoft.AspNetCore.TestHost;
+
+namespace ForecastHub.Api.Tests.Metrics;
+
+public sealed class MetricsExportTests
+{
+    [Fact]
+    public async Task ScrapeCarriesHttpServerRuntimeAndPerSiteSeries()
+    {
+        await using var factory = new ApiFactory();
+        using var client = factory.CreateAdminClient();
+        await client.CreateHourlySiteAsync("north");
+        var lastReading = factory.Clock.GetUtcNow().AddHours(-3);
+        await factory.IngestAsync("north", Enumerable.Range(0, 48).Select(h => (lastReading.AddHours(-h), 4.0 + (h % 5 * 0.3))));
+        await client.GetAsync(new Uri("/api/v1/sites", UriKind.Relative));
+
+        var text = await ScrapeAsync(client);
+
+        Assert.Matches(@"(?m)^http_server_request_duration_seconds_count\{[^}]*http_route=""/api/v1/sites/""[^}]*\} 1$", text);
+        Assert.Contains("# TYPE http_server_request_duration_seconds histogram\n", text, StringComparison.Ordinal);
+        Assert.Contains("# TYPE dotnet_process_cpu_count gauge\n", text, StringComparison.Ordinal);
+        Assert.Contains("forecasthub_site_health{site=\"north\",state=\"warming-up\"} 1\n", text, StringComparison.Ordinal);
+        Assert.Equal(3 * 3600.0, Sample(text, "forecasthub_site_reading_age_seconds{site=\"north\"}"));
+        Assert.Equal(0, Sample(text, "forecasthub_site_series_omitted"));
+        Assert.Contains("forecasthub_readings_total{outcome=\"accepted\"} 48\n", text, StringComparison.Ordinal);
+        Assert.Contains("service_name=\"forecasthub\"", text, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public async Task PerSiteSeriesStopAtTheCapAndTheRestAreCounted()
+    {
+        await using var factory = new ApiFactory { Settings = new Dictionary<string, string?> { ["Metrics:MaxSiteSeries"] = "2" } };
+        using var client = factory.CreateAdminClient();
+        foreach (var id in new[] { "c-site", "a-site", "b-site" })
+        {
+            await client.CreateHourlySiteAsync(id);
+        }
+
+        var text = await ScrapeAsync(client);
+
+        Assert.Contains("forecasthub_site_health{site=\"a-site\",", text, StringComparison.Ordinal);
+        Assert.Contains("forecasthub_site_health{site=\"b-site\",", text, StringComparison.Ordinal);
+        Assert.DoesNotContain("site=\"c-site\"", text, StringComparison.Ordinal);
+        Assert.Equal(1, Sample(text, "forecasthub_site_series_omitted"));
+        Assert.Equal(3, Sample(text, "forecasthub_sites{state=\"warming-up\"}"));
+    }
+
+    [Fact]
+    public async Task PrivatePortServesMetricsWithoutAKeyAndOnlyThere()
+    {
+        const int privatePort = 9464;
+        await using var factory = new ApiFactory { Settings = new Dictionary<string, string?> { ["Metrics:AnonymousPort"] = "9464" } };
+        _ = factory.CreateClient();
+
+        var onPrivatePort = await SendAsync(factory.Server, "/metrics", privatePort, host: "localhost:8080");
+        var onPublicPort = await SendAsync(factory.Server, "/metrics", 8080, host: "localhost:9464");
+        var otherRouteOnPrivatePort = await SendAsync(factory.Server, "/api/v1/sites", privatePort, host: "localhost:9464");
+
+        Assert.Equal(StatusCodes.Status200OK, onPrivatePort.Response.StatusCode);
+        Assert.Equal(StatusCodes.Status401Unauthorized, onPublicPort.Response.StatusCode);
+        Assert.Equal(StatusCodes.Status401Unauthorized, otherRouteOnPrivatePort.Response.StatusCode);
+    }
+
+    [Fact]
+    public async Task WithoutThePrivatePortSettingMetricsNeedAKey()
+    {
+        await using var factory = new ApiFactory();
+        _ = factory.CreateClient();
+
+        var context = await SendAsync(factory.Server, "/metrics", 9464, host: "localhost:9464");
+
+        Assert.Equal(StatusCodes.Status401Unauthorized, context.Response.StatusCode);
+    }
+
+    [Theory]
+    [InlineData("Metrics:AnonymousPort", "70000")]
+    [InlineData("Metrics:MaxSiteSeries", "-1")]
+    public void OutOfRangeMetricsSettingsStopTheStart(string key, string value)
+    {
+        using var factory = new ApiFactory { Settings = new Dictionary<string, string?> { [key] = value } };
+
+        var error = Assert.ThrowsAny<Exception>(() => factory.CreateClient());
+
+        Assert.Contains(key, error.ToString(), StringComparison.Ordinal);
+    }
+
+    private static async Task<string> ScrapeAsync(HttpClient client)
+    {
+        using var response = await client.GetAsync(new Uri("/metrics", UriKind.Relative));
+        Assert.Equal(HttpStatusCode.OK, response.StatusCode);
+        Assert.Equal(new MediaTypeHeaderValue("text/plain") { CharSet = "utf-8", Parameters = { new NameValueHeaderValue("version", "0.0.4") } }.MediaType,
+            response.Content.Headers.ContentType?.MediaType);
+        return await response.Content.ReadAsStringAsync();
+    }
+
+    private static Task<HttpContext> SendAsync(TestServer server, string path, int localPort, string host) =>
+        server.SendAsync(context =>
+        {
+            context.Request.Method = HttpMethods.Get;
+            context.Request.Path = path;
+            context.Request.Host = new HostString(host);
+            context.Connection.LocalPort = localPort;
+        });
+
+    private static double Sample(string text, string series)
+    {
+        var match = Regex.Match(text, "^" + Regex.Escape(series) + @"(?:\{\})? (\S+)$", RegexOptions.Multiline);
+        Assert.True(match.Success, $"no sample for {series}");
+        return double.Parse(match.Groups[1].Value, CultureInfo.InvariantCulture);
+    }
+}
