@@ -16,12 +16,11 @@ namespace ForecastHub.Api.Alerts;
 public sealed class AlertEvaluator(
     IAlertStore alerts,
     ModelHealthService health,
-    IEnumerable<ISiteRiskSource> riskSources,
+    ISiteRiskSource riskSource,
     WebhookDeliveryWorker deliveries,
     TimeProvider clock) : IDisposable
 {
     private readonly SemaphoreSlim gate = new(1, 1);
-    private readonly ISiteRiskSource? riskSource = riskSources.LastOrDefault();
 
     /// <summary>Evaluates the site; answers the number of events queued.</summary>
     public async Task<int> EvaluateAsync(SiteRecord site, CancellationToken cancellationToken)
@@ -33,7 +32,7 @@ public sealed class AlertEvaluator(
             var now = clock.GetUtcNow();
             var state = await alerts.GetAsync(site.Id, cancellationToken);
             var assessment = await health.EvaluateAsync(site, cancellationToken);
-            var risk = riskSource is null ? null : await riskSource.GetAsync(site, cancellationToken);
+            var risk = await riskSource.GetAsync(site, cancellationToken);
             var change = Change(site, state, assessment, risk, now);
             if (change.IsEmpty || !await alerts.ApplyAsync(change, now, cancellationToken))
             {
@@ -53,7 +52,7 @@ public sealed class AlertEvaluator(
         }
     }
 
-    private static SiteAlertChange Change(SiteRecord site, SiteAlertState state, Core.Health.HealthAssessment assessment, SiteRisk? risk, DateTimeOffset now)
+    private static SiteAlertChange Change(SiteRecord site, SiteAlertState state, Core.Health.HealthAssessment assessment, SiteAlertRisk? risk, DateTimeOffset now)
     {
         var events = new List<OutgoingEvent>();
         string? healthToStore = null;
