@@ -11,7 +11,8 @@ namespace ForecastHub.Api.Alerts;
 /// <summary>
 /// Evaluates one site: its health state and its threshold risks against what was last announced,
 /// and stores the change together with the events it sends (<see cref="AlertRules"/> decides).
-/// Evaluations run one at a time, so a sweep and a trigger for the same site never both raise.
+/// Evaluations run one at a time in the process and hold the store's lock on the site, so a sweep
+/// and a trigger, on this node or another, never both raise.
 /// </summary>
 public sealed class AlertEvaluator(
     IAlertStore alerts,
@@ -29,6 +30,7 @@ public sealed class AlertEvaluator(
         await gate.WaitAsync(cancellationToken);
         try
         {
+            await using var siteLock = await alerts.LockAsync(site.Id, cancellationToken);
             var now = clock.GetUtcNow();
             var state = await alerts.GetAsync(site.Id, cancellationToken);
             var assessment = await health.EvaluateAsync(site, cancellationToken);

@@ -1,5 +1,4 @@
 using ForecastHub.Api.Hosting;
-using ForecastHub.Storage.Alerts;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
@@ -14,7 +13,6 @@ public static class AlertSetup
     {
         services.AddOptions<AlertOptions>().BindConfiguration(AlertOptions.SectionName).ValidateOnStart();
         services.AddSingleton<Microsoft.Extensions.Options.IValidateOptions<AlertOptions>>(new ThrowingValidator<AlertOptions>(o => o.Validate()));
-        services.AddSingleton<IAlertStore, SqliteAlertStore>();
         services.AddSingleton<AlertQueue>();
         services.AddSingleton<ISiteRiskSource, ForecastRiskSource>();
         services.AddSingleton<AlertEvaluator>();
