@@ -117,11 +117,11 @@ public sealed class PostgresOnlyTests
     }
 
     [Fact]
-    public async Task ReadingsStoredBeforeVersionThreeStayAndGoWithTheirSite()
+    public async Task ReadingsStoredBeforeVersionFourStayAndGoWithTheirSite()
     {
         await using var pg = await PostgresTestDatabase.CreateAsync(migrated: false);
         var runner = new PostgresMigrationRunner(pg.Database);
-        await runner.ApplyAsync(2);
+        await runner.ApplyAsync(3);
         var sites = new PostgresSiteStore(pg.Database, TimeProvider.System);
         var readings = new PostgresReadingStore(pg.Database);
         Assert.True(await sites.CreateAsync(SiteStoreTests.Site()));

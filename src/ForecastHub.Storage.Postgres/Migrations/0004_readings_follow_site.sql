@@ -1,4 +1,4 @@
--- Schema version 3: readings lose their foreign key to sites, whose per-row check cost more than the
+-- Schema version 4: readings lose their foreign key to sites, whose per-row check cost more than the
 -- insert itself in a batch ingest. Only the reading store inserts readings, after locking the site's
 -- row in the same transaction, so no reading can name a missing site; deleting a site still deletes
 -- its readings, now by this trigger in the deleting transaction.
