@@ -2,9 +2,17 @@ using System.Diagnostics;
 using System.Globalization;
 using ForecastHub.Api.Alerts;
 using ForecastHub.Api.Auth;
+using ForecastHub.Api.Cluster;
+using ForecastHub.Api.Forecasts;
+using ForecastHub.Api.Health;
 using ForecastHub.Api.Hosting;
+using ForecastHub.Api.Metrics;
 using ForecastHub.Api.Models;
+using ForecastHub.Api.Sites;
+using ForecastHub.Api.Verification;
 using ForecastHub.Api.Webhooks;
+using ForecastHub.Core.Modeling;
+using ForecastHub.Core.Risk;
 using ForecastHub.Storage.Migrations;
 using ForecastHub.Storage.Sites;
 using Microsoft.Data.Sqlite;
@@ -58,7 +66,7 @@ internal sealed class AlertSweepVerb : IBenchmarkVerb
             {
                 await store.UpdateAsync(site.Id, s => s with
                 {
-                    Risk = s.Risk with { Thresholds = [new SiteThreshold("frost", "below", 0, 0.3), new SiteThreshold("warm", "above", 25, 0.5)] },
+                    Risk = s.Risk with { Thresholds = [new SiteThreshold("frost", ThresholdDirection.Below, 0, 0.3), new SiteThreshold("warm", ThresholdDirection.Above, 25, 0.5)] },
                 });
             }
 
@@ -120,7 +128,13 @@ internal sealed class AlertSweepVerb : IBenchmarkVerb
         services.AddMetrics();
         services.AddForecastHubStorage();
         services.AddForecastHubAuth();
-        services.AddForecastHubModels();
+        services.AddForecastHubMetrics();
+        services.AddCluster();
+        services.AddSites();
+        services.AddModels();
+        services.AddForecasts();
+        services.AddVerification();
+        services.AddModelHealth();
         services.AddWebhooks();
         services.AddAlerts();
         return services.BuildServiceProvider();
