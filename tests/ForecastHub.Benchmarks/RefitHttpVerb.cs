@@ -3,6 +3,12 @@ using System.Globalization;
 using System.Net.Http.Json;
 using System.Text;
 using System.Text.Json;
+using ForecastHub.Api.Models;
+using ForecastHub.Core.Modeling;
+using ForecastHub.Storage;
+using ForecastHub.Storage.Models;
+using ForecastHub.Storage.Readings;
+using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Benchmarks;
 
@@ -11,7 +17,8 @@ namespace ForecastHub.Benchmarks;
 /// SQLite file) on the fit benchmark's 87,600 hourly points, shifted to end at the current hour so the
 /// whole series lies in the site's fit window (maxOrder 48, fitWindowDays 3660, default settings
 /// otherwise: pacf-aic, Burg, calibrated intervals). Times the whole request and prints the answer's
-/// <c>fitDurationMs</c> beside it; the rest is reading the rows, the grid, storing and HTTP.
+/// <c>fitDurationMs</c> beside it; then, with the server stopped, times the steps of a refit one by one
+/// in process on the same file (rows, grid, fit without and with calibration, model JSON, store).
 /// </summary>
 internal sealed class RefitHttpVerb : IBenchmarkVerb
 {
@@ -32,56 +39,17 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
         var folder = Directory.CreateTempSubdirectory("forecasthub-refit-");
         try
         {
-            await using var server = ServerProcess.Start(apiDll, Path.Combine(folder.FullName, "refit.db"), "--RateLimiting:Enabled=false");
-            await server.WaitReadyAsync(Stopwatch.StartNew(), TimeSpan.FromMinutes(2));
-            var client = server.Client;
-
-            using (var created = await client.PostAsJsonAsync(new Uri("/api/v1/sites", UriKind.Relative), new
-            {
-                id = SiteId,
-                name = "Ten years hourly",
-                timeZone = "Europe/Berlin",
-                cadence = "hourly",
-                model = new { maxOrder = 48, fitWindowDays = 3660 },
-            }))
-            {
-                created.EnsureSuccessStatusCode();
-            }
-
-            var grid = Series.SeasonalHourlyGrid(FitVerb.Hours, seed: 2026);
-            var now = DateTimeOffset.UtcNow;
-            var shift = new DateTimeOffset(now.Year, now.Month, now.Day, now.Hour, 0, 0, TimeSpan.Zero).AddHours(-1) - grid.Times[^1];
-            for (var start = 0; start < grid.Count; start += BatchSize)
-            {
-                var body = new StringBuilder("{\"unit\":\"C\",\"readings\":[");
-                for (var i = start; i < Math.Min(grid.Count, start + BatchSize); i++)
-                {
-                    body.Append(i == start ? "" : ",").Append(CultureInfo.InvariantCulture,
-                        $"{{\"time\":\"{(grid.Times[i] + shift).ToString("yyyy-MM-dd'T'HH:mm:ss'Z'", CultureInfo.InvariantCulture)}\",\"value\":{grid.Values[i].ToString("R", CultureInfo.InvariantCulture)}}}");
-                }
-
-                using var content = new StringContent(body.Append("]}").ToString(), Encoding.UTF8, "application/json");
-                using var posted = await client.PostAsync(new Uri($"/api/v1/sites/{SiteId}/observations", UriKind.Relative), content);
-                posted.EnsureSuccessStatusCode();
-            }
-
-            // The first refits include the background fit queued by the posts (the site lock serialises them) and tier-up of the code.
-            for (var i = 0; i < WarmupRefits; i++)
-            {
-                await RefitAsync(client);
-            }
-
-            var runs = new List<(double RequestMs, double FitMs)>();
-            for (var i = 0; i < TimedRefits; i++)
-            {
-                runs.Add(await RefitAsync(client));
-            }
-
-            var request = Median(runs.Select(r => r.RequestMs));
-            var fit = Median(runs.Select(r => r.FitMs));
+            var databasePath = Path.Combine(folder.FullName, "refit.db");
+            var (request, fit) = await TimeRequestsAsync(apiDll, databasePath);
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"refit over HTTP: median {request:F1} ms per request (min {runs.Min(r => r.RequestMs):F1}), fitDurationMs median {fit:F1}, outside the fit {request - fit:F1} ms, over {TimedRefits} refits"));
-            output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"RESULT refit_ms={request:F1} refit_fit_ms={fit:F1}"));
+                $"refit over HTTP: median {request.Median:F1} ms per request (min {request.Min:F1}), fitDurationMs median {fit:F1}, outside the fit {request.Median - fit:F1} ms, over {TimedRefits} refits"));
+            var stages = await TimeStagesAsync(databasePath);
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"stages in process (median of {TimedRefits}, same file, server stopped): read rows {stages.Read:F1} ms, grid {stages.Grid:F1} ms, " +
+                $"fit without calibration {stages.GaussianFit:F1} ms, calibration {stages.CalibratedFit - stages.GaussianFit:F1} ms, model JSON {stages.Json:F1} ms, store {stages.Store:F1} ms; " +
+                $"request minus these {request.Median - stages.Read - stages.Grid - stages.CalibratedFit - stages.Json - stages.Store:F1} ms (HTTP, answer, lock)"));
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"RESULT refit_ms={request.Median:F1} refit_fit_ms={fit:F1} read_ms={stages.Read:F1} grid_ms={stages.Grid:F1} fit_gaussian_ms={stages.GaussianFit:F1} fit_calibrated_ms={stages.CalibratedFit:F1} json_ms={stages.Json:F1} store_ms={stages.Store:F1}"));
             return 0;
         }
         finally
@@ -89,6 +57,100 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
             Microsoft.Data.Sqlite.SqliteConnection.ClearAllPools();
             folder.Delete(recursive: true);
         }
+    }
+
+    private static async Task<((double Median, double Min) Request, double FitMs)> TimeRequestsAsync(string apiDll, string databasePath)
+    {
+        await using var server = ServerProcess.Start(apiDll, databasePath, "--RateLimiting:Enabled=false");
+        await server.WaitReadyAsync(Stopwatch.StartNew(), TimeSpan.FromMinutes(2));
+        var client = server.Client;
+
+        using (var created = await client.PostAsJsonAsync(new Uri("/api/v1/sites", UriKind.Relative), new
+        {
+            id = SiteId,
+            name = "Ten years hourly",
+            timeZone = "Europe/Berlin",
+            cadence = "hourly",
+            model = new { maxOrder = 48, fitWindowDays = 3660 },
+        }))
+        {
+            created.EnsureSuccessStatusCode();
+        }
+
+        var grid = Series.SeasonalHourlyGrid(FitVerb.Hours, seed: 2026);
+        var now = DateTimeOffset.UtcNow;
+        var shift = new DateTimeOffset(now.Year, now.Month, now.Day, now.Hour, 0, 0, TimeSpan.Zero).AddHours(-1) - grid.Times[^1];
+        for (var start = 0; start < grid.Count; start += BatchSize)
+        {
+            var body = new StringBuilder("{\"unit\":\"C\",\"readings\":[");
+            for (var i = start; i < Math.Min(grid.Count, start + BatchSize); i++)
+            {
+                body.Append(i == start ? "" : ",").Append(CultureInfo.InvariantCulture,
+                    $"{{\"time\":\"{(grid.Times[i] + shift).ToString("yyyy-MM-dd'T'HH:mm:ss'Z'", CultureInfo.InvariantCulture)}\",\"value\":{grid.Values[i].ToString("R", CultureInfo.InvariantCulture)}}}");
+            }
+
+            using var content = new StringContent(body.Append("]}").ToString(), Encoding.UTF8, "application/json");
+            using var posted = await client.PostAsync(new Uri($"/api/v1/sites/{SiteId}/observations", UriKind.Relative), content);
+            posted.EnsureSuccessStatusCode();
+        }
+
+        // The first refits include the background fit queued by the posts (the site lock serialises them) and tier-up of the code.
+        for (var i = 0; i < WarmupRefits; i++)
+        {
+            await RefitAsync(client);
+        }
+
+        var runs = new List<(double RequestMs, double FitMs)>();
+        for (var i = 0; i < TimedRefits; i++)
+        {
+            runs.Add(await RefitAsync(client));
+        }
+
+        return ((Median(runs.Select(r => r.RequestMs)), runs.Min(r => r.RequestMs)), Median(runs.Select(r => r.FitMs)));
+    }
+
+    /// <summary>The steps of a refit (ModelService.RefitIfDueAsync) one by one on the file the server left:
+    /// the window's rows in the service's pages, the grid, the core fit without and with the calibration
+    /// folds, the model JSON and the store's save.</summary>
+    private static async Task<(double Read, double Grid, double GaussianFit, double CalibratedFit, double Json, double Store)> TimeStagesAsync(string databasePath)
+    {
+        using var database = new SqliteDatabase(new StorageOptions { Path = databasePath });
+        var site = (await new SqliteSiteStore(database, TimeProvider.System).GetAsync(SiteId))!;
+        var loader = new SiteGridLoader(new SqliteReadingStore(database));
+        var models = new SqliteModelStore(database);
+        var now = DateTimeOffset.UtcNow;
+        var gaussian = site.Model with { IntervalMethod = IntervalMethod.Gaussian };
+        var times = new List<double[]>();
+        for (var i = 0; i < WarmupRefits + TimedRefits; i++)
+        {
+            var watch = Stopwatch.StartNew();
+            var from = await loader.WindowStartAsync(site, site.Model.FitWindowDays, now, CancellationToken.None);
+            var readings = (await loader.ReadAsync(site, from, now, CancellationToken.None))!;
+            var read = watch.Elapsed.TotalMilliseconds;
+            watch.Restart();
+            var grid = SiteGridLoader.Build(site, readings, from, now);
+            var gridMs = watch.Elapsed.TotalMilliseconds;
+            watch.Restart();
+            SiteModelFitter.Fit(grid, gaussian);
+            var gaussianMs = watch.Elapsed.TotalMilliseconds;
+            watch.Restart();
+            var model = SiteModelFitter.Fit(grid, site.Model);
+            var calibratedMs = watch.Elapsed.TotalMilliseconds;
+            watch.Restart();
+            var json = ModelJson.Write(model);
+            var jsonMs = watch.Elapsed.TotalMilliseconds;
+            watch.Restart();
+            await models.SaveAsync(new StoredModel(site.Id, now, calibratedMs, site.SettingsVersion, model.Window.To, grid.ObservedCount,
+                model.Diagnostics.LjungBox?.PValue, json));
+            var storeMs = watch.Elapsed.TotalMilliseconds;
+            if (i >= WarmupRefits)
+            {
+                times.Add([read, gridMs, gaussianMs, calibratedMs, jsonMs, storeMs]);
+            }
+        }
+
+        double Stage(int k) => Median(times.Select(t => t[k]));
+        return (Stage(0), Stage(1), Stage(2), Stage(3), Stage(4), Stage(5));
     }
 
     private static async Task<(double RequestMs, double FitMs)> RefitAsync(HttpClient client)
