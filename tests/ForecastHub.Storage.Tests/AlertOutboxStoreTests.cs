@@ -17,6 +17,8 @@ public sealed class AlertOutboxStoreTests
     private static RaisedAlert Raised(string siteId, string window = "night") =>
         new(siteId, "frost", window, T0.AddHours(2), T0.AddHours(17), T0, T0, """{"probability":0.4}""");
 
+    private static async Task<long> KeyOf(SqliteSiteStore sites, string siteId) => (await sites.GetAsync(siteId))!.Key;
+
     private static async Task<(TestDatabase Db, SqliteWebhookStore Webhooks, SqliteAlertStore Alerts, SqliteSiteStore Sites)> Open()
     {
         var db = await SiteStoreTests.Migrated();
@@ -103,11 +105,12 @@ public sealed class AlertOutboxStoreTests
     [Fact]
     public async Task AlertChangeAndItsEventsAreWrittenTogether()
     {
-        var (db, webhooks, alerts, _) = await Open();
+        var (db, webhooks, alerts, sites) = await Open();
         using var _db = db;
         await webhooks.CreateAsync(Webhook("wh-all"));
+        var key = await KeyOf(sites, "site-a");
 
-        Assert.True(await alerts.ApplyAsync(new SiteAlertChange("site-a", [Raised("site-a")], [], "ok",
+        Assert.True(await alerts.ApplyAsync(new SiteAlertChange("site-a", key, [Raised("site-a")], [], "ok",
             [new OutgoingEvent("risk", "risk.raised", "site-a", "{}")]), T0));
 
         var state = await alerts.GetAsync("site-a");
@@ -115,7 +118,7 @@ public sealed class AlertOutboxStoreTests
         Assert.Equal(Raised("site-a"), Assert.Single(state.Raised));
         Assert.Equal("risk.raised", Assert.Single(await webhooks.DueAsync(T0, 10)).Delivery.EventType);
 
-        Assert.True(await alerts.ApplyAsync(new SiteAlertChange("site-a", [], [("frost", "night")], null, []), T0.AddHours(1)));
+        Assert.True(await alerts.ApplyAsync(new SiteAlertChange("site-a", key, [], [("frost", "night")], null, []), T0.AddHours(1)));
         Assert.Empty((await alerts.GetAsync("site-a")).Raised);
         Assert.Equal("ok", (await alerts.GetAsync("site-a")).HealthState);
     }
@@ -123,14 +126,21 @@ public sealed class AlertOutboxStoreTests
     [Fact]
     public async Task AChangeForADeletedSiteIsNotApplied()
     {
-        var (db, webhooks, alerts, _) = await Open();
+        var (db, webhooks, alerts, sites) = await Open();
         using var _db = db;
         await webhooks.CreateAsync(Webhook("wh-all"));
+        var key = await KeyOf(sites, "site-a");
 
-        Assert.False(await alerts.ApplyAsync(new SiteAlertChange("gone", [Raised("gone")], [], "ok", [Health("gone")]), T0));
+        Assert.False(await alerts.ApplyAsync(new SiteAlertChange("gone", key, [Raised("gone")], [], "ok", [Health("gone")]), T0));
+
+        // An evaluation of site-a that ends after site-a was deleted and created again belongs to the old site.
+        Assert.True(await sites.DeleteAsync("site-a"));
+        Assert.True(await sites.CreateAsync(SiteStoreTests.Site("site-a")));
+        Assert.False(await alerts.ApplyAsync(new SiteAlertChange("site-a", key, [Raised("site-a")], [], "ok", [Health("site-a")]), T0));
 
         Assert.Empty(await webhooks.DueAsync(T0, 10));
         Assert.Empty(await alerts.ListRaisedAsync(null, 10));
+        Assert.Equal(new SiteAlertState([], null), await alerts.GetAsync("site-a") with { Raised = [] });
     }
 
     [Fact]
@@ -139,8 +149,8 @@ public sealed class AlertOutboxStoreTests
         var (db, webhooks, alerts, sites) = await Open();
         using var _db = db;
         await webhooks.CreateAsync(Webhook("wh-all"));
-        await alerts.ApplyAsync(new SiteAlertChange("site-a", [Raised("site-a")], [], "ok", [Health("site-a")]), T0);
-        await alerts.ApplyAsync(new SiteAlertChange("site-b", [Raised("site-b")], [], "ok", [Health("site-b")]), T0);
+        await alerts.ApplyAsync(new SiteAlertChange("site-a", await KeyOf(sites, "site-a"), [Raised("site-a")], [], "ok", [Health("site-a")]), T0);
+        await alerts.ApplyAsync(new SiteAlertChange("site-b", await KeyOf(sites, "site-b"), [Raised("site-b")], [], "ok", [Health("site-b")]), T0);
 
         Assert.True(await sites.DeleteAsync("site-a"));
 
@@ -154,10 +164,10 @@ public sealed class AlertOutboxStoreTests
     [Fact]
     public async Task RaisedAlertsArePagedAcrossTheFleet()
     {
-        var (db, _, alerts, _) = await Open();
+        var (db, _, alerts, sites) = await Open();
         using var _db = db;
-        await alerts.ApplyAsync(new SiteAlertChange("site-a", [Raised("site-a", "next24h"), Raised("site-a", "night")], [], null, []), T0);
-        await alerts.ApplyAsync(new SiteAlertChange("site-b", [Raised("site-b")], [], null, []), T0);
+        await alerts.ApplyAsync(new SiteAlertChange("site-a", await KeyOf(sites, "site-a"), [Raised("site-a", "next24h"), Raised("site-a", "night")], [], null, []), T0);
+        await alerts.ApplyAsync(new SiteAlertChange("site-b", await KeyOf(sites, "site-b"), [Raised("site-b")], [], null, []), T0);
 
         var first = await alerts.ListRaisedAsync(null, 2);
         var rest = await alerts.ListRaisedAsync((first[^1].SiteId, first[^1].ThresholdId, first[^1].WindowName), 2);

@@ -76,6 +76,10 @@ public sealed partial class RefitWorker(
             {
                 LogSiteFailed(logger, error, taken.SiteId);
             }
+            finally
+            {
+                queue.Finished();
+            }
         }
     }
 

@@ -20,6 +20,11 @@ public sealed record SiteRecord(
     DateTimeOffset UpdatedAt,
     long SettingsVersion = 1)
 {
+    /// <summary>The store's internal key of this site, given when it is created and never given again
+    /// (0 before it is stored). A site deleted and created again under the same id gets a new key, so
+    /// background work started for the old one can tell, and its writes are refused.</summary>
+    public long Key { get; init; }
+
     /// <summary>Thresholds and night hours; a change re-evaluates risk but needs no refit.</summary>
     public SiteRiskSettings Risk { get; init; } = SiteRiskSettings.Default;
 
@@ -29,10 +34,11 @@ public sealed record SiteRecord(
     {
         ArgumentNullException.ThrowIfNull(proposed);
         // Names and risk settings need no refit; a risk change re-evaluates through the forecast cache key.
-        var settingsChanged = proposed with { Name = Name, Risk = Risk } != this;
+        var settingsChanged = proposed with { Name = Name, Risk = Risk, Key = Key } != this;
         return proposed with
         {
             Id = Id,
+            Key = Key,
             CreatedAt = CreatedAt,
             UpdatedAt = now,
             SettingsVersion = SettingsVersion + (settingsChanged ? 1 : 0),
