@@ -5,6 +5,9 @@ public sealed class RefitOptions
 {
     public const string SectionName = "Refit";
 
+    /// <summary>False: this node runs no background fits or sweeps (a node that only ingests and serves, or a benchmark timing ingest alone).</summary>
+    public bool Enabled { get; set; } = true;
+
     /// <summary>Fits running at once; each fit is single-threaded work.</summary>
     public int MaxConcurrency { get; set; } = Math.Max(1, Environment.ProcessorCount);
 

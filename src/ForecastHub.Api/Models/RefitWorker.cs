@@ -34,6 +34,11 @@ public sealed partial class RefitWorker(
     {
         // The stores answer synchronously; yielding first keeps host start-up from waiting on the sweep.
         await Task.Yield();
+        if (!options.Value.Enabled)
+        {
+            LogDisabled(logger);
+            return;
+        }
 
         // Sites whose data arrived while the service was down are looked at once at start.
         var startSweep = SweepAsync(stoppingToken);
@@ -174,6 +179,9 @@ public sealed partial class RefitWorker(
             return false;
         }
     }
+
+    [LoggerMessage(Level = LogLevel.Warning, Message = "Refit:Enabled is false: this node runs no background fits or sweeps")]
+    private static partial void LogDisabled(ILogger logger);
 
     [LoggerMessage(Level = LogLevel.Error, Message = "Background work for site {SiteId} failed")]
     private static partial void LogSiteFailed(ILogger logger, Exception error, string siteId);
