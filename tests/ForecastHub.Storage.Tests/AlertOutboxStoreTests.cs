@@ -2,9 +2,13 @@ using ForecastHub.Storage.Alerts;
 using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Webhooks;
 
+using ForecastHub.Storage.Postgres.Alerts;
+using ForecastHub.Storage.Postgres.Webhooks;
+using ForecastHub.Storage.Tests.Postgres;
+
 namespace ForecastHub.Storage.Tests;
 
-/// <summary>The webhook outbox and the alert state, on a real SQLite file.</summary>
+/// <summary>The webhook outbox and the alert state, on a real SQLite file and a real PostgreSQL database.</summary>
 public sealed class AlertOutboxStoreTests
 {
     private static readonly DateTimeOffset T0 = new(2026, 10, 20, 16, 0, 0, TimeSpan.Zero);
@@ -17,22 +21,22 @@ public sealed class AlertOutboxStoreTests
     private static RaisedAlert Raised(string siteId, string window = "night") =>
         new(siteId, "frost", window, T0.AddHours(2), T0.AddHours(17), T0, T0, """{"probability":0.4}""");
 
-    private static async Task<long> KeyOf(SqliteSiteStore sites, string siteId) => (await sites.GetAsync(siteId))!.Key;
+    private static async Task<long> KeyOf(Backend b, string siteId) => (await b.Sites.GetAsync(siteId))!.Key;
 
-    private static async Task<(TestDatabase Db, SqliteWebhookStore Webhooks, SqliteAlertStore Alerts, SqliteSiteStore Sites)> Open()
+    private static async Task<Backend> Open(string backend)
     {
-        var db = await SiteStoreTests.Migrated();
-        var sites = new SqliteSiteStore(db.Database, TimeProvider.System);
-        await sites.CreateAsync(SiteStoreTests.Site("site-a"));
-        await sites.CreateAsync(SiteStoreTests.Site("site-b"));
-        return (db, new SqliteWebhookStore(db.Database), new SqliteAlertStore(db.Database), sites);
+        var b = await Backend.CreateAsync(backend);
+        await b.Sites.CreateAsync(SiteStoreTests.Site("site-a"));
+        await b.Sites.CreateAsync(SiteStoreTests.Site("site-b"));
+        return b;
     }
 
-    [Fact]
-    public async Task AnEventIsQueuedOncePerCoveringWebhook()
+    [Theory]
+    [MemberData(nameof(Backend.Names), MemberType = typeof(Backend))]
+    public async Task AnEventIsQueuedOncePerCoveringWebhook(string backend)
     {
-        var (db, webhooks, _, _) = await Open();
-        using var _db = db;
+        await using var b = await Open(backend);
+        var webhooks = b.Webhooks;
         await webhooks.CreateAsync(Webhook("wh-all"));
         await webhooks.CreateAsync(Webhook("wh-site-a", sites: ["site-a"]));
         await webhooks.CreateAsync(Webhook("wh-site-b", sites: ["site-b"]));
@@ -40,26 +44,27 @@ public sealed class AlertOutboxStoreTests
 
         Assert.Equal(2, await webhooks.EnqueueAsync(Health("site-a"), T0));
 
-        var due = await webhooks.DueAsync(T0, 10);
+        var due = await webhooks.DueAsync(T0, T0, 10);
         Assert.Equal(["wh-all", "wh-site-a"], due.Select(d => d.Delivery.WebhookId).Order(StringComparer.Ordinal));
         Assert.All(due, d => Assert.Equal(DeliveryStatus.Pending, d.Delivery.Status));
         Assert.NotEqual(due[0].Delivery.MessageId, due[1].Delivery.MessageId);
         Assert.Equal(T0, await webhooks.NextDueAsync());
     }
 
-    [Fact]
-    public async Task AttemptsAreCountedAndAFailureWaitsForItsNextTime()
+    [Theory]
+    [MemberData(nameof(Backend.Names), MemberType = typeof(Backend))]
+    public async Task AttemptsAreCountedAndAFailureWaitsForItsNextTime(string backend)
     {
-        var (db, webhooks, _, _) = await Open();
-        using var _db = db;
+        await using var b = await Open(backend);
+        var webhooks = b.Webhooks;
         await webhooks.CreateAsync(Webhook("wh-all"));
         await webhooks.EnqueueAsync(Health("site-a"), T0);
-        var message = (await webhooks.DueAsync(T0, 10))[0].Delivery.MessageId;
+        var message = (await webhooks.DueAsync(T0, T0, 10))[0].Delivery.MessageId;
 
         Assert.True(await webhooks.RecordAttemptAsync(message, new DeliveryAttempt(DeliveryStatus.Pending, T0, T0.AddMinutes(1), 500, "HTTP 500")));
 
-        Assert.Empty(await webhooks.DueAsync(T0.AddSeconds(59), 10));
-        var retry = Assert.Single(await webhooks.DueAsync(T0.AddMinutes(1), 10)).Delivery;
+        Assert.Empty(await webhooks.DueAsync(T0.AddSeconds(59), T0.AddSeconds(59), 10));
+        var retry = Assert.Single(await webhooks.DueAsync(T0.AddMinutes(1), T0.AddMinutes(1), 10)).Delivery;
         Assert.Equal((1, 500, "HTTP 500"), (retry.Attempts, retry.LastStatusCode, retry.LastError));
 
         Assert.True(await webhooks.RecordAttemptAsync(message, new DeliveryAttempt(DeliveryStatus.Delivered, T0.AddMinutes(1), null, 204, null)));
@@ -69,11 +74,12 @@ public sealed class AlertOutboxStoreTests
         Assert.Null(await webhooks.NextDueAsync());
     }
 
-    [Fact]
-    public async Task DeliveryLogIsNewestFirstAndPaged()
+    [Theory]
+    [MemberData(nameof(Backend.Names), MemberType = typeof(Backend))]
+    public async Task DeliveryLogIsNewestFirstAndPaged(string backend)
     {
-        var (db, webhooks, _, _) = await Open();
-        using var _db = db;
+        await using var b = await Open(backend);
+        var webhooks = b.Webhooks;
         await webhooks.CreateAsync(Webhook("wh-all"));
         for (var i = 0; i < 5; i++)
         {
@@ -86,71 +92,79 @@ public sealed class AlertOutboxStoreTests
         Assert.Equal([4, 3, 2, 1, 0], first.Concat(rest).Select(d => (int)(d.CreatedAt - T0).TotalMinutes));
     }
 
-    [Fact]
-    public async Task DeletingAWebhookRemovesItsPendingDeliveries()
+    [Theory]
+    [MemberData(nameof(Backend.Names), MemberType = typeof(Backend))]
+    public async Task DeletingAWebhookRemovesItsPendingDeliveries(string backend)
     {
-        var (db, webhooks, _, _) = await Open();
-        using var _db = db;
+        await using var b = await Open(backend);
+        var webhooks = b.Webhooks;
         await webhooks.CreateAsync(Webhook("wh-all"));
         await webhooks.EnqueueAsync(Health("site-a"), T0);
-        var message = (await webhooks.DueAsync(T0, 10))[0].Delivery.MessageId;
+        var message = (await webhooks.DueAsync(T0, T0, 10))[0].Delivery.MessageId;
 
         Assert.True(await webhooks.DeleteAsync("wh-all"));
 
-        Assert.Empty(await webhooks.DueAsync(T0.AddDays(1), 10));
+        Assert.Empty(await webhooks.DueAsync(T0.AddDays(1), T0.AddDays(1), 10));
         Assert.False(await webhooks.RecordAttemptAsync(message, new DeliveryAttempt(DeliveryStatus.Delivered, T0, null, 200, null)));
         Assert.False(await webhooks.DeleteAsync("wh-all"));
     }
 
-    [Fact]
-    public async Task AlertChangeAndItsEventsAreWrittenTogether()
+    [Theory]
+    [MemberData(nameof(Backend.Names), MemberType = typeof(Backend))]
+    public async Task AlertChangeAndItsEventsAreWrittenTogether(string backend)
     {
-        var (db, webhooks, alerts, sites) = await Open();
-        using var _db = db;
+        await using var b = await Open(backend);
+        var webhooks = b.Webhooks;
+        var alerts = b.Alerts;
         await webhooks.CreateAsync(Webhook("wh-all"));
-        var key = await KeyOf(sites, "site-a");
 
+        var key = await KeyOf(b, "site-a");
         Assert.True(await alerts.ApplyAsync(new SiteAlertChange("site-a", key, [Raised("site-a")], [], "ok",
             [new OutgoingEvent("risk", "risk.raised", "site-a", "{}")]), T0));
 
         var state = await alerts.GetAsync("site-a");
         Assert.Equal("ok", state.HealthState);
         Assert.Equal(Raised("site-a"), Assert.Single(state.Raised));
-        Assert.Equal("risk.raised", Assert.Single(await webhooks.DueAsync(T0, 10)).Delivery.EventType);
+        Assert.Equal("risk.raised", Assert.Single(await webhooks.DueAsync(T0, T0, 10)).Delivery.EventType);
 
         Assert.True(await alerts.ApplyAsync(new SiteAlertChange("site-a", key, [], [("frost", "night")], null, []), T0.AddHours(1)));
         Assert.Empty((await alerts.GetAsync("site-a")).Raised);
         Assert.Equal("ok", (await alerts.GetAsync("site-a")).HealthState);
     }
 
-    [Fact]
-    public async Task AChangeForADeletedSiteIsNotApplied()
+    [Theory]
+    [MemberData(nameof(Backend.Names), MemberType = typeof(Backend))]
+    public async Task AChangeForADeletedSiteIsNotApplied(string backend)
     {
-        var (db, webhooks, alerts, sites) = await Open();
-        using var _db = db;
+        await using var b = await Open(backend);
+        var webhooks = b.Webhooks;
+        var alerts = b.Alerts;
         await webhooks.CreateAsync(Webhook("wh-all"));
-        var key = await KeyOf(sites, "site-a");
 
+        var key = await KeyOf(b, "site-a");
         Assert.False(await alerts.ApplyAsync(new SiteAlertChange("gone", key, [Raised("gone")], [], "ok", [Health("gone")]), T0));
 
         // An evaluation of site-a that ends after site-a was deleted and created again belongs to the old site.
-        Assert.True(await sites.DeleteAsync("site-a"));
-        Assert.True(await sites.CreateAsync(SiteStoreTests.Site("site-a")));
+        Assert.True(await b.Sites.DeleteAsync("site-a"));
+        Assert.True(await b.Sites.CreateAsync(SiteStoreTests.Site("site-a")));
         Assert.False(await alerts.ApplyAsync(new SiteAlertChange("site-a", key, [Raised("site-a")], [], "ok", [Health("site-a")]), T0));
 
-        Assert.Empty(await webhooks.DueAsync(T0, 10));
+        Assert.Empty(await webhooks.DueAsync(T0, T0, 10));
         Assert.Empty(await alerts.ListRaisedAsync(null, 10));
         Assert.Equal(new SiteAlertState([], null), await alerts.GetAsync("site-a") with { Raised = [] });
     }
 
-    [Fact]
-    public async Task DeletingASiteCancelsItsPendingDeliveriesAndForgetsItsAlerts()
+    [Theory]
+    [MemberData(nameof(Backend.Names), MemberType = typeof(Backend))]
+    public async Task DeletingASiteCancelsItsPendingDeliveriesAndForgetsItsAlerts(string backend)
     {
-        var (db, webhooks, alerts, sites) = await Open();
-        using var _db = db;
+        await using var b = await Open(backend);
+        var webhooks = b.Webhooks;
+        var alerts = b.Alerts;
+        var sites = b.Sites;
         await webhooks.CreateAsync(Webhook("wh-all"));
-        await alerts.ApplyAsync(new SiteAlertChange("site-a", await KeyOf(sites, "site-a"), [Raised("site-a")], [], "ok", [Health("site-a")]), T0);
-        await alerts.ApplyAsync(new SiteAlertChange("site-b", await KeyOf(sites, "site-b"), [Raised("site-b")], [], "ok", [Health("site-b")]), T0);
+        await alerts.ApplyAsync(new SiteAlertChange("site-a", await KeyOf(b, "site-a"), [Raised("site-a")], [], "ok", [Health("site-a")]), T0);
+        await alerts.ApplyAsync(new SiteAlertChange("site-b", await KeyOf(b, "site-b"), [Raised("site-b")], [], "ok", [Health("site-b")]), T0);
 
         Assert.True(await sites.DeleteAsync("site-a"));
 
@@ -161,17 +175,61 @@ public sealed class AlertOutboxStoreTests
         Assert.Equal(["site-b"], (await alerts.ListRaisedAsync(null, 10)).Select(a => a.SiteId));
     }
 
-    [Fact]
-    public async Task RaisedAlertsArePagedAcrossTheFleet()
+    [Theory]
+    [MemberData(nameof(Backend.Names), MemberType = typeof(Backend))]
+    public async Task RaisedAlertsArePagedAcrossTheFleet(string backend)
     {
-        var (db, _, alerts, sites) = await Open();
-        using var _db = db;
-        await alerts.ApplyAsync(new SiteAlertChange("site-a", await KeyOf(sites, "site-a"), [Raised("site-a", "next24h"), Raised("site-a", "night")], [], null, []), T0);
-        await alerts.ApplyAsync(new SiteAlertChange("site-b", await KeyOf(sites, "site-b"), [Raised("site-b")], [], null, []), T0);
+        await using var b = await Open(backend);
+        var alerts = b.Alerts;
+        await alerts.ApplyAsync(new SiteAlertChange("site-a", await KeyOf(b, "site-a"), [Raised("site-a", "next24h"), Raised("site-a", "night")], [], null, []), T0);
+        await alerts.ApplyAsync(new SiteAlertChange("site-b", await KeyOf(b, "site-b"), [Raised("site-b")], [], null, []), T0);
 
         var first = await alerts.ListRaisedAsync(null, 2);
         var rest = await alerts.ListRaisedAsync((first[^1].SiteId, first[^1].ThresholdId, first[^1].WindowName), 2);
 
         Assert.Equal(["site-a/next24h", "site-a/night", "site-b/night"], first.Concat(rest).Select(a => $"{a.SiteId}/{a.WindowName}"));
+    }
+
+    [Fact]
+    public async Task ADueDeliveryIsClaimedByOneNodeUntilTheClaimRunsOut()
+    {
+        await using var b = await Open("postgres");
+        var otherNode = new PostgresWebhookStore(b.Postgres!);
+        await b.Webhooks.CreateAsync(Webhook("wh-all"));
+        for (var i = 0; i < 40; i++)
+        {
+            await b.Webhooks.EnqueueAsync(Health("site-a"), T0);
+        }
+
+        var claimUntil = T0.AddSeconds(90);
+        var both = await Task.WhenAll(Enumerable.Range(0, 4).Select(i =>
+            (i % 2 == 0 ? b.Webhooks : otherNode).DueAsync(T0.AddSeconds(1), claimUntil, 15)));
+        var handedOut = both.SelectMany(d => d).Select(d => d.Delivery.MessageId).ToList();
+        Assert.Equal(40, handedOut.Count);
+        Assert.Equal(40, handedOut.Distinct().Count());
+        Assert.Empty(await otherNode.DueAsync(T0.AddSeconds(89), T0.AddSeconds(179), 50));
+
+        // The claiming node died without recording an attempt: once the claim runs out, the deliveries are due again, with the same ids.
+        var again = await otherNode.DueAsync(claimUntil, claimUntil.AddSeconds(90), 50);
+        Assert.Equal(handedOut.Order(StringComparer.Ordinal), again.Select(d => d.Delivery.MessageId).Order(StringComparer.Ordinal));
+        Assert.All(again, d => Assert.Equal(0, d.Delivery.Attempts));
+    }
+
+    [Fact]
+    public async Task ASecondNodeWaitsForTheSiteLockUntilTheFirstHasApplied()
+    {
+        await using var b = await Open("postgres");
+        var otherNode = new PostgresAlertStore(b.Postgres!);
+        var first = await b.Alerts.LockAsync("site-a");
+        var second = otherNode.LockAsync("site-a");
+        await using (await otherNode.LockAsync("site-b"))
+        {
+            // Another site's lock is independent.
+        }
+
+        await Task.Delay(200);
+        Assert.False(second.IsCompleted);
+        await first.DisposeAsync();
+        await using var held = await second.WaitAsync(TimeSpan.FromSeconds(30));
     }
 }

@@ -11,17 +11,17 @@ namespace ForecastHub.Api.Alerts;
 /// <summary>
 /// Evaluates one site: its health state and its threshold risks against what was last announced,
 /// and stores the change together with the events it sends (<see cref="AlertRules"/> decides).
-/// Evaluations run one at a time, so a sweep and a trigger for the same site never both raise.
+/// Evaluations run one at a time in the process and hold the store's lock on the site, so a sweep
+/// and a trigger, on this node or another, never both raise.
 /// </summary>
 public sealed class AlertEvaluator(
     IAlertStore alerts,
     ModelHealthService health,
-    IEnumerable<ISiteRiskSource> riskSources,
+    ISiteRiskSource riskSource,
     WebhookDeliveryWorker deliveries,
     TimeProvider clock) : IDisposable
 {
     private readonly SemaphoreSlim gate = new(1, 1);
-    private readonly ISiteRiskSource? riskSource = riskSources.LastOrDefault();
 
     /// <summary>Evaluates the site; answers the number of events queued.</summary>
     public async Task<int> EvaluateAsync(SiteRecord site, CancellationToken cancellationToken)
@@ -30,10 +30,11 @@ public sealed class AlertEvaluator(
         await gate.WaitAsync(cancellationToken);
         try
         {
+            await using var siteLock = await alerts.LockAsync(site.Id, cancellationToken);
             var now = clock.GetUtcNow();
             var state = await alerts.GetAsync(site.Id, cancellationToken);
             var assessment = await health.EvaluateAsync(site, cancellationToken);
-            var risk = riskSource is null ? null : await riskSource.GetAsync(site, cancellationToken);
+            var risk = await riskSource.GetAsync(site, cancellationToken);
             var change = Change(site, state, assessment, risk, now);
             if (change.IsEmpty || !await alerts.ApplyAsync(change, now, cancellationToken))
             {
@@ -53,7 +54,7 @@ public sealed class AlertEvaluator(
         }
     }
 
-    private static SiteAlertChange Change(SiteRecord site, SiteAlertState state, Core.Health.HealthAssessment assessment, SiteRisk? risk, DateTimeOffset now)
+    private static SiteAlertChange Change(SiteRecord site, SiteAlertState state, Core.Health.HealthAssessment assessment, SiteAlertRisk? risk, DateTimeOffset now)
     {
         var events = new List<OutgoingEvent>();
         string? healthToStore = null;

@@ -46,7 +46,7 @@ public static class AlertEvents
 {
     public static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web);
 
-    public static RiskAlert Risk(Storage.Sites.SiteRecord site, SiteRisk risk, ThresholdWindowRisk window)
+    public static RiskAlert Risk(Storage.Sites.SiteRecord site, SiteAlertRisk risk, ThresholdWindowRisk window)
     {
         ArgumentNullException.ThrowIfNull(site);
         ArgumentNullException.ThrowIfNull(risk);

@@ -1,5 +1,6 @@
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Readings;
+using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Api.Alerts;
 
@@ -63,4 +64,34 @@ public sealed class AlertingModelStore(IModelStore inner, AlertQueue queue) : IM
 
     public Task<ModelSummary?> GetSummaryAsync(string siteId, CancellationToken cancellationToken = default) =>
         inner.GetSummaryAsync(siteId, cancellationToken);
+}
+
+/// <summary>The site store as alerting sees it: a change of thresholds or night hours queues the site, so risk is re-evaluated at once.</summary>
+public sealed class AlertingSiteStore(ISiteStore inner, AlertQueue queue) : ISiteStore
+{
+    public Task<bool> CreateAsync(SiteRecord site, CancellationToken cancellationToken = default) => inner.CreateAsync(site, cancellationToken);
+
+    public Task<SiteRecord?> GetAsync(string id, CancellationToken cancellationToken = default) => inner.GetAsync(id, cancellationToken);
+
+    public Task<IReadOnlyList<SiteRecord>> ListAsync(string? afterId, int limit, CancellationToken cancellationToken = default) =>
+        inner.ListAsync(afterId, limit, cancellationToken);
+
+    public async Task<SiteRecord?> UpdateAsync(string id, Func<SiteRecord, SiteRecord?> change, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(change);
+        SiteRiskSettings? before = null;
+        var after = await inner.UpdateAsync(id, site =>
+        {
+            before = site.Risk;
+            return change(site);
+        }, cancellationToken);
+        if (after is not null && before is not null && !after.Risk.Equals(before))
+        {
+            queue.Enqueue(id);
+        }
+
+        return after;
+    }
+
+    public Task<bool> DeleteAsync(string id, CancellationToken cancellationToken = default) => inner.DeleteAsync(id, cancellationToken);
 }

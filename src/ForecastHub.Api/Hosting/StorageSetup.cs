@@ -1,11 +1,13 @@
 using System.Data.Common;
 using ForecastHub.Storage;
+using ForecastHub.Storage.Alerts;
 using ForecastHub.Storage.Cluster;
 using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Keys;
 using ForecastHub.Storage.Migrations;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Postgres;
+using ForecastHub.Storage.Postgres.Alerts;
 using ForecastHub.Storage.Postgres.Cluster;
 using ForecastHub.Storage.Postgres.Health;
 using ForecastHub.Storage.Postgres.Keys;
@@ -14,9 +16,11 @@ using ForecastHub.Storage.Postgres.Models;
 using ForecastHub.Storage.Postgres.Readings;
 using ForecastHub.Storage.Postgres.Sites;
 using ForecastHub.Storage.Postgres.Verification;
+using ForecastHub.Storage.Postgres.Webhooks;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Verification;
+using ForecastHub.Storage.Webhooks;
 using Microsoft.Extensions.Options;
 
 namespace ForecastHub.Api.Hosting;
@@ -52,6 +56,8 @@ public static class StorageSetup
         Add<IModelStore>(services, sp => new SqliteModelStore(Sqlite(sp)), sp => new PostgresModelStore(Postgres(sp)));
         Add<IForecastArchive>(services, sp => new SqliteForecastArchive(Sqlite(sp)), sp => new PostgresForecastArchive(Postgres(sp)));
         Add<IReadingSummaryStore>(services, sp => new SqliteReadingSummaryStore(Sqlite(sp)), sp => new PostgresReadingSummaryStore(Postgres(sp)));
+        Add<IWebhookStore>(services, sp => new SqliteWebhookStore(Sqlite(sp)), sp => new PostgresWebhookStore(Postgres(sp)));
+        Add<IAlertStore>(services, sp => new SqliteAlertStore(Sqlite(sp)), sp => new PostgresAlertStore(Postgres(sp)));
         Add<IWorkLeases>(services, sp => new LocalWorkLeases(Clock(sp)), sp => new PostgresWorkLeases(Postgres(sp)));
         Add<IStorageSchema>(services, sp => new SqliteSchema(sp.GetRequiredService<MigrationRunner>()),
             sp => new PostgresSchema(sp.GetRequiredService<PostgresMigrationRunner>()));

@@ -23,6 +23,9 @@ public sealed partial class WebhookDeliveryWorker(
     private static readonly TimeSpan MaxSleep = TimeSpan.FromMinutes(1);
 
     private readonly SemaphoreSlim wake = new(0, 1);
+
+    // Long enough for a whole batch at the send timeout, so no other node takes a delivery still being sent.
+    private TimeSpan ClaimFor => TimeSpan.FromSeconds(options.Value.TimeoutSeconds) * (BatchSize / Parallelism + 1);
     private TaskCompletionSource attemptRecorded = new(TaskCreationOptions.RunContinuationsAsynchronously);
 
     /// <summary>Completes when the next delivery attempt's outcome has been stored, so callers await work instead of polling.</summary>
@@ -48,7 +51,8 @@ public sealed partial class WebhookDeliveryWorker(
         {
             try
             {
-                var due = await store.DueAsync(clock.GetUtcNow(), BatchSize, stoppingToken);
+                var now = clock.GetUtcNow();
+                var due = await store.DueAsync(now, now + ClaimFor, BatchSize, stoppingToken);
                 await Parallel.ForEachAsync(due, new ParallelOptions { MaxDegreeOfParallelism = Parallelism, CancellationToken = stoppingToken },
                     async (delivery, token) => await DeliverAsync(delivery, token));
                 if (due.Count == BatchSize)

@@ -1,5 +1,4 @@
 using ForecastHub.Api.Hosting;
-using ForecastHub.Storage.Webhooks;
 using Microsoft.Extensions.Options;
 
 namespace ForecastHub.Api.Webhooks;
@@ -11,7 +10,6 @@ public static class WebhookSetup
     {
         services.AddOptions<WebhookOptions>().BindConfiguration(WebhookOptions.SectionName).ValidateOnStart();
         services.AddSingleton<IValidateOptions<WebhookOptions>>(new ThrowingValidator<WebhookOptions>(o => o.Validate()));
-        services.AddSingleton<IWebhookStore, SqliteWebhookStore>();
         services.AddSingleton<WebhookSender>();
         services.AddSingleton<WebhookDeliveryWorker>();
         services.AddHostedService(sp => sp.GetRequiredService<WebhookDeliveryWorker>());

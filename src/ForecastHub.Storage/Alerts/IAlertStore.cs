@@ -4,6 +4,10 @@ namespace ForecastHub.Storage.Alerts;
 /// exactly when the state that records it is written. Deleting a site forgets its state.</summary>
 public interface IAlertStore
 {
+    /// <summary>Holds the site's evaluation lock until disposed, so that across every process sharing
+    /// the storage one evaluation of a site reads, decides and applies before the next one reads.</summary>
+    Task<IAsyncDisposable> LockAsync(string siteId, CancellationToken cancellationToken = default);
+
     Task<SiteAlertState> GetAsync(string siteId, CancellationToken cancellationToken = default);
 
     /// <summary>Applies the change and queues its events for every covering webhook, due at <paramref name="at"/>.

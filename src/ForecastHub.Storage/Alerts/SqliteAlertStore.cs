@@ -7,6 +7,10 @@ public sealed class SqliteAlertStore(SqliteDatabase database) : IAlertStore
 {
     private const string Columns = "site_id, threshold_id, window_name, window_from_ms, window_to_ms, raised_at_ms, updated_at_ms, detail_json";
 
+    /// <summary>A SQLite file has one service process, whose evaluator already runs one evaluation at a time.</summary>
+    public Task<IAsyncDisposable> LockAsync(string siteId, CancellationToken cancellationToken = default) =>
+        Task.FromResult<IAsyncDisposable>(NothingHeld.Instance);
+
     public Task<SiteAlertState> GetAsync(string siteId, CancellationToken cancellationToken = default) =>
         Task.FromResult(database.Read((connection, transaction) =>
         {
@@ -121,4 +125,11 @@ public sealed class SqliteAlertStore(SqliteDatabase database) : IAlertStore
         SqliteExtensions.FromUnixMs(reader.GetInt64(5)),
         SqliteExtensions.FromUnixMs(reader.GetInt64(6)),
         reader.GetString(7));
+
+    private sealed class NothingHeld : IAsyncDisposable
+    {
+        public static readonly NothingHeld Instance = new();
+
+        public ValueTask DisposeAsync() => ValueTask.CompletedTask;
+    }
 }

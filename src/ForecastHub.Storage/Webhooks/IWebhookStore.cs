@@ -19,8 +19,10 @@ public interface IWebhookStore
     /// <summary>Adds one pending delivery, due at <paramref name="at"/>, per webhook that covers the event; answers how many.</summary>
     Task<int> EnqueueAsync(OutgoingEvent outgoing, DateTimeOffset at, CancellationToken cancellationToken = default);
 
-    /// <summary>Pending deliveries due at or before <paramref name="now"/>, oldest first.</summary>
-    Task<IReadOnlyList<DueDelivery>> DueAsync(DateTimeOffset now, int limit, CancellationToken cancellationToken = default);
+    /// <summary>Pending deliveries due at or before <paramref name="now"/>, oldest first, claimed until
+    /// <paramref name="claimUntil"/>: where several processes share the storage, none of them is
+    /// handed these again before then (unless an attempt is recorded), so each is sent by one.</summary>
+    Task<IReadOnlyList<DueDelivery>> DueAsync(DateTimeOffset now, DateTimeOffset claimUntil, int limit, CancellationToken cancellationToken = default);
 
     /// <summary>When the earliest pending delivery is due; null when none is pending.</summary>
     Task<DateTimeOffset?> NextDueAsync(CancellationToken cancellationToken = default);

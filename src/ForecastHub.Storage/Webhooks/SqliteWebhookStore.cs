@@ -91,7 +91,9 @@ public sealed class SqliteWebhookStore(SqliteDatabase database) : IWebhookStore
         return queued;
     }
 
-    public Task<IReadOnlyList<DueDelivery>> DueAsync(DateTimeOffset now, int limit, CancellationToken cancellationToken = default) =>
+    /// <summary>No claim is written: a SQLite file has one service process, whose worker never asks again while it sends,
+    /// and after a crash what was in flight is due at once.</summary>
+    public Task<IReadOnlyList<DueDelivery>> DueAsync(DateTimeOffset now, DateTimeOffset claimUntil, int limit, CancellationToken cancellationToken = default) =>
         Task.FromResult(database.Read<IReadOnlyList<DueDelivery>>((connection, transaction) =>
         {
             using var select = connection.Command(transaction, $"""

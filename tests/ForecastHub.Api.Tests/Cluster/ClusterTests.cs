@@ -11,8 +11,10 @@ using ForecastHub.Storage.Postgres;
 using ForecastHub.Storage.Postgres.Migrations;
 using ForecastHub.Storage.Postgres.Readings;
 using ForecastHub.Storage.Postgres.Sites;
+using ForecastHub.Storage.Postgres.Webhooks;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
+using ForecastHub.Storage.Webhooks;
 using ForecastHub.TestData;
 using Npgsql;
 
@@ -218,6 +220,69 @@ public sealed class ClusterTests
             var fittedAt = DateTimeOffset.FromUnixTimeMilliseconds(await ScalarAsync<long>(db, "SELECT fitted_at_ms FROM site_models;"));
             Assert.True(fittedAt.UtcDateTime >= leaseExpiry.AddSeconds(-1), $"fitted at {fittedAt:O}, lease ran to {leaseExpiry:O}");
             Assert.Equal(1, await MetricAsync(viaB, "forecasthub_fits_total{outcome=\"ok\"}"));
+        }
+        finally
+        {
+            await PostgresServer.Shared.DropDatabaseAsync(db);
+        }
+    }
+
+    [Fact]
+    public async Task TwoNodesSweepingTogetherRaiseAndSendEachRiskOnce()
+    {
+        var db = await PostgresServer.Shared.CreateDatabaseAsync();
+        await using var receiver = await Webhooks.WebhookReceiver.StartAsync();
+        try
+        {
+            var siteIds = Enumerable.Range(0, 12).Select(i => $"warm-{i:D2}").ToList();
+            await SeedAsync(db, siteIds, days: 10, maxOrder: 4);
+            await using (var fitter = await ServiceProcess.StartOnPostgresAsync(db, "--Cluster:NodeName=fitter"))
+            {
+                await WaitUntilAsync(async () => await ScalarAsync<long>(db, "SELECT count(*) FROM site_models;") == siteIds.Count
+                    && await ScalarAsync<long>(db, "SELECT count(*) FROM work_leases WHERE kind = 'refit';") == 0);
+            }
+
+            // Above -40 C every sample path crosses, in both windows; both nodes find that in their start-up sweep at the same time.
+            await using (var database = new PostgresDatabase(db))
+            {
+                var sites = new PostgresSiteStore(database, TimeProvider.System);
+                foreach (var id in siteIds)
+                {
+                    Assert.NotNull(await sites.UpdateAsync(id, s => s with
+                    {
+                        Risk = s.Risk with { Thresholds = [new SiteThreshold("warm", "above", -40, 0.5)] },
+                    }));
+                }
+                Assert.True(await new PostgresWebhookStore(database).CreateAsync(new WebhookRecord("wh-1", receiver.Url,
+                    "whsec_" + Convert.ToBase64String(new byte[32]), [], ["risk"], DateTimeOffset.UtcNow)));
+            }
+
+            var nodes = await Task.WhenAll(new[] { "a", "b" }.Select(n =>
+                ServiceProcess.StartOnPostgresAsync(db, $"--Cluster:NodeName={n}", "--Webhooks:AllowPrivateNetworks=true")));
+            try
+            {
+                var expected = siteIds.Count * 2;
+                await WaitUntilAsync(async () =>
+                    await ScalarAsync<long>(db, "SELECT count(*) FROM webhook_deliveries WHERE status = 'delivered';") >= expected);
+
+                Assert.Equal(expected, await ScalarAsync<long>(db, "SELECT count(*) FROM raised_alerts;"));
+                Assert.Equal(expected, await ScalarAsync<long>(db, "SELECT count(*) FROM webhook_deliveries;"));
+                Assert.Equal(expected, await ScalarAsync<long>(db, "SELECT count(*) FROM webhook_deliveries WHERE event_type = 'risk.raised' AND attempts = 1;"));
+                var received = new List<Webhooks.ReceivedDelivery>();
+                while (receiver.HasMore)
+                {
+                    received.Add(await receiver.NextAsync(Patience));
+                }
+                Assert.Equal(expected, received.Count);
+                Assert.Equal(expected, received.Select(r => r.Id).Distinct().Count());
+            }
+            finally
+            {
+                foreach (var node in nodes)
+                {
+                    await node.DisposeAsync();
+                }
+            }
         }
         finally
         {

@@ -1,7 +1,7 @@
 using System.Net;
 using System.Net.Sockets;
 using ForecastHub.Api.Hosting;
-using Microsoft.AspNetCore.Mvc.Testing;
+using ForecastHub.Api.Tests.Infrastructure;
 
 namespace ForecastHub.Api.Tests.Deployment;
 
@@ -10,7 +10,8 @@ public sealed class HealthProbeTests
     [Fact]
     public async Task ProbeExitsZeroWhenTheHealthEndpointAnswersOk()
     {
-        await using var factory = new WebApplicationFactory<Program>();
+        // A fresh database file each time: a file left in the build output by another build must not decide the answer.
+        await using var factory = new ApiFactory();
         using var output = new StringWriter();
 
         var code = await HealthProbe.RunAsync(["healthcheck", "http://localhost/health/live"], output, factory.Server.CreateHandler());
@@ -22,7 +23,7 @@ public sealed class HealthProbeTests
     [Fact]
     public async Task ProbeExitsOneWhenTheEndpointAnswersAnError()
     {
-        await using var factory = new WebApplicationFactory<Program>();
+        await using var factory = new ApiFactory();
         using var output = new StringWriter();
 
         var code = await HealthProbe.RunAsync(["healthcheck", "http://localhost/health/no-such-check"], output, factory.Server.CreateHandler());

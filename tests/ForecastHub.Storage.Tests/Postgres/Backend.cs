@@ -1,8 +1,11 @@
+using ForecastHub.Storage.Alerts;
 using ForecastHub.Storage.Cluster;
 using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Keys;
 using ForecastHub.Storage.Migrations;
 using ForecastHub.Storage.Models;
+using ForecastHub.Storage.Postgres;
+using ForecastHub.Storage.Postgres.Alerts;
 using ForecastHub.Storage.Postgres.Cluster;
 using ForecastHub.Storage.Postgres.Health;
 using ForecastHub.Storage.Postgres.Keys;
@@ -10,9 +13,11 @@ using ForecastHub.Storage.Postgres.Models;
 using ForecastHub.Storage.Postgres.Readings;
 using ForecastHub.Storage.Postgres.Sites;
 using ForecastHub.Storage.Postgres.Verification;
+using ForecastHub.Storage.Postgres.Webhooks;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Verification;
+using ForecastHub.Storage.Webhooks;
 
 namespace ForecastHub.Storage.Tests.Postgres;
 
@@ -22,7 +27,8 @@ public sealed class Backend : IAsyncDisposable
     private readonly Func<ValueTask> dispose;
 
     private Backend(string name, ISiteStore sites, IReadingStore readings, IApiKeyStore keys, IModelStore models,
-        IForecastArchive archive, IReadingSummaryStore summaries, IWorkLeases leases, Func<ValueTask> dispose)
+        IForecastArchive archive, IReadingSummaryStore summaries, IWorkLeases leases, IWebhookStore webhooks, IAlertStore alerts,
+        PostgresDatabase? postgres, Func<ValueTask> dispose)
     {
         Name = name;
         Sites = sites;
@@ -32,6 +38,9 @@ public sealed class Backend : IAsyncDisposable
         Archive = archive;
         Summaries = summaries;
         Leases = leases;
+        Webhooks = webhooks;
+        Alerts = alerts;
+        Postgres = postgres;
         this.dispose = dispose;
     }
 
@@ -53,6 +62,13 @@ public sealed class Backend : IAsyncDisposable
 
     public IWorkLeases Leases { get; }
 
+    public IWebhookStore Webhooks { get; }
+
+    public IAlertStore Alerts { get; }
+
+    /// <summary>The PostgreSQL database, for tests that open a second store on it as another node would; null on SQLite.</summary>
+    public PostgresDatabase? Postgres { get; }
+
     public static async Task<Backend> CreateAsync(string name, TimeProvider? clock = null)
     {
         clock ??= TimeProvider.System;
@@ -63,6 +79,7 @@ public sealed class Backend : IAsyncDisposable
             var db = file.Database;
             return new Backend(name, new SqliteSiteStore(db, clock), new SqliteReadingStore(db), new SqliteApiKeyStore(db),
                 new SqliteModelStore(db), new SqliteForecastArchive(db), new SqliteReadingSummaryStore(db), new LocalWorkLeases(clock),
+                new SqliteWebhookStore(db), new SqliteAlertStore(db), null,
                 () =>
                 {
                     file.Dispose();
@@ -74,7 +91,7 @@ public sealed class Backend : IAsyncDisposable
         var database = pg.Database;
         return new Backend(name, new PostgresSiteStore(database, clock), new PostgresReadingStore(database), new PostgresApiKeyStore(database),
             new PostgresModelStore(database), new PostgresForecastArchive(database), new PostgresReadingSummaryStore(database),
-            new PostgresWorkLeases(database), pg.DisposeAsync);
+            new PostgresWorkLeases(database), new PostgresWebhookStore(database), new PostgresAlertStore(database), database, pg.DisposeAsync);
     }
 
     public ValueTask DisposeAsync() => dispose();

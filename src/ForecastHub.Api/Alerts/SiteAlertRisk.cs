@@ -18,7 +18,7 @@ public sealed record ThresholdWindowRisk(
     FirstCrossing? FirstCrossing);
 
 /// <summary>A site's risk now: the forecast origin it comes from, its confidence, and each threshold's windows.</summary>
-public sealed record SiteRisk(DateTimeOffset Origin, string Confidence, string? ConfidenceReason, IReadOnlyList<ThresholdWindowRisk> Windows);
+public sealed record SiteAlertRisk(DateTimeOffset Origin, string Confidence, string? ConfidenceReason, IReadOnlyList<ThresholdWindowRisk> Windows);
 
 /// <summary>
 /// Where alerts get a site's risk: the one seam between alerting and the risk computation of the
@@ -26,5 +26,5 @@ public sealed record SiteRisk(DateTimeOffset Origin, string Confidence, string? 
 /// </summary>
 public interface ISiteRiskSource
 {
-    Task<SiteRisk?> GetAsync(SiteRecord site, CancellationToken cancellationToken);
+    Task<SiteAlertRisk?> GetAsync(SiteRecord site, CancellationToken cancellationToken);
 }

@@ -1,0 +1,200 @@
+using System.Security.Cryptography;
+using System.Text.Json;
+using ForecastHub.Storage.Webhooks;
+using Npgsql;
+
+namespace ForecastHub.Storage.Postgres.Webhooks;
+
+/// <summary>
+/// Webhooks and the outbox shared by every node. <see cref="DueAsync"/> claims what it returns:
+/// it moves each row's next attempt to the claim's end in the same statement (rows another node is
+/// claiming are skipped), so two nodes never send one delivery at once, and a node that dies
+/// mid-send leaves the delivery to be sent again, with the same message id, once the claim runs out.
+/// </summary>
+public sealed class PostgresWebhookStore(PostgresDatabase database) : IWebhookStore
+{
+    private const string WebhookColumns = "id, url, secret, site_ids, events, created_at_ms";
+
+    private const string DeliveryColumns = """
+        d.seq, d.message_id, d.webhook_id, d.event_type, d.site_id, d.body, d.status, d.attempts, d.created_at_ms,
+        d.next_attempt_at_ms, d.last_attempt_at_ms, d.last_status_code, d.last_error
+        """;
+
+    public Task<bool> CreateAsync(WebhookRecord webhook, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(webhook);
+        return database.WriteAsync(async (connection, transaction) =>
+        {
+            await using var insert = connection.Command(transaction, $"""
+                INSERT INTO webhooks ({WebhookColumns}) VALUES ($1, $2, $3, $4, $5, $6) ON CONFLICT DO NOTHING;
+                """)
+                .With(webhook.Id)
+                .With(webhook.Url)
+                .With(webhook.Secret)
+                .With(JsonSerializer.Serialize(webhook.SiteIds))
+                .With(JsonSerializer.Serialize(webhook.Events))
+                .With(webhook.CreatedAt.ToUnixTimeMilliseconds());
+            return await insert.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false) == 1;
+        }, cancellationToken);
+    }
+
+    public Task<WebhookRecord?> GetAsync(string id, CancellationToken cancellationToken = default) =>
+        database.QueryAsync(async connection =>
+        {
+            await using var select = connection.Command(null, $"SELECT {WebhookColumns} FROM webhooks WHERE id = $1;").With(id);
+            return (await ReadAllAsync(select, ReadWebhook, cancellationToken).ConfigureAwait(false)).FirstOrDefault();
+        }, cancellationToken);
+
+    public Task<IReadOnlyList<WebhookRecord>> ListAsync(string? afterId, int limit, CancellationToken cancellationToken = default) =>
+        database.QueryAsync<IReadOnlyList<WebhookRecord>>(async connection =>
+        {
+            await using var select = connection.Command(null, $"SELECT {WebhookColumns} FROM webhooks WHERE id > $1 ORDER BY id LIMIT $2;")
+                .With(afterId ?? "").With(limit);
+            return await ReadAllAsync(select, ReadWebhook, cancellationToken).ConfigureAwait(false);
+        }, cancellationToken);
+
+    public Task<bool> DeleteAsync(string id, CancellationToken cancellationToken = default) =>
+        database.WriteAsync(async (connection, transaction) =>
+        {
+            // Deliveries go with it (foreign key cascade): a pending one can no longer be recorded or sent.
+            await using var delete = connection.Command(transaction, "DELETE FROM webhooks WHERE id = $1;").With(id);
+            return await delete.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false) == 1;
+        }, cancellationToken);
+
+    public Task<int> EnqueueAsync(OutgoingEvent outgoing, DateTimeOffset at, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(outgoing);
+        return database.WriteAsync((connection, transaction) => EnqueueAsync(connection, transaction, outgoing, at, cancellationToken), cancellationToken);
+    }
+
+    /// <summary>Queues the event for every covering webhook inside the caller's transaction.</summary>
+    internal static async Task<int> EnqueueAsync(NpgsqlConnection connection, NpgsqlTransaction transaction, OutgoingEvent outgoing, DateTimeOffset at,
+        CancellationToken cancellationToken)
+    {
+        List<WebhookRecord> webhooks;
+        await using (var select = connection.Command(transaction, $"SELECT {WebhookColumns} FROM webhooks ORDER BY id;"))
+        {
+            webhooks = await ReadAllAsync(select, ReadWebhook, cancellationToken).ConfigureAwait(false);
+        }
+
+        var queued = 0;
+        foreach (var webhook in webhooks.Where(w => w.Covers(outgoing.Family, outgoing.SiteId)))
+        {
+            await using var insert = connection.Command(transaction, """
+                INSERT INTO webhook_deliveries (message_id, webhook_id, event_type, site_id, body, status, attempts, created_at_ms, next_attempt_at_ms)
+                VALUES ($1, $2, $3, $4, $5, 'pending', 0, $6, $6);
+                """)
+                .With(NewMessageId())
+                .With(webhook.Id)
+                .With(outgoing.EventType)
+                .With(outgoing.SiteId)
+                .With(outgoing.Body)
+                .With(at.ToUnixTimeMilliseconds());
+            queued += await insert.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+        }
+
+        return queued;
+    }
+
+    public Task<IReadOnlyList<DueDelivery>> DueAsync(DateTimeOffset now, DateTimeOffset claimUntil, int limit, CancellationToken cancellationToken = default) =>
+        database.WriteAsync<IReadOnlyList<DueDelivery>>(async (connection, transaction) =>
+        {
+            // Every part of one statement reads the same snapshot, so the final SELECT sees the rows as they were before the claim.
+            await using var claim = connection.Command(transaction, $"""
+                WITH due AS (
+                    SELECT seq FROM webhook_deliveries
+                    WHERE status = 'pending' AND next_attempt_at_ms <= $1
+                    ORDER BY next_attempt_at_ms, seq LIMIT $2
+                    FOR UPDATE SKIP LOCKED),
+                claimed AS (
+                    UPDATE webhook_deliveries d SET next_attempt_at_ms = $3 FROM due WHERE d.seq = due.seq RETURNING d.seq)
+                SELECT {DeliveryColumns}, w.url, w.secret
+                FROM claimed c JOIN webhook_deliveries d ON d.seq = c.seq JOIN webhooks w ON w.id = d.webhook_id
+                ORDER BY d.next_attempt_at_ms, d.seq;
+                """)
+                .With(now.ToUnixTimeMilliseconds())
+                .With(limit)
+                .With(claimUntil.ToUnixTimeMilliseconds());
+            return await ReadAllAsync(claim, r => new DueDelivery(ReadDelivery(r), r.GetString(13), r.GetString(14)), cancellationToken)
+                .ConfigureAwait(false);
+        }, cancellationToken);
+
+    public Task<DateTimeOffset?> NextDueAsync(CancellationToken cancellationToken = default) =>
+        database.QueryAsync(async connection =>
+        {
+            await using var select = connection.Command(null, "SELECT min(next_attempt_at_ms) FROM webhook_deliveries WHERE status = 'pending';");
+            return await select.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false) is long ms
+                ? NpgsqlExtensions.FromUnixMs(ms)
+                : (DateTimeOffset?)null;
+        }, cancellationToken);
+
+    public Task<bool> RecordAttemptAsync(string messageId, DeliveryAttempt attempt, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(attempt);
+        return database.WriteAsync(async (connection, transaction) =>
+        {
+            await using var update = connection.Command(transaction, """
+                UPDATE webhook_deliveries
+                SET status = $2, attempts = attempts + 1, last_attempt_at_ms = $3, next_attempt_at_ms = $4,
+                    last_status_code = $5, last_error = $6
+                WHERE message_id = $1 AND status = 'pending';
+                """)
+                .With(messageId)
+                .With(attempt.Status)
+                .With(attempt.AttemptedAt.ToUnixTimeMilliseconds())
+                .With<long?>(attempt.NextAttemptAt?.ToUnixTimeMilliseconds(), NpgsqlTypes.NpgsqlDbType.Bigint)
+                .With<int?>(attempt.StatusCode, NpgsqlTypes.NpgsqlDbType.Integer)
+                .With<string?>(attempt.Error, NpgsqlTypes.NpgsqlDbType.Text);
+            return await update.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false) == 1;
+        }, cancellationToken);
+    }
+
+    public Task<IReadOnlyList<DeliveryRecord>> ListDeliveriesAsync(string webhookId, long? beforeSeq, int limit, CancellationToken cancellationToken = default) =>
+        database.QueryAsync<IReadOnlyList<DeliveryRecord>>(async connection =>
+        {
+            await using var select = connection.Command(null, $"""
+                SELECT {DeliveryColumns} FROM webhook_deliveries d
+                WHERE d.webhook_id = $1 AND d.seq < $2 ORDER BY d.seq DESC LIMIT $3;
+                """)
+                .With(webhookId).With(beforeSeq ?? long.MaxValue).With(limit);
+            return await ReadAllAsync(select, ReadDelivery, cancellationToken).ConfigureAwait(false);
+        }, cancellationToken);
+
+    // Standard Webhooks message ids: unique per message, the same on every retry of it.
+    private static string NewMessageId() => "msg_" + Convert.ToHexStringLower(RandomNumberGenerator.GetBytes(16));
+
+    private static async Task<List<T>> ReadAllAsync<T>(NpgsqlCommand select, Func<NpgsqlDataReader, T> read, CancellationToken cancellationToken)
+    {
+        await using var reader = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+        var rows = new List<T>();
+        while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
+        {
+            rows.Add(read(reader));
+        }
+
+        return rows;
+    }
+
+    private static WebhookRecord ReadWebhook(NpgsqlDataReader reader) => new(
+        reader.GetString(0),
+        reader.GetString(1),
+        reader.GetString(2),
+        JsonSerializer.Deserialize<string[]>(reader.GetString(3)) ?? [],
+        JsonSerializer.Deserialize<string[]>(reader.GetString(4)) ?? [],
+        NpgsqlExtensions.FromUnixMs(reader.GetInt64(5)));
+
+    private static DeliveryRecord ReadDelivery(NpgsqlDataReader reader) => new(
+        reader.GetInt64(0),
+        reader.GetString(1),
+        reader.GetString(2),
+        reader.GetString(3),
+        reader.GetNullableString(4),
+        reader.GetString(5),
+        reader.GetString(6),
+        reader.GetInt32(7),
+        NpgsqlExtensions.FromUnixMs(reader.GetInt64(8)),
+        reader.IsDBNull(9) ? null : NpgsqlExtensions.FromUnixMs(reader.GetInt64(9)),
+        reader.IsDBNull(10) ? null : NpgsqlExtensions.FromUnixMs(reader.GetInt64(10)),
+        reader.IsDBNull(11) ? null : reader.GetInt32(11),
+        reader.GetNullableString(12));
+}
