@@ -1,8 +1,10 @@
 using System.Globalization;
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
-using ForecastHub.Storage;
 using ForecastHub.Storage.Migrations;
 using ForecastHub.Storage.Sites;
+using ForecastHub.Storage;
 using ForecastHub.TestData;
 using Microsoft.Data.Sqlite;
 
@@ -20,8 +22,8 @@ internal static class FleetSeeder
         for (var s = 0; s < sites; s++)
         {
             var id = string.Create(CultureInfo.InvariantCulture, $"site-{s:0000}");
-            var settings = new ModelSettings("auto", "burg", "pacf-aic", 48, 365, "calibrated");
-            await store.CreateAsync(new SiteRecord(id, $"Benchmark site {s}", "Europe/Berlin", "hourly", null, null, null, null,
+            var settings = ModelSettings.DefaultFor(GridCadence.Hourly) with { FitWindowDays = 365 };
+            await store.CreateAsync(new SiteRecord(id, $"Benchmark site {s}", "Europe/Berlin", GridCadence.Hourly, null, null, null, null,
                 QualityLimits.Default, settings, start, start));
             var series = SyntheticSeries.Hourly(start, days * 24, seed: s);
             await database.WriteAsync((connection, transaction) =>

@@ -2,11 +2,13 @@ using System.Diagnostics;
 using System.Globalization;
 using ForecastHub.Api.Observations;
 using ForecastHub.Api.Problems;
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
-using ForecastHub.Storage;
 using ForecastHub.Storage.Migrations;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
+using ForecastHub.Storage;
 using Microsoft.AspNetCore.Http;
 using Microsoft.Data.Sqlite;
 
@@ -43,8 +45,8 @@ internal sealed class IngestStagesVerb : IBenchmarkVerb
             for (var r = 0; r < Warmup + Repeats; r++)
             {
                 var siteId = string.Create(CultureInfo.InvariantCulture, $"stages-{r:000}");
-                await sites.CreateAsync(new SiteRecord(siteId, siteId, "UTC", "hourly", null, null, null, null, QualityLimits.Default,
-                    new ModelSettings("auto", "burg", "pacf-aic", 48, 365, "calibrated"), now, now)).ConfigureAwait(false);
+                await sites.CreateAsync(new SiteRecord(siteId, siteId, "UTC", GridCadence.Hourly, null, null, null, null, QualityLimits.Default,
+                    ModelSettings.DefaultFor(GridCadence.Hourly) with { FitWindowDays = 365 }, now, now)).ConfigureAwait(false);
                 var steps = await OneRequest(database, siteId, body, now).ConfigureAwait(false);
                 if (r >= Warmup)
                 {

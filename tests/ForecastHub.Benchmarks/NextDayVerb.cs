@@ -18,7 +18,7 @@ internal sealed class NextDayVerb : IBenchmarkVerb
         foreach (var maxOrder in new[] { 24, 48 })
         {
             var grid = Series.SeasonalHourlyGrid(366 * 24, seed: 7);
-            var model = SiteModelFitter.Fit(grid, new ModelSettings { MaxOrder = maxOrder, OrderPolicy = ForecastHub.Core.Selection.OrderPolicy.Aic });
+            var model = SiteModelFitter.Fit(grid, new ModelSettings { FitWindowDays = 1095, MaxOrder = maxOrder, OrderPolicy = ForecastHub.Core.Selection.OrderPolicy.Aic });
             Threshold[] thresholds = [new(0, ThresholdDirection.Below), new(25, ThresholdDirection.Above)];
             var seed = 0;
             var m = Measure.Run(() => SiteForecaster.Forecast(model, grid, 48, [0.8, 0.95], thresholds, seed++, 2000), batches: 31, callsPerBatch: 20, warmupCalls: 200);

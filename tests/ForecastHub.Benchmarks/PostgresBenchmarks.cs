@@ -153,8 +153,8 @@ internal static partial class PostgresBenchmarks
         for (var s = 0; s < sites; s++)
         {
             var id = string.Create(CultureInfo.InvariantCulture, $"site-{s:0000}");
-            await siteStore.CreateAsync(new SiteRecord(id, $"Benchmark site {s}", "Europe/Berlin", "hourly", null, null, null, null,
-                QualityLimits.Default, new ModelSettings("auto", "burg", "pacf-aic", 48, 365, "calibrated"), start, start));
+            await siteStore.CreateAsync(new SiteRecord(id, $"Benchmark site {s}", "Europe/Berlin", ForecastHub.Core.Grid.GridCadence.Hourly, null, null, null, null,
+                QualityLimits.Default, new ForecastHub.Core.Modeling.ModelSettings { FitWindowDays = 365 }, start, start));
             var series = SyntheticSeries.Hourly(start, days * 24, seed: s)
                 .Select((r, i) => new IncomingReading(i, r.Time.ToUnixTimeMilliseconds(), r.ValueC, r.ValueC, "C")).ToArray();
             await readings.IngestAsync(id, series, ConflictPolicy.Reject, start);

@@ -1,7 +1,7 @@
 using ForecastHub.Benchmarks;
 
 // Add a verb by implementing IBenchmarkVerb and listing it here.
-IBenchmarkVerb[] verbs = [new ForecastVerb(), new FleetVerb(), new ThroughputVerb(), new FitVerb(), new NextDayVerb(), new IngestVerb(), new IngestStagesVerb(), new PostgresFleetVerb(), new PostgresThroughputVerb(), new SeattleVerb(), new AlertSweepVerb()];
+IBenchmarkVerb[] verbs = [new ForecastVerb(), new FleetVerb(), new ThroughputVerb(), new FitVerb(), new RefitHttpVerb(), new NextDayVerb(), new IngestVerb(), new IngestStagesVerb(), new PostgresFleetVerb(), new PostgresThroughputVerb(), new SeattleVerb(), new AlertSweepVerb()];
 
 var name = args.Length > 0 ? args[0] : string.Empty;
 var verb = verbs.FirstOrDefault(v => string.Equals(v.Name, name, StringComparison.OrdinalIgnoreCase));

@@ -51,7 +51,7 @@ public sealed class MigrationTests
         Assert.Equal(runner.LatestVersion, version);
         var site = await new Sites.SqliteSiteStore(db.Database, TimeProvider.System).GetAsync("old-site");
         Assert.NotNull(site);
-        Assert.Equal("max", site.DailyStatistic);
+        Assert.Equal(Core.Grid.DailyStatistic.Max, site.DailyStatistic);
         Assert.Equal(1, site.SettingsVersion);
         Assert.Equal(DateTimeOffset.FromUnixTimeMilliseconds(1700000000000), site.UpdatedAt);
         var readings = await new Readings.SqliteReadingStore(db.Database).ReadAsync("old-site", long.MinValue, long.MaxValue, null, 10);

@@ -1,3 +1,5 @@
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Migrations;
 using ForecastHub.Storage.Sites;
@@ -8,8 +10,8 @@ public sealed class SiteStoreTests
 {
     private static readonly DateTimeOffset Created = new(2025, 1, 1, 0, 0, 0, TimeSpan.Zero);
 
-    internal static SiteRecord Site(string id = "site-a") => new(id, "Site A", "UTC", "hourly", null, 1, 2, 3,
-        QualityLimits.Default, new ModelSettings("auto", "burg", "pacf-aic", 48, 400, "calibrated"), Created, Created);
+    internal static SiteRecord Site(string id = "site-a") => new(id, "Site A", "UTC", GridCadence.Hourly, null, 1, 2, 3,
+        QualityLimits.Default, ModelSettings.DefaultFor(GridCadence.Hourly), Created, Created);
 
     internal static async Task<TestDatabase> Migrated()
     {

@@ -8,7 +8,7 @@ namespace ForecastHub.Api.Alerts;
 public static class AlertSetup
 {
     /// <summary>Alert evaluation after new data, after each refit and on a sweep, and the alert
-    /// list. Call after <c>AddForecastHubModels</c> and <c>AddWebhooks</c>: it wraps the reading, site and model stores.</summary>
+    /// list. Call after <c>AddModels</c> and <c>AddWebhooks</c>: it wraps the reading, site and model stores.</summary>
     public static IServiceCollection AddAlerts(this IServiceCollection services)
     {
         services.AddOptions<AlertOptions>().BindConfiguration(AlertOptions.SectionName).ValidateOnStart();
@@ -18,9 +18,9 @@ public static class AlertSetup
         services.AddSingleton<AlertEvaluator>();
         services.AddSingleton<AlertWorker>();
         services.AddHostedService(sp => sp.GetRequiredService<AlertWorker>());
-        ModelServicesSetup.Wrap<IReadingStore>(services, (sp, inner) => new AlertingReadingStore(inner, sp.GetRequiredService<AlertQueue>()));
-        ModelServicesSetup.Wrap<ISiteStore>(services, (sp, inner) => new AlertingSiteStore(inner, sp.GetRequiredService<AlertQueue>()));
-        ModelServicesSetup.Wrap<IModelStore>(services, (sp, inner) => new AlertingModelStore(inner, sp.GetRequiredService<AlertQueue>()));
+        services.Decorate<IReadingStore>((sp, inner) => new AlertingReadingStore(inner, sp.GetRequiredService<AlertQueue>()));
+        services.Decorate<ISiteStore>((sp, inner) => new AlertingSiteStore(inner, sp.GetRequiredService<AlertQueue>()));
+        services.Decorate<IModelStore>((sp, inner) => new AlertingModelStore(inner, sp.GetRequiredService<AlertQueue>()));
         return services;
     }
 }

@@ -1,3 +1,4 @@
+using ForecastHub.Core.Risk;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;

@@ -1,5 +1,6 @@
 using System.Globalization;
 using ForecastHub.Api.Observations;
+using ForecastHub.Core.Settings;
 
 namespace ForecastHub.Api.CommandLine;
 
@@ -72,14 +73,15 @@ public sealed record OfflineOptions(
         The text report goes to standard output; exit code 0 on success, 2 on bad input.
         """;
 
-    private static readonly Dictionary<string, string[]> Choices = new(StringComparer.Ordinal)
+    // The settings' words come from the one table the API and storage use.
+    private static readonly Dictionary<string, IReadOnlyList<string>> Choices = new(StringComparer.Ordinal)
     {
-        ["--cadence"] = ["hourly", "daily"],
-        ["--daily-statistic"] = ["mean", "min", "max"],
-        ["--seasonality"] = ["auto", "none", "annual", "annual-diurnal"],
-        ["--method"] = ["burg", "yule-walker", "least-squares", "max-likelihood"],
-        ["--order-policy"] = ["pacf-aic", "aic", "aicc", "bic", "pacf"],
-        ["--interval-method"] = ["calibrated", "gaussian"],
+        ["--cadence"] = WireNames.Cadences.Words,
+        ["--daily-statistic"] = WireNames.DailyStatistics.Words,
+        ["--seasonality"] = WireNames.Seasonalities.Words,
+        ["--method"] = WireNames.Methods.Words,
+        ["--order-policy"] = WireNames.OrderPolicies.Words,
+        ["--interval-method"] = WireNames.IntervalMethods.Words,
         ["--unit"] = ["C", "F", "K"],
     };
 

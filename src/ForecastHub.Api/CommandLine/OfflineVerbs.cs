@@ -1,11 +1,13 @@
 using System.Diagnostics;
 using System.Text.Json;
 using ForecastHub.Api.Models;
-using ForecastHub.Api.Sites;
 using ForecastHub.Api.Verification;
+using ForecastHub.Core.Grid;
 using ForecastHub.Core.Health;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
 using ForecastHub.Core.Series;
+using ForecastHub.Core.Settings;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Sites;
 using ModelResponse = ForecastHub.Api.Models.ModelResponse;
@@ -67,7 +69,6 @@ public static class OfflineVerbs
         }
 
         var site = Site(options, input, now);
-        var modeling = new SiteModeling();
         var valid = readings.Where(r => !r.Flagged).ToList();
         var dataEnd = valid.Count > 0 ? valid[^1].Time : readings[^1].Time;
         var grid = SiteGridLoader.Build(site, readings, readings[0].Time, SiteGridLoader.NextStep(site, SiteGridLoader.AlignDown(site, dataEnd)));
@@ -84,10 +85,10 @@ public static class OfflineVerbs
         var stopwatch = Stopwatch.StartNew();
         try
         {
-            var fitted = modeling.Fit(grid, site);
+            var fitted = FittedSiteModel.Fit(grid, site.Model);
             var stored = new StoredModel(SiteId, site.Key, now, stopwatch.Elapsed.TotalMilliseconds, site.SettingsVersion, fitted.DataEnd,
                 fitted.Model.Window.Points, fitted.ResidualPValue, fitted.Json);
-            model = modeling.Describe(site, new ServingModel(stored, fitted.Model), null);
+            model = ModelMapping.Describe(site, new ServingModel(stored, fitted.Model), null);
         }
         catch (SeriesException e)
         {
@@ -97,7 +98,7 @@ public static class OfflineVerbs
         var testDays = options.TestDays ?? (options.Verb == "fit" ? FitTestDays : BacktestTestDays);
         using var progress = CommandLineProgress.Start(errors, "backtest");
         var backtest = Backtester.Run(site, readings, dataEnd, testDays, options.RefitEveryDays,
-            SiteModeling.RiskThresholds(site.Risk, options.Below, options.Above), progress.Report);
+            site.Risk.WithQueryThresholds(options.Below, options.Above), progress.Report);
         progress.Done();
         var report = new OfflineReport(options.Verb, now, input, model, backtest);
         await File.WriteAllTextAsync(jsonPath, JsonSerializer.Serialize(report, Json)).ConfigureAwait(false);
@@ -125,11 +126,20 @@ public static class OfflineVerbs
 
     private static SiteRecord Site(OfflineOptions options, OfflineInputSummary input, DateTimeOffset now)
     {
-        var defaults = SiteRules.DefaultModel(input.Cadence);
-        var model = new Storage.Sites.ModelSettings(options.Seasonality, options.Method, options.OrderPolicy, options.MaxOrder,
-            options.FitWindowDays ?? defaults.FitWindowDays, options.IntervalMethod);
-        return new SiteRecord(SiteId, Path.GetFileName(options.InputPath), input.TimeZone, input.Cadence,
-            input.Cadence == "daily" ? options.DailyStatistic : null, null, null, null, QualityLimits.Default, model, now, now);
+        // The option words were checked against the same table; here they become the typed settings, once.
+        var cadence = WireNames.Cadences.Parse(input.Cadence);
+        var defaults = ModelSettings.DefaultFor(cadence);
+        var model = new ModelSettings
+        {
+            Seasonality = WireNames.Seasonalities.Parse(options.Seasonality),
+            Method = WireNames.Methods.Parse(options.Method),
+            OrderPolicy = WireNames.OrderPolicies.Parse(options.OrderPolicy),
+            MaxOrder = options.MaxOrder,
+            FitWindowDays = options.FitWindowDays ?? defaults.FitWindowDays,
+            IntervalMethod = WireNames.IntervalMethods.Parse(options.IntervalMethod),
+        };
+        return new SiteRecord(SiteId, Path.GetFileName(options.InputPath), input.TimeZone, cadence,
+            cadence == GridCadence.Daily ? WireNames.DailyStatistics.Parse(options.DailyStatistic) : null, null, null, null, QualityLimits.Default, model, now, now);
     }
 
     private static async Task<int> Fail(TextWriter errors, string message)

@@ -1,6 +1,8 @@
 using System.Diagnostics;
-using ForecastHub.Api.Sites;
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
+using ForecastHub.Core.Risk;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
 
@@ -48,13 +50,13 @@ public sealed class DemoLoader(ISiteStore sites, IReadingStore readings, TimePro
         site.Id,
         site.Name,
         DemoScenario.TimeZone,
-        "hourly",
+        GridCadence.Hourly,
         null,
         null,
         null,
         site.ElevationM,
         site.Kind == DemoSiteKind.ColdStore ? new QualityLimits(MinC: -5, MaxC: 10) : QualityLimits.Default,
-        SiteRules.DefaultModel("hourly"),
+        ModelSettings.DefaultFor(GridCadence.Hourly),
         now,
         now)
     {
@@ -64,8 +66,8 @@ public sealed class DemoLoader(ISiteStore sites, IReadingStore readings, TimePro
     // The levels each kind of site watches: frost for orchard and tunnel air, warming for the cold store.
     private static SiteThreshold[] Thresholds(DemoSiteKind kind) => kind switch
     {
-        DemoSiteKind.ColdStore => [new SiteThreshold("too-warm", "above", 5, 0.2)],
-        DemoSiteKind.Tunnel => [new SiteThreshold("frost", "below", 0, 0.3)],
-        _ => [new SiteThreshold("frost", "below", 0, 0.3), new SiteThreshold("hard-frost", "below", -2, 0.2)],
+        DemoSiteKind.ColdStore => [new SiteThreshold("too-warm", ThresholdDirection.Above, 5, 0.2)],
+        DemoSiteKind.Tunnel => [new SiteThreshold("frost", ThresholdDirection.Below, 0, 0.3)],
+        _ => [new SiteThreshold("frost", ThresholdDirection.Below, 0, 0.3), new SiteThreshold("hard-frost", ThresholdDirection.Below, -2, 0.2)],
     };
 }

@@ -58,7 +58,7 @@ public static class ForecastEndpoints
             return ApiProblems.BadRequest("format", "format must be 'json' or 'csv'.");
         }
 
-        var (query, field, error) = ForecastQuery.Parse(SiteGridLoader.IsDaily(site), steps, levels, below, above, answerUnit);
+        var (query, field, error) = ForecastQuery.Parse(site.IsDaily, steps, levels, below, above, answerUnit);
         if (query is null)
         {
             return ApiProblems.BadRequest(field!, error!);
@@ -124,7 +124,7 @@ public static class ForecastEndpoints
             return ApiProblems.BadRequest("unit", TemperatureUnits.UnknownUnitMessage);
         }
 
-        var isDaily = SiteGridLoader.IsDaily(site);
+        var isDaily = site.IsDaily;
         var (query, field, error) = ForecastQuery.Parse(isDaily, steps, "80,95", null, null);
         if (query is null)
         {

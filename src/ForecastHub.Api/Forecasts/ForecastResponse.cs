@@ -8,8 +8,8 @@ public sealed record ForecastResponse(
     string Unit,
     string HealthState,
     ForecastModelUsed Model,
-    IReadOnlyList<ForecastStep> Steps,
-    NextDaySummary? NextDay,
+    IReadOnlyList<ForecastStepResponse> Steps,
+    NextDaySummaryResponse? NextDay,
     IReadOnlyList<RiskResponse> Risk,
     string Confidence,
     ConfidenceReason? ConfidenceReason,
@@ -44,7 +44,7 @@ public sealed record ConfidenceReason(string Code, string Message);
 /// <summary>The model used; <c>intervalMethod</c> is what the intervals actually came from (gaussian when no calibration exists).</summary>
 public sealed record ForecastModelUsed(int Order, string Method, DateTimeOffset FittedAt, string IntervalMethod);
 
-public sealed record ForecastStep(DateTimeOffset Time, double Mean, double Sd, IReadOnlyList<ForecastInterval> Intervals, IReadOnlyList<StepProbabilityResponse> Probabilities);
+public sealed record ForecastStepResponse(DateTimeOffset Time, double Mean, double Sd, IReadOnlyList<ForecastInterval> Intervals, IReadOnlyList<StepProbabilityResponse> Probabilities);
 
 /// <summary>Chance that the step's value lies beyond the threshold (same distribution as the intervals); <c>id</c> as in <see cref="RiskResponse"/>.</summary>
 public sealed record StepProbabilityResponse(string? Id, double Threshold, string Direction, double Probability);
@@ -52,17 +52,17 @@ public sealed record StepProbabilityResponse(string? Id, double Threshold, strin
 public sealed record ForecastInterval(double Level, double Lower, double Upper);
 
 /// <summary>The next local day: quantile summaries of its min, max and mean, and threshold probabilities.</summary>
-public sealed record NextDaySummary(
+public sealed record NextDaySummaryResponse(
     DateOnly Date,
     DaySummaryValue Min,
     DaySummaryValue Max,
     DaySummaryValue Mean,
-    IReadOnlyList<ThresholdProbability> Probabilities);
+    IReadOnlyList<ThresholdProbabilityResponse> Probabilities);
 
 public sealed record DaySummaryValue(double Mean, IReadOnlyList<ForecastInterval> Intervals);
 
 /// <summary>Direction is "below" (the day's minimum drops below the threshold) or "above" (its maximum exceeds it).</summary>
-public sealed record ThresholdProbability(double Threshold, string Direction, double Probability);
+public sealed record ThresholdProbabilityResponse(double Threshold, string Direction, double Probability);
 
 /// <summary>Present when the newest grid steps before the origin had no data: the forecast starts from the last data and its intervals are wider.</summary>
 public sealed record ForecastDataGap(DateTimeOffset LastDataAt, int MissingSteps, string Message);

@@ -4,6 +4,7 @@ using System.Text.Json;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Api.Models;
+using ForecastHub.Core.Settings;
 using ForecastHub.Storage.Sites;
 using Microsoft.AspNetCore.Http.Json;
 using Microsoft.Extensions.Options;
@@ -23,7 +24,6 @@ public sealed record ForecastUnavailable(string Detail);
 public sealed class ForecastService(
     ModelService models,
     SiteGridLoader grids,
-    SiteModeling modeling,
     SiteVersions versions,
     ModelHealthService health,
     ServiceMetrics metrics,
@@ -96,9 +96,15 @@ public sealed class ForecastService(
         return (entry.Answers.Count < MaxEntriesPerSite ? entry.Answers.GetOrAdd(key, computed) : computed, null);
     }
 
-    private async Task<ForecastResponse?> ComputeAsync(SiteRecord site, ServingModel model, ForecastQuery query, DateTimeOffset now, CancellationToken cancellationToken)
+    /// <summary>
+    /// The grid a forecast issued at <paramref name="now"/> starts from: the recent data up to now, so
+    /// steps with no data at its end are seen (the core forecasts from the last value, counts horizons
+    /// from there and reports the missing steps). Null when the site has no data in that window.
+    /// </summary>
+    public async Task<Core.Grid.TimeGrid?> RecentGridAsync(SiteRecord site, DateTimeOffset now, CancellationToken cancellationToken)
     {
-        var isDaily = SiteGridLoader.IsDaily(site);
+        ArgumentNullException.ThrowIfNull(site);
+        var isDaily = site.IsDaily;
         var currentStep = SiteGridLoader.AlignDown(site, now);
 
         // Hourly: the hour in progress counts (the mean of its readings so far); daily: only whole local days.
@@ -121,19 +127,27 @@ public sealed class ForecastService(
         // The grid runs up to now, so steps with no data at its end are seen: the core forecasts from
         // the last value, counts horizons from there (wider intervals) and reports the missing steps.
         var grid = SiteGridLoader.Build(site, readings, from, to);
-        if (grid.LastValueIndex < 0)
+        return grid.LastValueIndex < 0 ? null : grid;
+    }
+
+    private async Task<ForecastResponse?> ComputeAsync(SiteRecord site, ServingModel model, ForecastQuery query, DateTimeOffset now, CancellationToken cancellationToken)
+    {
+        var grid = await RecentGridAsync(site, now, cancellationToken);
+        if (grid is null)
         {
             return null;
         }
 
-        var path = modeling.Forecast(model.Model, grid, query.Steps, query.Levels, query.Below, query.Above, MonteCarloSeed, site.Risk, currentStep);
+        var isDaily = site.IsDaily;
+        // Risk windows start from the current grid step, so the answer stays the same for the whole step it is cached for.
+        var path = ForecastMapping.Forecast(model.Model, grid, query.Steps, query.Levels, query.Below, query.Above, MonteCarloSeed,
+            site.Risk, SiteGridLoader.AlignDown(site, now));
         var assessment = await health.EvaluateAsync(site, cancellationToken);
         var unit = isDaily ? "day" : "hour";
         var gap = path.MissingSteps == 0
             ? null
             : new ForecastDataGap(path.LastData, path.MissingSteps,
                 $"The newest {path.MissingSteps} {unit}{(path.MissingSteps == 1 ? "" : "s")} before now have no data; the forecast starts from the data of {path.LastData:O} and its intervals are wider for it.");
-        var (order, method) = modeling.Describe(model.Model);
         var reason = Confidence(assessment, path.LastData);
         return new ForecastResponse(
             site.Id,
@@ -141,7 +155,7 @@ public sealed class ForecastService(
             path.LastData,
             "C",
             assessment.State,
-            new ForecastModelUsed(order, method, model.Stored.FittedAt, path.IntervalMethod),
+            new ForecastModelUsed(model.Model.Ar.Order, WireNames.Methods.Of(model.Model.Ar.Method), model.Stored.FittedAt, path.IntervalMethod),
             path.Steps,
             path.NextDay,
             path.Risk,

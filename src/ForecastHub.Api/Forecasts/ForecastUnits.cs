@@ -22,7 +22,7 @@ public static class ForecastUnits
         return forecast with
         {
             Unit = unit,
-            Steps = [.. forecast.Steps.Select(s => new ForecastStep(s.Time, Value(s.Mean), TemperatureUnits.SpreadFromCelsius(s.Sd, unit), Intervals(s.Intervals),
+            Steps = [.. forecast.Steps.Select(s => new ForecastStepResponse(s.Time, Value(s.Mean), TemperatureUnits.SpreadFromCelsius(s.Sd, unit), Intervals(s.Intervals),
                 [.. s.Probabilities.Select(p => p with { Threshold = Math.Round(Value(p.Threshold), 9) })]))],
             Risk = [.. forecast.Risk.Select(r => r with { Threshold = Math.Round(Value(r.Threshold), 9), Extreme = Day(r.Extreme) })],
             NextDay = forecast.NextDay is { } day

@@ -4,7 +4,7 @@ using ForecastHub.Storage.Sites;
 namespace ForecastHub.Api.Forecasts;
 
 /// <summary>A site's risk now: per threshold and window, with the confidence and the cautions of the forecast it comes from.</summary>
-public sealed record SiteRisk(
+public sealed record CurrentSiteRisk(
     string SiteId,
     DateTimeOffset IssuedAt,
     DateTimeOffset Origin,
@@ -20,13 +20,13 @@ public sealed record SiteRisk(
 /// </summary>
 public sealed class SiteRiskService(ForecastService forecasts)
 {
-    public async Task<(SiteRisk? Risk, ForecastUnavailable? Unavailable)> EvaluateAsync(SiteRecord site, CancellationToken cancellationToken)
+    public async Task<(CurrentSiteRisk? Risk, ForecastUnavailable? Unavailable)> EvaluateAsync(SiteRecord site, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(site);
-        var (query, _, _) = ForecastQuery.Parse(SiteGridLoader.IsDaily(site), null, null, null, null);
+        var (query, _, _) = ForecastQuery.Parse(site.IsDaily, null, null, null, null);
         var (forecast, unavailable) = await forecasts.GetAsync(site, query!, cancellationToken);
         return forecast is null
             ? (null, unavailable)
-            : (new SiteRisk(site.Id, forecast.IssuedAt, forecast.Origin, forecast.Confidence, forecast.ConfidenceReason, forecast.Risk, forecast.Cautions), null);
+            : (new CurrentSiteRisk(site.Id, forecast.IssuedAt, forecast.Origin, forecast.Confidence, forecast.ConfidenceReason, forecast.Risk, forecast.Cautions), null);
     }
 }

@@ -1,5 +1,3 @@
-using System.Data.Common;
-using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Mqtt;
 using Microsoft.AspNetCore.Http.HttpResults;
 using ForecastHub.Storage;
@@ -21,43 +19,15 @@ public static class HealthEndpoints
 
     public static Ok<LiveStatus> Live() => TypedResults.Ok(new LiveStatus("live"));
 
-    public static async Task<Results<Ok<ReadyStatus>, ProblemHttpResult>> Ready(IStorageSchema schema, MqttSubscriptionState mqtt, HttpContext context, CancellationToken cancellationToken)
+    public static async Task<Results<Ok<ReadyStatus>, ProblemHttpResult>> Ready(IStorageSchema schema, MqttSubscriptionState mqtt, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(schema);
         ArgumentNullException.ThrowIfNull(mqtt);
-        ArgumentNullException.ThrowIfNull(context);
-        // What SQLite reported to the requests (the PostgreSQL provider has no such file to damage).
-        if (!context.RequestServices.GetRequiredService<Microsoft.Extensions.Options.IOptions<StorageOptions>>().Value.IsPostgres
-            && context.RequestServices.GetRequiredService<SqliteDatabase>().Health is { } health)
-        {
-            if (health.Damage is { } damage)
-            {
-                return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                    detail: $"Storage is damaged ({damage}); stop the service, run 'ForecastHub.Api check-storage' on the file and restore it from a backup.");
-            }
-            if (health.IsFull)
-            {
-                return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                    detail: "Storage is full: the last write failed for lack of space; ready again once a write succeeds.");
-            }
-        }
-        int version;
-        try
-        {
-            version = await schema.CurrentVersionAsync(cancellationToken);
-        }
-        catch (Exception e) when (e is DbException or TimeoutException or System.Net.Sockets.SocketException)
-        {
-            return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                detail: $"Storage is not reachable ({e.GetType().Name}).");
-        }
-        if (version < schema.LatestVersion)
-        {
-            return TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready",
-                detail: $"Storage schema is at version {version}; this build needs {schema.LatestVersion}.");
-        }
+        var readiness = await schema.CheckReadinessAsync(cancellationToken);
         // The MQTT subscription is reported, never a reason to be unready: HTTP ingest works without it.
-        return TypedResults.Ok(new ReadyStatus("ready", version, new MqttStatus(mqtt.State, mqtt.Since, mqtt.LastError)));
+        return readiness.Ready
+            ? TypedResults.Ok(new ReadyStatus("ready", readiness.SchemaVersion, new MqttStatus(mqtt.State, mqtt.Since, mqtt.LastError)))
+            : TypedResults.Problem(statusCode: StatusCodes.Status503ServiceUnavailable, title: "Not ready", detail: readiness.Problem);
     }
 }
 

@@ -1,7 +1,6 @@
 using System.Text.Json;
 using ForecastHub.Api.Models;
 using ForecastHub.Api.Verification;
-using ForecastHub.Core.Grid;
 using ForecastHub.Core.Health;
 using ForecastHub.Core.Quality;
 using ForecastHub.Core.Verification;
@@ -23,8 +22,6 @@ public sealed class ModelHealthService(
     IOptions<LiveScoreOptions> liveOptions,
     TimeProvider clock)
 {
-    private const long HourMs = 3_600_000;
-    private const long DayMs = 24 * HourMs;
 
     public async Task<HealthAssessment?> EvaluateAsync(string siteId, CancellationToken cancellationToken)
     {
@@ -39,7 +36,7 @@ public sealed class ModelHealthService(
         var summary = await readingSummaries.GetAsync(site.Id, cancellationToken) ?? new ReadingSummary(null, 0, 0, 0);
         var model = await models.GetSummaryAsync(site.Id, cancellationToken);
         var attempt = await models.GetLastAttemptAsync(site.Id, cancellationToken);
-        var isDaily = SiteGridLoader.IsDaily(site);
+        var isDaily = site.IsDaily;
 
         // Grid points matter only before the first fit (warming-up); they are counted in the index, not read.
         var gridPoints = 0;
@@ -48,10 +45,7 @@ public sealed class ModelHealthService(
             // The fit window counts back from the newest reading (an archive is fitted on its last days).
             var anchor = summary.LastObservationAt is { } newest && newest < now ? newest : now;
             var from = anchor.AddDays(-site.Model.FitWindowDays);
-            gridPoints = isDaily
-                ? await readingSummaries.CountStepsWithDataAsync(site.Id, from, DayMs,
-                    (long)GridBuilder.FindZone(site.TimeZone).BaseUtcOffset.TotalMilliseconds, cancellationToken)
-                : await readingSummaries.CountStepsWithDataAsync(site.Id, from, HourMs, 0, cancellationToken);
+            gridPoints = (await readingSummaries.StepsWithDataAsync(site, from, cancellationToken)).Count;
         }
 
         var live = await LiveWindowAsync(site.Id, now, cancellationToken);

@@ -1,4 +1,3 @@
-using System.Data.Common;
 using ForecastHub.Storage;
 using ForecastHub.Storage.Alerts;
 using ForecastHub.Storage.Cluster;
@@ -59,8 +58,8 @@ public static class StorageSetup
         Add<IWebhookStore>(services, sp => new SqliteWebhookStore(Sqlite(sp)), sp => new PostgresWebhookStore(Postgres(sp)));
         Add<IAlertStore>(services, sp => new SqliteAlertStore(Sqlite(sp)), sp => new PostgresAlertStore(Postgres(sp)));
         Add<IWorkLeases>(services, sp => new LocalWorkLeases(Clock(sp)), sp => new PostgresWorkLeases(Postgres(sp)));
-        Add<IStorageSchema>(services, sp => new SqliteSchema(sp.GetRequiredService<MigrationRunner>()),
-            sp => new PostgresSchema(sp.GetRequiredService<PostgresMigrationRunner>()));
+        Add<IStorageSchema>(services, sp => new SqliteStorageSchema(Sqlite(sp), sp.GetRequiredService<MigrationRunner>()),
+            sp => new PostgresStorageSchema(sp.GetRequiredService<PostgresMigrationRunner>()));
         services.AddHostedService<MigrationStartup>();
         return services;
     }
@@ -84,37 +83,6 @@ public static class StorageSetup
             services.AddSingleton(TimeProvider.System);
         }
     }
-}
-
-/// <summary>The schema of whichever backend runs: what readiness reports and what start-up applies.</summary>
-public interface IStorageSchema
-{
-    /// <summary>The newest version this build knows.</summary>
-    int LatestVersion { get; }
-
-    /// <summary>Applies the missing migrations; answers the resulting version.</summary>
-    Task<int> MigrateAsync(CancellationToken cancellationToken);
-
-    /// <summary>The version the storage is at; throws a <see cref="DbException"/> when it cannot be reached.</summary>
-    Task<int> CurrentVersionAsync(CancellationToken cancellationToken);
-}
-
-internal sealed class SqliteSchema(MigrationRunner runner) : IStorageSchema
-{
-    public int LatestVersion => runner.LatestVersion;
-
-    public Task<int> MigrateAsync(CancellationToken cancellationToken) => runner.ApplyAsync(cancellationToken: cancellationToken);
-
-    public Task<int> CurrentVersionAsync(CancellationToken cancellationToken) => Task.FromResult(runner.CurrentVersion());
-}
-
-internal sealed class PostgresSchema(PostgresMigrationRunner runner) : IStorageSchema
-{
-    public int LatestVersion => runner.LatestVersion;
-
-    public Task<int> MigrateAsync(CancellationToken cancellationToken) => runner.ApplyAsync(cancellationToken: cancellationToken);
-
-    public Task<int> CurrentVersionAsync(CancellationToken cancellationToken) => runner.CurrentVersionAsync(cancellationToken);
 }
 
 /// <summary>Applies migrations in the host's starting phase, before any request is served.</summary>

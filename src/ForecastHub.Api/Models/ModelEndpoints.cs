@@ -24,7 +24,7 @@ public static class ModelEndpoints
     }
 
     public static async Task<Results<Ok<ModelResponse>, ProblemHttpResult>> GetModel(
-        string siteId, ISiteStore sites, ModelService models, IModelStore store, SiteModeling modeling, CancellationToken cancellationToken)
+        string siteId, ISiteStore sites, ModelService models, IModelStore store, CancellationToken cancellationToken)
     {
         var site = await sites.GetAsync(siteId, cancellationToken);
         if (site is null)
@@ -39,11 +39,11 @@ public static class ModelEndpoints
         }
 
         var attempt = await store.GetLastAttemptAsync(siteId, cancellationToken);
-        return TypedResults.Ok(modeling.Describe(site, model, attempt));
+        return TypedResults.Ok(ModelMapping.Describe(site, model, attempt));
     }
 
     public static async Task<Results<Ok<ModelResponse>, ProblemHttpResult>> Refit(
-        string siteId, ISiteStore sites, ModelService models, IModelStore store, SiteModeling modeling, CancellationToken cancellationToken)
+        string siteId, ISiteStore sites, ModelService models, IModelStore store, CancellationToken cancellationToken)
     {
         var site = await sites.GetAsync(siteId, cancellationToken);
         if (site is null)
@@ -65,6 +65,6 @@ public static class ModelEndpoints
         }
 
         var attempt = await store.GetLastAttemptAsync(siteId, cancellationToken);
-        return TypedResults.Ok(modeling.Describe(site, outcome.Model!, attempt));
+        return TypedResults.Ok(ModelMapping.Describe(site, outcome.Model!, attempt));
     }
 }

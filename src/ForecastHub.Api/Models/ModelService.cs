@@ -28,7 +28,6 @@ public sealed record RefitOutcome(ServingModel? Model, string? Error, bool NotEn
 public sealed partial class ModelService(
     IModelStore store,
     SiteGridLoader grids,
-    SiteModeling modeling,
     SiteVersions versions,
     ServiceMetrics metrics,
     IOptions<HealthOptions> healthOptions,
@@ -77,7 +76,7 @@ public sealed partial class ModelService(
             return null;
         }
 
-        var model = ServingModel.From(stored, modeling.Read(stored.ModelJson));
+        var model = ServingModel.From(stored, ModelJson.Read(stored.ModelJson));
         if (seen != Interlocked.Read(ref generation))
         {
             return model;
@@ -89,7 +88,7 @@ public sealed partial class ModelService(
 
     /// <summary>Grid points a site needs before its first fit.</summary>
     public int MinPoints(SiteRecord site) =>
-        SiteGridLoader.IsDaily(site) ? healthOptions.Value.MinDailyPoints : healthOptions.Value.MinHourlyPoints;
+        site.IsDaily ? healthOptions.Value.MinDailyPoints : healthOptions.Value.MinHourlyPoints;
 
     /// <summary>Looks at the site and refits it when a trigger applies, or always when <paramref name="force"/> is set.</summary>
     public async Task<(RefitReason? Reason, RefitOutcome? Outcome)> RefitIfDueAsync(SiteRecord site, bool force, CancellationToken cancellationToken)
@@ -123,7 +122,7 @@ public sealed partial class ModelService(
 
             var lastIndex = grid.LastValueIndex;
             var facts = new RefitFacts(
-                SiteGridLoader.IsDaily(site), grid.ObservedCount, MinPoints(site), site.SettingsVersion,
+                site.IsDaily, grid.ObservedCount, MinPoints(site), site.SettingsVersion,
                 current?.FittedAt, current?.SettingsVersion, current?.DataPoints, current?.DataEnd,
                 lastIndex >= 0 ? grid.Times[lastIndex] : null, now);
             var reason = force ? RefitReason.Requested : RefitPolicy.Decide(facts, refitOptions.Value);
@@ -151,7 +150,7 @@ public sealed partial class ModelService(
         FittedSiteModel fitted;
         try
         {
-            fitted = modeling.Fit(grid, site);
+            fitted = FittedSiteModel.Fit(grid, site.Model);
         }
 #pragma warning disable CA1031 // A fit may fail in any way on odd data; the failure is recorded and the old model keeps serving.
         catch (Exception error)
@@ -205,6 +204,12 @@ public sealed partial class ModelService(
         }
     }
 
+    /// <summary>Parsed models held in memory now (at most <see cref="RefitOptions.MaxLoadedModels"/> after a load).</summary>
+    public int LoadedCount => loaded.Count;
+
+    /// <summary>Whether the site's model is held in memory (a read needs no storage).</summary>
+    public bool IsLoaded(string siteId) => loaded.ContainsKey(siteId);
+
     /// <summary>Drops the in-memory copy of a site's model (deleted, or changed by another node), or of every model when <paramref name="siteId"/> is null.</summary>
     public void Forget(string? siteId)
     {
@@ -239,5 +244,3 @@ public sealed record ServingModel(StoredModel Stored, Core.Modeling.SiteModel Mo
     }
 }
 
-/// <summary>What the modeling pipeline produced for the store.</summary>
-public sealed record FittedSiteModel(Core.Modeling.SiteModel Model, string Json, double? ResidualPValue, DateTimeOffset DataEnd);

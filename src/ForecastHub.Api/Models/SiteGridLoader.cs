@@ -41,8 +41,9 @@ public sealed class SiteGridLoader(IReadingStore readings)
     /// <summary>The grid of already-read readings over [<paramref name="from"/>, <paramref name="to"/>).</summary>
     public static TimeGrid Build(SiteRecord site, IReadOnlyList<GridReading> readings, DateTimeOffset from, DateTimeOffset to)
     {
+        ArgumentNullException.ThrowIfNull(site);
         var gridFrom = AlignDown(site, from);
-        return GridBuilder.Build(readings, Options(site), gridFrom, to > gridFrom ? to : null);
+        return GridBuilder.Build(readings, site.GridOptions, gridFrom, to > gridFrom ? to : null);
     }
 
     /// <summary>The site's readings in [<paramref name="from"/>, <paramref name="to"/>) as the grid reads them; null when the site does not exist.</summary>
@@ -71,44 +72,17 @@ public sealed class SiteGridLoader(IReadingStore readings)
         return all;
     }
 
-    public static GridOptions Options(SiteRecord site)
-    {
-        ArgumentNullException.ThrowIfNull(site);
-        return new GridOptions(
-            IsDaily(site) ? GridCadence.Daily : GridCadence.Hourly,
-            site.TimeZone,
-            site.DailyStatistic switch
-            {
-                "min" => DailyStatistic.Min,
-                "max" => DailyStatistic.Max,
-                _ => DailyStatistic.Mean,
-            });
-    }
-
-    public static bool IsDaily(SiteRecord site) => string.Equals(site?.Cadence, "daily", StringComparison.Ordinal);
-
-    /// <summary>The start of the grid step holding <paramref name="time"/>: its UTC hour (hourly) or local midnight (daily).</summary>
+    /// <summary>The start of the grid step holding <paramref name="time"/> (<see cref="GridClock.StepStart"/>).</summary>
     public static DateTimeOffset AlignDown(SiteRecord site, DateTimeOffset time)
     {
-        if (!IsDaily(site))
-        {
-            var utc = time.ToUniversalTime();
-            return new DateTimeOffset(utc.Year, utc.Month, utc.Day, utc.Hour, 0, 0, TimeSpan.Zero);
-        }
-
-        var zone = GridBuilder.FindZone(site.TimeZone);
-        return GridBuilder.LocalDayStart(GridBuilder.LocalDate(time, zone), zone);
+        ArgumentNullException.ThrowIfNull(site);
+        return GridClock.StepStart(site.Cadence, GridBuilder.FindZone(site.TimeZone), time);
     }
 
     /// <summary>The start of the step after the one starting at <paramref name="stepStart"/>.</summary>
     public static DateTimeOffset NextStep(SiteRecord site, DateTimeOffset stepStart)
     {
-        if (!IsDaily(site))
-        {
-            return stepStart.AddHours(1);
-        }
-
-        var zone = GridBuilder.FindZone(site.TimeZone);
-        return GridBuilder.LocalDayStart(GridBuilder.LocalDate(stepStart, zone).AddDays(1), zone);
+        ArgumentNullException.ThrowIfNull(site);
+        return GridClock.StepAfter(site.Cadence, GridBuilder.FindZone(site.TimeZone), stepStart, 1);
     }
 }

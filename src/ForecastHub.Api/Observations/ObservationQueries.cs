@@ -3,6 +3,7 @@ using System.Text;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
 using ForecastHub.Core.Grid;
+using ForecastHub.Core.Settings;
 using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
@@ -129,8 +130,7 @@ public static class ObservationQueries
     private static async Task<Results<Ok<ObservationPage>, Ok<GridPage>, ContentHttpResult, ProblemHttpResult>> Grid(
         SiteRecord site, Window window, HttpContext context, IReadingStore readings, CancellationToken cancellationToken)
     {
-        var options = new GridOptions(site.Cadence == "daily" ? GridCadence.Daily : GridCadence.Hourly, site.TimeZone,
-            site.DailyStatistic switch { "min" => DailyStatistic.Min, "max" => DailyStatistic.Max, _ => DailyStatistic.Mean });
+        var options = site.GridOptions;
         var zone = GridBuilder.FindZone(site.TimeZone);
         var span = await readings.SpanAsync(site.Id, cancellationToken).ConfigureAwait(false);
         var points = new List<GridPointDto>();
@@ -142,11 +142,11 @@ public static class ObservationQueries
             var end = Math.Min(window.ToMs, s.LastMs + 1);
             if (start < end)
             {
-                var pageStart = StepStart(DateTimeOffset.FromUnixTimeMilliseconds(start), options.Cadence, zone);
-                var pageEnd = Min(AddSteps(pageStart, window.Limit, options.Cadence, zone), DateTimeOffset.FromUnixTimeMilliseconds(end));
+                var pageStart = GridClock.StepStart(options.Cadence, zone, DateTimeOffset.FromUnixTimeMilliseconds(start));
+                var pageEnd = Min(GridClock.StepAfter(options.Cadence, zone, pageStart, window.Limit), DateTimeOffset.FromUnixTimeMilliseconds(end));
                 var margin = options.MaxInterpolatedGap + 1;
-                var readFrom = AddSteps(pageStart, -margin, options.Cadence, zone);
-                var readTo = AddSteps(StepStart(pageEnd.AddTicks(-1), options.Cadence, zone), margin + 1, options.Cadence, zone);
+                var readFrom = GridClock.StepAfter(options.Cadence, zone, pageStart, -margin);
+                var readTo = GridClock.StepAfter(options.Cadence, zone, GridClock.StepStart(options.Cadence, zone, pageEnd.AddTicks(-1)), margin + 1);
                 var stored = await readings.ReadAsync(site.Id, readFrom.ToUnixTimeMilliseconds(), readTo.ToUnixTimeMilliseconds(),
                     null, MaxReadingsPerGridPage, cancellationToken).ConfigureAwait(false) ?? [];
                 var grid = GridBuilder.Build(stored.Select(r => new GridReading(r.Time, r.ValueC, r.Flags != QualityFlags.None)),
@@ -171,18 +171,8 @@ public static class ObservationQueries
             return Csv(context, csv, next);
         }
         SetLink(context, next);
-        return TypedResults.Ok(new GridPage(site.Id, "grid", site.Cadence, site.TimeZone, TemperatureUnits.Celsius, points, next));
+        return TypedResults.Ok(new GridPage(site.Id, "grid", WireNames.Cadences.Of(site.Cadence), site.TimeZone, TemperatureUnits.Celsius, points, next));
     }
-
-    private static DateTimeOffset StepStart(DateTimeOffset time, GridCadence cadence, TimeZoneInfo zone) =>
-        cadence == GridCadence.Hourly
-            ? new DateTimeOffset(time.UtcTicks - (time.UtcTicks % TimeSpan.TicksPerHour), TimeSpan.Zero)
-            : GridBuilder.LocalDayStart(GridBuilder.LocalDate(time, zone), zone);
-
-    private static DateTimeOffset AddSteps(DateTimeOffset stepStart, int steps, GridCadence cadence, TimeZoneInfo zone) =>
-        cadence == GridCadence.Hourly
-            ? stepStart.AddHours(steps)
-            : GridBuilder.LocalDayStart(GridBuilder.LocalDate(stepStart, zone).AddDays(steps), zone);
 
     private static DateTimeOffset Min(DateTimeOffset a, DateTimeOffset b) => a < b ? a : b;
 

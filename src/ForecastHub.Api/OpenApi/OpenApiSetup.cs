@@ -42,20 +42,18 @@ public static class OpenApiSetup
         return services;
     }
 
-    // Simple type names that two of the service's public types share (e.g. Sites.ModelResponse and Models.ModelResponse).
-    private static readonly Lazy<HashSet<string>> SharedNames = new(() =>
-        [.. new[] { typeof(OpenApiSetup).Assembly, typeof(ForecastHub.Storage.StorageOptions).Assembly, typeof(ForecastHub.Core.Quality.QualityFlags).Assembly }
-            .SelectMany(a => a.GetExportedTypes())
-            .GroupBy(t => t.Name, StringComparer.Ordinal)
-            .Where(g => g.Count() > 1)
-            .Select(g => g.Key)]);
+    // Schema names clients already see, kept for types renamed since so that the contract does not change.
+    private static readonly Dictionary<Type, string> PublishedNames = new()
+    {
+        [typeof(Models.ModelResponse)] = "ModelsModelResponse",
+        [typeof(Sites.SiteModelSettingsResponse)] = "SitesModelResponse",
+        [typeof(Forecasts.ForecastStepResponse)] = "ForecastsForecastStep",
+        [typeof(Forecasts.NextDaySummaryResponse)] = "ForecastsNextDaySummary",
+        [typeof(Forecasts.ThresholdProbabilityResponse)] = "ForecastsThresholdProbability",
+    };
 
-    /// <summary>The plain type name, prefixed with its feature folder when another type shares it,
-    /// so schema names stay short and stable and never collide.</summary>
     private static string SchemaId(Type type, Func<Type, string> fallback) =>
-        !type.IsGenericType && SharedNames.Value.Contains(type.Name) && type.Namespace is { } ns
-            ? ns[(ns.LastIndexOf('.') + 1)..] + fallback(type)
-            : fallback(type);
+        PublishedNames.TryGetValue(type, out var name) ? name : fallback(type);
 
     /// <summary>The document at <see cref="DocumentPath"/> and Swagger UI at <c>/swagger</c>; both public.</summary>
     public static WebApplication UseForecastHubOpenApi(this WebApplication app)

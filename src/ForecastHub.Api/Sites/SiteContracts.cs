@@ -1,4 +1,5 @@
 using ForecastHub.Core.Quality;
+using ForecastHub.Core.Settings;
 using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Api.Sites;
@@ -42,7 +43,7 @@ public record SiteResponse(
     double? Longitude,
     double? ElevationM,
     QualityResponse Quality,
-    ModelResponse Model,
+    SiteModelSettingsResponse Model,
     DateTimeOffset CreatedAt,
     DateTimeOffset UpdatedAt,
     long SettingsVersion,
@@ -52,14 +53,14 @@ public record SiteResponse(
     public static SiteResponse From(SiteRecord site)
     {
         ArgumentNullException.ThrowIfNull(site);
-        return new SiteResponse(site.Id, site.Name, site.TimeZone, site.Cadence, site.DailyStatistic,
+        return new SiteResponse(site.Id, site.Name, site.TimeZone, WireNames.Cadences.Of(site.Cadence),
+            site.DailyStatistic is { } daily ? WireNames.DailyStatistics.Of(daily) : null,
             site.Latitude, site.Longitude, site.ElevationM,
             new QualityResponse(site.Quality.MinC, site.Quality.MaxC, site.Quality.MaxStepCPerHour, site.Quality.FlatlineHours),
-            new ModelResponse(site.Model.Seasonality, site.Model.Method, site.Model.OrderPolicy, site.Model.MaxOrder,
-                site.Model.FitWindowDays, site.Model.IntervalMethod),
+            SiteModelSettingsResponse.From(site.Model),
             site.CreatedAt, site.UpdatedAt, site.SettingsVersion,
-            [.. site.Risk.Thresholds.Select(t => new ThresholdResponse(t.Id, t.Direction, t.ValueC, t.AlertProbability))],
-            new NightResponse(site.Risk.NightStart, site.Risk.NightEnd));
+            [.. site.Risk.Thresholds.Select(t => new ThresholdResponse(t.Id, WireNames.ThresholdDirections.Of(t.Direction), t.ValueC, t.AlertProbability))],
+            new NightResponse(WireNames.ClockTime(site.Risk.Night.Start), WireNames.ClockTime(site.Risk.Night.End)));
     }
 }
 
@@ -69,7 +70,17 @@ public sealed record NightResponse(string StartLocal, string EndLocal);
 
 public sealed record QualityResponse(double MinC, double MaxC, double MaxStepCPerHour, double FlatlineHours);
 
-public sealed record ModelResponse(string Seasonality, string Method, string OrderPolicy, int MaxOrder, int FitWindowDays, string IntervalMethod);
+/// <summary>A site's model settings in their wire words.</summary>
+public sealed record SiteModelSettingsResponse(string Seasonality, string Method, string OrderPolicy, int MaxOrder, int FitWindowDays, string IntervalMethod)
+{
+    public static SiteModelSettingsResponse From(ForecastHub.Core.Modeling.ModelSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        return new(WireNames.Seasonalities.Of(settings.Seasonality), WireNames.Methods.Of(settings.Method),
+            WireNames.OrderPolicies.Of(settings.OrderPolicy), settings.MaxOrder, settings.FitWindowDays,
+            WireNames.IntervalMethods.Of(settings.IntervalMethod));
+    }
+}
 
 /// <summary>A site in the list, with its model-health state (the <c>state</c> of <c>GET .../health</c>).</summary>
 public sealed record ListedSiteResponse(SiteResponse Site, string HealthState)

@@ -1,29 +1,20 @@
 using System.Text.Json;
 using System.Text.RegularExpressions;
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
+using ForecastHub.Core.Risk;
+using ForecastHub.Core.Settings;
 using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Api.Sites;
 
-/// <summary>The site rules of DESIGN section 3: what a valid site is, and the defaults.</summary>
+/// <summary>The site rules of DESIGN section 3: what a valid site body is. The body's words are
+/// parsed here, once, into the typed settings of the core (words in <see cref="WireNames"/>,
+/// defaults and model ranges in <see cref="ModelSettings"/>).</summary>
 public static partial class SiteRules
 {
-    public static readonly string[] Cadences = ["hourly", "daily"];
-    public static readonly string[] DailyStatistics = ["mean", "min", "max"];
-    public static readonly string[] Seasonalities = ["auto", "none", "annual", "annual-diurnal"];
-    public static readonly string[] Methods = ["burg", "yule-walker", "least-squares", "max-likelihood"];
-    public static readonly string[] OrderPolicies = ["pacf-aic", "aic", "aicc", "bic", "pacf"];
-    public static readonly string[] IntervalMethods = ["calibrated", "gaussian"];
-
-    public const int DefaultMaxOrder = 48;
-    public const int MaxMaxOrder = 200;
-    public const int DefaultFitWindowDaysHourly = 400;
-    public const int DefaultFitWindowDaysDaily = 1461;
-    public const int MinFitWindowDays = 7;
-    public const int MaxFitWindowDays = 7305;
     public const int MaxNameLength = 200;
-    public const int MaxThresholds = 8;
-    public static readonly string[] Directions = ["below", "above"];
 
     /// <summary>DESIGN section 5: readings outside this range after conversion are impossible.</summary>
     public const double PhysicalMinC = -95;
@@ -35,9 +26,6 @@ public static partial class SiteRules
     [GeneratedRegex("^[a-z0-9][a-z0-9-]{0,31}$")]
     private static partial Regex ThresholdId();
 
-    [GeneratedRegex("^([01][0-9]|2[0-3]):[0-5][0-9]$")]
-    private static partial Regex ClockTime();
-
     [GeneratedRegex(@"^[A-Za-z0-9_+\-]+(/[A-Za-z0-9_+\-]+){0,3}$")]
     private static partial Regex TimeZoneShape();
 
@@ -48,9 +36,6 @@ public static partial class SiteRules
         TimeZoneShape().IsMatch(zone)
         && TimeZoneInfo.TryFindSystemTimeZoneById(zone, out var info)
         && info.HasIanaId;
-
-    public static ModelSettings DefaultModel(string cadence) => new("auto", "burg", "pacf-aic", DefaultMaxOrder,
-        cadence == "daily" ? DefaultFitWindowDaysDaily : DefaultFitWindowDaysHourly, "calibrated");
 
     /// <summary>
     /// The site that <paramref name="body"/> describes: a new one when <paramref name="current"/> is
@@ -98,21 +83,32 @@ public static partial class SiteRules
             Error("timeZone", "timeZone must be an IANA time zone such as 'Europe/Berlin' or 'UTC'.");
         }
 
-        var cadence = body.Cadence ?? current?.Cadence;
-        if (cadence is null)
+        var cadence = current?.Cadence;
+        if (body.Cadence is not null)
+        {
+            cadence = WireNames.Cadences.TryParse(body.Cadence, out var parsed) ? parsed : null;
+            if (cadence is null)
+            {
+                Error("cadence", "cadence must be 'hourly' or 'daily'.");
+            }
+        }
+        else if (cadence is null)
         {
             Error("cadence", "cadence is required: 'hourly' or 'daily'.");
         }
-        else if (!Cadences.Contains(cadence))
-        {
-            Error("cadence", "cadence must be 'hourly' or 'daily'.");
-        }
 
-        string? dailyStatistic = null;
-        if (cadence == "daily")
+        DailyStatistic? dailyStatistic = null;
+        if (cadence == GridCadence.Daily)
         {
-            dailyStatistic = body.DailyStatistic ?? current?.DailyStatistic ?? "mean";
-            if (!DailyStatistics.Contains(dailyStatistic))
+            if (body.DailyStatistic is null)
+            {
+                dailyStatistic = current?.DailyStatistic ?? DailyStatistic.Mean;
+            }
+            else if (WireNames.DailyStatistics.TryParse(body.DailyStatistic, out var statistic))
+            {
+                dailyStatistic = statistic;
+            }
+            else
             {
                 Error("dailyStatistic", "dailyStatistic must be 'mean', 'min' or 'max'.");
             }
@@ -130,7 +126,7 @@ public static partial class SiteRules
         CheckRange(elevation, -500, 9000, "elevationM", errors);
 
         var quality = MergeQuality(body.Quality, current?.Quality, errors);
-        var model = MergeModel(body.Model, current?.Model ?? DefaultModel(cadence ?? "hourly"), errors);
+        var model = MergeModel(body.Model, current?.Model ?? ModelSettings.DefaultFor(cadence ?? GridCadence.Hourly), errors);
 
         var risk = MergeRisk(body, raw, current?.Risk ?? SiteRiskSettings.Default, errors);
 
@@ -138,7 +134,7 @@ public static partial class SiteRules
         {
             return null;
         }
-        return new SiteRecord(id!, name!.Trim(), timeZone!, cadence!, dailyStatistic, latitude, longitude, elevation,
+        return new SiteRecord(id!, name!.Trim(), timeZone!, cadence!.Value, dailyStatistic, latitude, longitude, elevation,
             quality, model, current?.CreatedAt ?? now, now, current?.SettingsVersion ?? 1)
         {
             Key = current?.Key ?? 0,
@@ -165,19 +161,17 @@ public static partial class SiteRules
 
     private static ModelSettings MergeModel(ModelBody? body, ModelSettings current, Dictionary<string, string[]> errors)
     {
-        var model = new ModelSettings(
-            body?.Seasonality ?? current.Seasonality,
-            body?.Method ?? current.Method,
-            body?.OrderPolicy ?? current.OrderPolicy,
-            body?.MaxOrder ?? current.MaxOrder,
-            body?.FitWindowDays ?? current.FitWindowDays,
-            body?.IntervalMethod ?? current.IntervalMethod);
-        CheckChoice(model.Seasonality, Seasonalities, "model.seasonality", errors);
-        CheckChoice(model.Method, Methods, "model.method", errors);
-        CheckChoice(model.OrderPolicy, OrderPolicies, "model.orderPolicy", errors);
-        CheckChoice(model.IntervalMethod, IntervalMethods, "model.intervalMethod", errors);
-        CheckRange(model.MaxOrder, 1, MaxMaxOrder, "model.maxOrder", errors);
-        CheckRange(model.FitWindowDays, MinFitWindowDays, MaxFitWindowDays, "model.fitWindowDays", errors);
+        var model = current with
+        {
+            Seasonality = Choice(body?.Seasonality, current.Seasonality, WireNames.Seasonalities, "model.seasonality", errors),
+            Method = Choice(body?.Method, current.Method, WireNames.Methods, "model.method", errors),
+            OrderPolicy = Choice(body?.OrderPolicy, current.OrderPolicy, WireNames.OrderPolicies, "model.orderPolicy", errors),
+            MaxOrder = body?.MaxOrder ?? current.MaxOrder,
+            FitWindowDays = body?.FitWindowDays ?? current.FitWindowDays,
+            IntervalMethod = Choice(body?.IntervalMethod, current.IntervalMethod, WireNames.IntervalMethods, "model.intervalMethod", errors),
+        };
+        CheckRange(model.MaxOrder, 1, ModelSettings.MaxMaxOrder, "model.maxOrder", errors);
+        CheckRange(model.FitWindowDays, ModelSettings.MinFitWindowDays, ModelSettings.MaxFitWindowDays, "model.fitWindowDays", errors);
         return model;
     }
 
@@ -188,13 +182,13 @@ public static partial class SiteRules
         if (raw.ValueKind == JsonValueKind.Object && raw.TryGetProperty("thresholds", out _))
         {
             var sent = body.Thresholds ?? [];
-            if (sent.Count > MaxThresholds)
+            if (sent.Count > SiteRiskSettings.MaxThresholds)
             {
-                errors["thresholds"] = [$"A site has at most {MaxThresholds} thresholds; {sent.Count} were sent."];
+                errors["thresholds"] = [$"A site has at most {SiteRiskSettings.MaxThresholds} thresholds; {sent.Count} were sent."];
             }
 
             var list = new List<SiteThreshold>();
-            for (var i = 0; i < sent.Count && i < MaxThresholds; i++)
+            for (var i = 0; i < sent.Count && i < SiteRiskSettings.MaxThresholds; i++)
             {
                 var t = sent[i];
                 var at = $"thresholds[{i}]";
@@ -213,7 +207,7 @@ public static partial class SiteRules
                     errors[$"{at}.id"] = [$"{at}.id '{t.Id}' is used twice; threshold ids must be unique within the site."];
                 }
 
-                if (t.Direction is null || !Directions.Contains(t.Direction))
+                if (!WireNames.ThresholdDirections.TryParse(t.Direction, out var direction))
                 {
                     errors[$"{at}.direction"] = [$"{at}.direction must be 'below' or 'above'."];
                 }
@@ -228,42 +222,51 @@ public static partial class SiteRules
                     errors[$"{at}.alertProbability"] = [$"{at}.alertProbability must be above 0 and at most 1 (leave it out for a threshold that never alerts)."];
                 }
 
-                list.Add(new SiteThreshold(t.Id ?? "", t.Direction ?? "", t.ValueC ?? double.NaN, t.AlertProbability));
+                list.Add(new SiteThreshold(t.Id ?? "", direction, t.ValueC ?? double.NaN, t.AlertProbability));
             }
 
             thresholds = list;
         }
 
-        var start = body.Night?.StartLocal ?? current.NightStart;
-        var end = body.Night?.EndLocal ?? current.NightEnd;
-        if (raw.ValueKind == JsonValueKind.Object && raw.TryGetProperty("night", out var night) && night.ValueKind == JsonValueKind.Null)
+        var night = current.Night;
+        if (raw.ValueKind == JsonValueKind.Object && raw.TryGetProperty("night", out var sentNight) && sentNight.ValueKind == JsonValueKind.Null)
         {
-            (start, end) = (SiteRiskSettings.Default.NightStart, SiteRiskSettings.Default.NightEnd);
+            night = NightHours.Default;
         }
 
-        if (!ClockTime().IsMatch(start))
+        var start = night.Start;
+        if (body.Night?.StartLocal is { } startText && !WireNames.TryParseClockTime(startText, out start))
         {
             errors["night.startLocal"] = ["night.startLocal must be a local clock time \"HH:mm\" from 00:00 to 23:59, such as \"18:00\"."];
         }
 
-        if (!ClockTime().IsMatch(end))
+        var end = night.End;
+        if (body.Night?.EndLocal is { } endText && !WireNames.TryParseClockTime(endText, out end))
         {
             errors["night.endLocal"] = ["night.endLocal must be a local clock time \"HH:mm\" from 00:00 to 23:59, such as \"09:00\"."];
         }
-        else if (start == end)
+        else if (start == end && !errors.ContainsKey("night.startLocal"))
         {
             errors["night.endLocal"] = ["night.endLocal must differ from night.startLocal (an end at or before the start runs past midnight)."];
         }
 
-        return new SiteRiskSettings(thresholds, start, end);
+        return new SiteRiskSettings(thresholds, new NightHours(start, end));
     }
 
-    private static void CheckChoice(string value, string[] allowed, string field, Dictionary<string, string[]> errors)
+    // The value of a word in the body, the current value when the body leaves it out; an unknown word is an error naming the field.
+    private static T Choice<T>(string? word, T current, WordTable<T> table, string field, Dictionary<string, string[]> errors)
+        where T : struct, Enum
     {
-        if (!allowed.Contains(value))
+        if (word is null)
         {
-            errors[field] = [$"{field} must be one of {string.Join(", ", allowed.Select(a => $"'{a}'"))}."];
+            return current;
         }
+        if (table.TryParse(word, out var value))
+        {
+            return value;
+        }
+        errors[field] = [$"{field} must be one of {string.Join(", ", table.Words.Select(a => $"'{a}'"))}."];
+        return current;
     }
 
     private static void CheckRange(double? value, double min, double max, string field, Dictionary<string, string[]> errors)

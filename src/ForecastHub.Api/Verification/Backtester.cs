@@ -26,9 +26,9 @@ public static class Backtester
     {
         ArgumentNullException.ThrowIfNull(site);
         ArgumentNullException.ThrowIfNull(readings);
-        var isDaily = SiteGridLoader.IsDaily(site);
+        var isDaily = site.IsDaily;
         var zone = GridBuilder.FindZone(site.TimeZone);
-        var settings = SiteModeling.Settings(site);
+        var settings = site.Model;
         var horizons = isDaily ? 3 : 24;
         var lastDay = GridBuilder.LocalDate(dataEnd, zone);
         var firstDay = lastDay.AddDays(-days + 1);
@@ -44,7 +44,7 @@ public static class Backtester
         }
 
         thresholds ??= [];
-        var night = SiteModeling.Night(site.Risk);
+        var night = site.Risk.Night;
         var events = thresholds.Select(_ => new ThresholdScoreAccumulator()).ToArray();
         var accumulator = new ScoreAccumulator(horizons, Levels);
         var pooled = new ScoreAccumulator(1, Levels);
@@ -94,7 +94,7 @@ public static class Backtester
                     continue;
                 }
 
-                var yesterday = isDaily ? GridBuilder.LocalDayStart(GridBuilder.LocalDate(step.Time, zone).AddDays(-1), zone) : step.Time.AddHours(-24);
+                var yesterday = GridClock.DayBefore(site.Cadence, zone, step.Time);
                 var persistence = observed.TryGetValue(yesterday, out var p) ? p : double.NaN;
                 var lower = step.Intervals.Select(i => i.Lower).ToArray();
                 var upper = step.Intervals.Select(i => i.Upper).ToArray();

@@ -3,6 +3,7 @@ using System.Text.Json;
 using ForecastHub.Api.Forecasts;
 using ForecastHub.Api.Models;
 using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Verification;
 using Microsoft.Extensions.Options;
@@ -24,7 +25,6 @@ public sealed class DayAheadArchiveStep(
     ForecastService forecasts,
     IForecastArchive archive,
     SiteGridLoader grids,
-    SiteModeling modeling,
     SiteVersions versions,
     IOptions<LiveScoreOptions> options,
     TimeProvider clock) : ISweepStep
@@ -45,11 +45,11 @@ public sealed class DayAheadArchiveStep(
             return;
         }
 
-        await ArchiveTomorrowAsync(site, cancellationToken);
+        await ArchiveTomorrowAsync(site, model, cancellationToken);
         await ScoreEndedDaysAsync(site, model, cancellationToken);
     }
 
-    private async Task ArchiveTomorrowAsync(SiteRecord site, CancellationToken cancellationToken)
+    private async Task ArchiveTomorrowAsync(SiteRecord site, ServingModel model, CancellationToken cancellationToken)
     {
         var zone = GridBuilder.FindZone(site.TimeZone);
         var now = clock.GetUtcNow();
@@ -67,16 +67,16 @@ public sealed class DayAheadArchiveStep(
 
         var dayStart = GridBuilder.LocalDayStart(target, zone);
         var dayEnd = GridBuilder.LocalDayStart(target.AddDays(1), zone);
-        var isDaily = SiteGridLoader.IsDaily(site);
         var current = SiteGridLoader.AlignDown(site, now);
-        var steps = isDaily ? 2 : (int)Math.Ceiling((dayEnd - current).TotalHours);
-        var (query, _, _) = ForecastQuery.Parse(isDaily, steps.ToString(System.Globalization.CultureInfo.InvariantCulture), "80,95", null, null);
-        var (forecast, _) = await forecasts.GetAsync(site, query!, cancellationToken);
-        if (forecast is null)
+        var steps = site.IsDaily ? 2 : (int)Math.Ceiling((dayEnd - current).TotalHours);
+        var recent = await forecasts.RecentGridAsync(site, now, cancellationToken);
+        if (recent is null)
         {
             return;
         }
 
+        // The core's forecast itself (no next-day simulation needed): the same path and intervals the forecast endpoint serves.
+        var forecast = SiteForecaster.Forecast(model.Model, recent, steps, Levels, [], seed: 0, paths: 0);
         var daySteps = forecast.Steps.Where(s => s.Time >= dayStart && s.Time < dayEnd)
             .Select(s => new ArchivedStep(s.Time, s.Mean, s.Sd,
                 [.. s.Intervals.Select(i => i.Lower)], [.. s.Intervals.Select(i => i.Upper)]))
@@ -88,7 +88,7 @@ public sealed class DayAheadArchiveStep(
 
         var json = JsonSerializer.Serialize(new ArchivedDay(Levels, daySteps), LiveScoreOptions.Json);
         // Refused when the site was deleted (and perhaps created again) since the sweep read it.
-        await archive.ArchiveAsync(new ArchivedForecast(site.Id, site.Key, target, forecast.IssuedAt, forecast.Origin, forecast.Model.FittedAt, json), cancellationToken);
+        await archive.ArchiveAsync(new ArchivedForecast(site.Id, site.Key, target, now, forecast.LastData, model.Stored.FittedAt, json), cancellationToken);
         archivedThrough[site.Id] = (site.Key, target);
     }
 
@@ -146,12 +146,11 @@ public sealed class DayAheadArchiveStep(
         }
 
         var observedSteps = day.Steps.Where(s => byTime.ContainsKey(s.Time)).ToList();
-        var climatology = modeling.Climatology(model.Model, [.. observedSteps.Select(s => s.Time)]);
-        var isDaily = SiteGridLoader.IsDaily(site);
+        double[] climatology = observedSteps.Count == 0 ? [] : model.Model.Climatology.Mean([.. observedSteps.Select(s => s.Time)]);
         var zone = GridBuilder.FindZone(site.TimeZone);
         var points = observedSteps.Select((s, i) =>
         {
-            var yesterday = isDaily ? GridBuilder.LocalDayStart(GridBuilder.LocalDate(s.Time, zone).AddDays(-1), zone) : s.Time.AddHours(-24);
+            var yesterday = GridClock.DayBefore(site.Cadence, zone, s.Time);
             var persistence = byTime.TryGetValue(yesterday, out var p) ? p : double.NaN;
             return new ScoredPoint(s.Time, byTime[s.Time], s.Mean, s.Sd, s.Lower, s.Upper, persistence, climatology[i]);
         }).ToList();

@@ -45,13 +45,13 @@ public sealed class VerificationService(
         }
         else
         {
-            var days = SiteGridLoader.IsDaily(site) ? DailyBacktestDays : HourlyBacktestDays;
+            var days = site.IsDaily ? DailyBacktestDays : HourlyBacktestDays;
             var end = model.Stored.DataEnd;
             var readings = await grids.ReadAsync(site, end.AddDays(-(days + site.Model.FitWindowDays)),
                 SiteGridLoader.NextStep(site, SiteGridLoader.AlignDown(site, end)), cancellationToken);
-            var refitEvery = SiteGridLoader.IsDaily(site) ? RefitEveryDays : HourlyRefitEveryDays;
+            var refitEvery = site.IsDaily ? RefitEveryDays : HourlyRefitEveryDays;
             backtest = readings is null ? null
-                : Backtester.Run(site, readings, end, days, refitEvery, SiteModeling.RiskThresholds(site.Risk, [], []));
+                : Backtester.Run(site, readings, end, days, refitEvery, site.Risk.WithQueryThresholds([], []));
             backtests[site.Id] = (site.Key, model.Stored.FittedAt, site.Risk.Key, backtest);
         }
 

@@ -3,6 +3,19 @@ namespace ForecastHub.Core.Grid;
 /// <summary>Step arithmetic on a site's grid: hourly steps are UTC hours, daily steps local calendar days.</summary>
 public static class GridClock
 {
+    /// <summary>The start of the step holding <paramref name="time"/>: its UTC hour (hourly, in UTC) or the local midnight starting its local day (daily).</summary>
+    public static DateTimeOffset StepStart(GridCadence cadence, TimeZoneInfo zone, DateTimeOffset time)
+    {
+        ArgumentNullException.ThrowIfNull(zone);
+        return cadence == GridCadence.Hourly
+            ? new DateTimeOffset(time.UtcTicks - (time.UtcTicks % TimeSpan.TicksPerHour), TimeSpan.Zero)
+            : GridBuilder.LocalDayStart(GridBuilder.LocalDate(time, zone), zone);
+    }
+
+    /// <summary>The same step one local day earlier: 24 hours before (hourly, as persistence compares) or the previous local day (daily).</summary>
+    public static DateTimeOffset DayBefore(GridCadence cadence, TimeZoneInfo zone, DateTimeOffset stepStart) =>
+        StepAfter(cadence, zone, stepStart, cadence == GridCadence.Hourly ? -24 : -1);
+
     /// <summary>The start of the step <paramref name="steps"/> after the step starting at <paramref name="stepStart"/>, in the zone's offset.</summary>
     public static DateTimeOffset StepAfter(GridCadence cadence, TimeZoneInfo zone, DateTimeOffset stepStart, int steps)
     {

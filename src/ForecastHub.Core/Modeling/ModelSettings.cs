@@ -1,5 +1,6 @@
 using ForecastHub.Core.Autoregression;
 using ForecastHub.Core.Climatology;
+using ForecastHub.Core.Grid;
 using ForecastHub.Core.Selection;
 
 namespace ForecastHub.Core.Modeling;
@@ -14,9 +15,17 @@ public enum IntervalMethod
     Gaussian,
 }
 
-/// <summary>A site's model settings (DESIGN.md section 3); the defaults are the product defaults.</summary>
+/// <summary>A site's model settings (DESIGN.md section 3); the defaults and ranges are the product's,
+/// the one place they are written (the API, the command line and new sites read them here).</summary>
 public sealed record ModelSettings
 {
+    public const int DefaultMaxOrder = 48;
+    public const int MaxMaxOrder = 200;
+    public const int DefaultFitWindowDaysHourly = 400;
+    public const int DefaultFitWindowDaysDaily = 1461;
+    public const int MinFitWindowDays = 7;
+    public const int MaxFitWindowDays = 7305;
+
     public Seasonality Seasonality { get; init; } = Seasonality.Auto;
 
     public ArMethod Method { get; init; } = ArMethod.Burg;
@@ -24,12 +33,19 @@ public sealed record ModelSettings
     public OrderPolicy OrderPolicy { get; init; } = OrderPolicy.PacfAic;
 
     /// <summary>Upper limit on the AR order; the fit uses min(MaxOrder, floor(10 log10 n)).</summary>
-    public int MaxOrder { get; init; } = 48;
+    public int MaxOrder { get; init; } = DefaultMaxOrder;
 
-    /// <summary>Only grid steps within this many days before the newest value are fitted.</summary>
-    public int FitWindowDays { get; init; } = 1095;
+    /// <summary>Only grid steps within this many days before the newest value are fitted (the
+    /// hourly default; a daily site's default comes from <see cref="DefaultFor"/>).</summary>
+    public int FitWindowDays { get; init; } = DefaultFitWindowDaysHourly;
 
     public IntervalMethod IntervalMethod { get; init; } = IntervalMethod.Calibrated;
+
+    /// <summary>The settings of a new site of <paramref name="cadence"/>.</summary>
+    public static ModelSettings DefaultFor(GridCadence cadence) => new()
+    {
+        FitWindowDays = cadence == GridCadence.Daily ? DefaultFitWindowDaysDaily : DefaultFitWindowDaysHourly,
+    };
 
     internal void Validate()
     {

@@ -37,14 +37,16 @@ public sealed class PostgresReadingSummaryStore(PostgresDatabase database) : IRe
             return new ReadingSummary(NpgsqlExtensions.FromUnixMs(lastMs), lastFlags, countReader.GetInt32(0), countReader.GetInt32(1));
         }, cancellationToken);
 
-    public Task<int> CountStepsWithDataAsync(string siteId, DateTimeOffset from, long stepMs, long offsetMs, CancellationToken cancellationToken = default) =>
+    public Task<StepsWithData> CountStepsWithDataAsync(string siteId, DateTimeOffset from, long stepMs, long offsetMs, CancellationToken cancellationToken = default) =>
         database.QueryAsync(async connection =>
         {
             // Integer division truncates as on SQLite, so both backends count the same steps.
             await using var count = connection.Command(null, """
-                SELECT count(DISTINCT (r.time_ms + $4) / $3)::integer FROM readings r JOIN sites s ON s.key = r.site_key
+                SELECT count(DISTINCT (r.time_ms + $4) / $3)::integer, max(r.time_ms) FROM readings r JOIN sites s ON s.key = r.site_key
                 WHERE s.id = $1 AND r.flags = 0 AND r.time_ms >= $2;
                 """).With(siteId).With(from.ToUnixTimeMilliseconds()).With(stepMs).With(offsetMs);
-            return (int)(await count.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false))!;
+            await using var reader = await count.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+            await reader.ReadAsync(cancellationToken).ConfigureAwait(false);
+            return new StepsWithData(reader.GetInt32(0), reader.IsDBNull(1) ? null : NpgsqlExtensions.FromUnixMs(reader.GetInt64(1)));
         }, cancellationToken);
 }

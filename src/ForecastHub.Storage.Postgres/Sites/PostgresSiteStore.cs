@@ -1,4 +1,3 @@
-using System.Text.Json;
 using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Postgres.Cluster;
 using ForecastHub.Storage.Sites;
@@ -105,15 +104,13 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
         return await reader.ReadAsync(cancellationToken).ConfigureAwait(false) ? ReadSite(reader) : null;
     }
 
-    private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web);
-
     // Positions $1..$24 follow Columns.
     private static NpgsqlCommand Bind(NpgsqlCommand command, SiteRecord site) => command
         .With(site.Id)
         .With(site.Name)
         .With(site.TimeZone)
-        .With(site.Cadence)
-        .With(site.DailyStatistic, NpgsqlTypes.NpgsqlDbType.Text)
+        .With(SiteColumns.Cadence(site))
+        .With(SiteColumns.DailyStatistic(site), NpgsqlTypes.NpgsqlDbType.Text)
         .With(site.Latitude, NpgsqlTypes.NpgsqlDbType.Double)
         .With(site.Longitude, NpgsqlTypes.NpgsqlDbType.Double)
         .With(site.ElevationM, NpgsqlTypes.NpgsqlDbType.Double)
@@ -121,35 +118,35 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
         .With(site.Quality.MaxC)
         .With(site.Quality.MaxStepCPerHour)
         .With(site.Quality.FlatlineHours)
-        .With(site.Model.Seasonality)
-        .With(site.Model.Method)
-        .With(site.Model.OrderPolicy)
+        .With(SiteColumns.Seasonality(site))
+        .With(SiteColumns.Method(site))
+        .With(SiteColumns.OrderPolicy(site))
         .With(site.Model.MaxOrder)
         .With(site.Model.FitWindowDays)
-        .With(site.Model.IntervalMethod)
+        .With(SiteColumns.IntervalMethod(site))
         .With(site.CreatedAt.ToUnixTimeMilliseconds())
         .With(site.UpdatedAt.ToUnixTimeMilliseconds())
         .With(site.SettingsVersion)
-        .With(JsonSerializer.Serialize(site.Risk.Thresholds, Json))
-        .With(site.Risk.NightStart)
-        .With(site.Risk.NightEnd);
+        .With(SiteColumns.Thresholds(site))
+        .With(SiteColumns.NightStart(site))
+        .With(SiteColumns.NightEnd(site));
 
     private static SiteRecord ReadSite(NpgsqlDataReader r) => new(
         Id: r.GetString(0),
         Name: r.GetString(1),
         TimeZone: r.GetString(2),
-        Cadence: r.GetString(3),
-        DailyStatistic: r.GetNullableString(4),
+        Cadence: SiteColumns.ReadCadence(r.GetString(3)),
+        DailyStatistic: SiteColumns.ReadDailyStatistic(r.GetNullableString(4)),
         Latitude: r.GetNullableDouble(5),
         Longitude: r.GetNullableDouble(6),
         ElevationM: r.GetNullableDouble(7),
         Quality: new QualityLimits(r.GetDouble(8), r.GetDouble(9), r.GetDouble(10), r.GetDouble(11)),
-        Model: new ModelSettings(r.GetString(12), r.GetString(13), r.GetString(14), r.GetInt32(15), r.GetInt32(16), r.GetString(17)),
+        Model: SiteColumns.ReadModel(r.GetString(12), r.GetString(13), r.GetString(14), r.GetInt32(15), r.GetInt32(16), r.GetString(17)),
         CreatedAt: NpgsqlExtensions.FromUnixMs(r.GetInt64(18)),
         UpdatedAt: NpgsqlExtensions.FromUnixMs(r.GetInt64(19)),
         SettingsVersion: r.GetInt64(20))
     {
         Key = r.GetInt64(24),
-        Risk = new SiteRiskSettings(JsonSerializer.Deserialize<SiteThreshold[]>(r.GetString(21), Json) ?? [], r.GetString(22), r.GetString(23)),
+        Risk = SiteColumns.ReadRisk(r.GetString(21), r.GetString(22), r.GetString(23)),
     };
 }

@@ -10,6 +10,9 @@ public sealed record ReadingSummary(
     int LastDayReadings,
     int LastDayFlagged);
 
+/// <summary>Grid steps holding at least one unflagged reading, and the time of the newest such reading (null when none).</summary>
+public sealed record StepsWithData(int Count, DateTimeOffset? LastAt);
+
 public interface IReadingSummaryStore
 {
     /// <summary>Null when the site does not exist; an empty summary when it has no readings.</summary>
@@ -18,7 +21,8 @@ public interface IReadingSummaryStore
     /// <summary>
     /// Grid steps since <paramref name="from"/> that hold at least one unflagged reading, counted
     /// in the index: steps of <paramref name="stepMs"/> shifted by <paramref name="offsetMs"/>
-    /// (hourly: 3,600,000 and 0; daily: a day and the zone's standard offset).
+    /// (hourly: 3,600,000 and 0; daily: a day and the zone's standard offset), and the newest of
+    /// those readings: what the refit decision and the warm-up rule need, without building the grid.
     /// </summary>
-    Task<int> CountStepsWithDataAsync(string siteId, DateTimeOffset from, long stepMs, long offsetMs, CancellationToken cancellationToken = default);
+    Task<StepsWithData> CountStepsWithDataAsync(string siteId, DateTimeOffset from, long stepMs, long offsetMs, CancellationToken cancellationToken = default);
 }

@@ -32,13 +32,15 @@ public sealed class SqliteReadingSummaryStore(SqliteDatabase database) : IReadin
             return new ReadingSummary(SqliteExtensions.FromUnixMs(lastMs), lastFlags, countReader.GetInt32(0), countReader.GetInt32(1));
         }));
 
-    public Task<int> CountStepsWithDataAsync(string siteId, DateTimeOffset from, long stepMs, long offsetMs, CancellationToken cancellationToken = default) =>
+    public Task<StepsWithData> CountStepsWithDataAsync(string siteId, DateTimeOffset from, long stepMs, long offsetMs, CancellationToken cancellationToken = default) =>
         Task.FromResult(database.Read((connection, transaction) =>
         {
             using var count = connection.Command(transaction, """
-                SELECT count(DISTINCT (r.time_ms + $offset) / $step) FROM readings r JOIN sites s ON s.key = r.site_key
+                SELECT count(DISTINCT (r.time_ms + $offset) / $step), max(r.time_ms) FROM readings r JOIN sites s ON s.key = r.site_key
                 WHERE s.id = $id AND r.flags = 0 AND r.time_ms >= $from;
                 """).With("$id", siteId).With("$from", from.ToUnixTimeMilliseconds()).With("$step", stepMs).With("$offset", offsetMs);
-            return Convert.ToInt32(count.ExecuteScalar(), System.Globalization.CultureInfo.InvariantCulture);
+            using var reader = count.ExecuteReader();
+            reader.Read();
+            return new StepsWithData(reader.GetInt32(0), reader.IsDBNull(1) ? null : SqliteExtensions.FromUnixMs(reader.GetInt64(1)));
         }));
 }

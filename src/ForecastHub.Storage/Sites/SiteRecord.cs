@@ -1,16 +1,19 @@
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
+using ForecastHub.Core.Risk;
 
 namespace ForecastHub.Storage.Sites;
 
-/// <summary>A stored site. Settings are kept as the validated strings of the HTTP contract; the
-/// model code maps them to its own types. <c>SettingsVersion</c> goes up by one on every change of
-/// settings, so a refit can tell which settings a model was fitted with.</summary>
+/// <summary>A stored site with its typed settings (parsed once at the HTTP edge or the command line).
+/// <c>DailyStatistic</c> is set for daily sites only. <c>SettingsVersion</c> goes up by one on every
+/// change of settings, so a refit can tell which settings a model was fitted with.</summary>
 public sealed record SiteRecord(
     string Id,
     string Name,
     string TimeZone,
-    string Cadence,
-    string? DailyStatistic,
+    GridCadence Cadence,
+    DailyStatistic? DailyStatistic,
     double? Latitude,
     double? Longitude,
     double? ElevationM,
@@ -24,6 +27,11 @@ public sealed record SiteRecord(
     /// (0 before it is stored). A site deleted and created again under the same id gets a new key, so
     /// background work started for the old one can tell, and its writes are refused.</summary>
     public long Key { get; init; }
+
+    public bool IsDaily => Cadence == GridCadence.Daily;
+
+    /// <summary>How this site's readings become its grid.</summary>
+    public GridOptions GridOptions => new(Cadence, TimeZone, DailyStatistic ?? Core.Grid.DailyStatistic.Mean);
 
     /// <summary>Thresholds and night hours; a change re-evaluates risk but needs no refit.</summary>
     public SiteRiskSettings Risk { get; init; } = SiteRiskSettings.Default;
@@ -44,32 +52,4 @@ public sealed record SiteRecord(
             SettingsVersion = SettingsVersion + (settingsChanged ? 1 : 0),
         };
     }
-}
-
-/// <summary>Model settings of DESIGN section 3, as validated strings and numbers.</summary>
-public sealed record ModelSettings(
-    string Seasonality,
-    string Method,
-    string OrderPolicy,
-    int MaxOrder,
-    int FitWindowDays,
-    string IntervalMethod);
-
-/// <summary>One threshold of a site (DESIGN section 10): <c>direction</c> is "below" or "above";
-/// without <c>alertProbability</c> it is shown but never alerts.</summary>
-public sealed record SiteThreshold(string Id, string Direction, double ValueC, double? AlertProbability);
-
-/// <summary>A site's thresholds (at most 8, ids unique) and its night as local "HH:mm" clock times.
-/// Equal when the thresholds are equal one by one, so an unchanged PATCH stays a no-op.</summary>
-public sealed record SiteRiskSettings(IReadOnlyList<SiteThreshold> Thresholds, string NightStart, string NightEnd)
-{
-    public static SiteRiskSettings Default { get; } = new([], "18:00", "09:00");
-
-    /// <summary>A canonical text of the settings, for cache keys.</summary>
-    public string Key => string.Join(';', Thresholds.Select(t => FormattableString.Invariant($"{t.Id},{t.Direction},{t.ValueC:R},{t.AlertProbability:R}"))) + "|" + NightStart + "-" + NightEnd;
-
-    public bool Equals(SiteRiskSettings? other) =>
-        other is not null && NightStart == other.NightStart && NightEnd == other.NightEnd && Thresholds.SequenceEqual(other.Thresholds);
-
-    public override int GetHashCode() => HashCode.Combine(NightStart, NightEnd, Thresholds.Count);
 }

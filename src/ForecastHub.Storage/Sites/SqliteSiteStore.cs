@@ -1,5 +1,4 @@
 using ForecastHub.Core.Quality;
-using System.Text.Json;
 using Microsoft.Data.Sqlite;
 
 namespace ForecastHub.Storage.Sites;
@@ -98,8 +97,8 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         .With("$id", site.Id)
         .With("$name", site.Name)
         .With("$tz", site.TimeZone)
-        .With("$cadence", site.Cadence)
-        .With("$daily", site.DailyStatistic)
+        .With("$cadence", SiteColumns.Cadence(site))
+        .With("$daily", SiteColumns.DailyStatistic(site))
         .With("$lat", site.Latitude)
         .With("$lon", site.Longitude)
         .With("$elev", site.ElevationM)
@@ -107,37 +106,35 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         .With("$maxC", site.Quality.MaxC)
         .With("$step", site.Quality.MaxStepCPerHour)
         .With("$flat", site.Quality.FlatlineHours)
-        .With("$seasonality", site.Model.Seasonality)
-        .With("$method", site.Model.Method)
-        .With("$policy", site.Model.OrderPolicy)
+        .With("$seasonality", SiteColumns.Seasonality(site))
+        .With("$method", SiteColumns.Method(site))
+        .With("$policy", SiteColumns.OrderPolicy(site))
         .With("$maxOrder", site.Model.MaxOrder)
         .With("$window", site.Model.FitWindowDays)
-        .With("$interval", site.Model.IntervalMethod)
+        .With("$interval", SiteColumns.IntervalMethod(site))
         .With("$created", site.CreatedAt.ToUnixTimeMilliseconds())
         .With("$updated", site.UpdatedAt.ToUnixTimeMilliseconds())
         .With("$version", site.SettingsVersion)
-        .With("$thresholds", JsonSerializer.Serialize(site.Risk.Thresholds, Json))
-        .With("$nightStart", site.Risk.NightStart)
-        .With("$nightEnd", site.Risk.NightEnd);
-
-    private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web);
+        .With("$thresholds", SiteColumns.Thresholds(site))
+        .With("$nightStart", SiteColumns.NightStart(site))
+        .With("$nightEnd", SiteColumns.NightEnd(site));
 
     private static SiteRecord ReadSite(SqliteDataReader r) => new(
         Id: r.GetString(0),
         Name: r.GetString(1),
         TimeZone: r.GetString(2),
-        Cadence: r.GetString(3),
-        DailyStatistic: r.GetNullableString(4),
+        Cadence: SiteColumns.ReadCadence(r.GetString(3)),
+        DailyStatistic: SiteColumns.ReadDailyStatistic(r.GetNullableString(4)),
         Latitude: r.GetNullableDouble(5),
         Longitude: r.GetNullableDouble(6),
         ElevationM: r.GetNullableDouble(7),
         Quality: new QualityLimits(r.GetDouble(8), r.GetDouble(9), r.GetDouble(10), r.GetDouble(11)),
-        Model: new ModelSettings(r.GetString(12), r.GetString(13), r.GetString(14), r.GetInt32(15), r.GetInt32(16), r.GetString(17)),
+        Model: SiteColumns.ReadModel(r.GetString(12), r.GetString(13), r.GetString(14), r.GetInt32(15), r.GetInt32(16), r.GetString(17)),
         CreatedAt: SqliteExtensions.FromUnixMs(r.GetInt64(18)),
         UpdatedAt: SqliteExtensions.FromUnixMs(r.GetInt64(19)),
         SettingsVersion: r.GetInt64(20))
     {
         Key = r.GetInt64(24),
-        Risk = new SiteRiskSettings(JsonSerializer.Deserialize<SiteThreshold[]>(r.GetString(21), Json) ?? [], r.GetString(22), r.GetString(23)),
+        Risk = SiteColumns.ReadRisk(r.GetString(21), r.GetString(22), r.GetString(23)),
     };
 }

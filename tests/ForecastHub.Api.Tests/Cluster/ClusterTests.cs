@@ -6,7 +6,9 @@ using System.Net.Http.Json;
 using System.Text.Json;
 using ForecastHub.Api.Tests.Infrastructure;
 using ForecastHub.Api.Tests.Keys;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
+using ForecastHub.Core.Risk;
 using ForecastHub.Storage.Postgres;
 using ForecastHub.Storage.Postgres.Migrations;
 using ForecastHub.Storage.Postgres.Readings;
@@ -250,7 +252,7 @@ public sealed class ClusterTests
                 {
                     Assert.NotNull(await sites.UpdateAsync(id, s => s with
                     {
-                        Risk = s.Risk with { Thresholds = [new SiteThreshold("warm", "above", -40, 0.5)] },
+                        Risk = s.Risk with { Thresholds = [new SiteThreshold("warm", ThresholdDirection.Above, -40, 0.5)] },
                     }));
                 }
                 Assert.True(await new PostgresWebhookStore(database).CreateAsync(new WebhookRecord("wh-1", receiver.Url,
@@ -305,8 +307,8 @@ public sealed class ClusterTests
             .Select((r, i) => new IncomingReading(i, r.Time.ToUnixTimeMilliseconds(), r.Value, r.Value, "C")).ToArray();
         foreach (var id in siteIds)
         {
-            Assert.True(await sites.CreateAsync(new SiteRecord(id, id, "UTC", "hourly", null, null, null, null, QualityLimits.Default,
-                new ModelSettings("auto", "burg", "pacf-aic", maxOrder, days, "calibrated"), now, now)));
+            Assert.True(await sites.CreateAsync(new SiteRecord(id, id, "UTC", ForecastHub.Core.Grid.GridCadence.Hourly, null, null, null, null, QualityLimits.Default,
+                new ForecastHub.Core.Modeling.ModelSettings { MaxOrder = maxOrder, FitWindowDays = days }, now, now)));
             await readings.IngestAsync(id, hourly, ConflictPolicy.Reject, now);
         }
     }

@@ -34,6 +34,23 @@ public sealed class ForecastCacheTests
     }
 
     [Fact]
+    public async Task ARepeatedForecastIsServedFromTheCache()
+    {
+        await using var factory = new ApiFactory();
+        using var client = factory.CreateAdminClient();
+        await FittedSiteAsync(factory, client);
+
+        var (first, _) = await GetAsync(client);
+        var (hitsBefore, missesBefore) = await CacheCountsAsync(client);
+        var (second, _) = await GetAsync(client);
+        var (hitsAfter, missesAfter) = await CacheCountsAsync(client);
+
+        Assert.Equal(first, second);
+        Assert.Equal((hitsBefore + 1, missesBefore), (hitsAfter, missesAfter));
+        Assert.Equal(1, missesBefore);
+    }
+
+    [Fact]
     public async Task NewReadingsReplaceTheStoredAnswer()
     {
         await using var factory = new ApiFactory();
@@ -66,6 +83,17 @@ public sealed class ForecastCacheTests
         await factory.IngestAsync("orchard-1", history);
         await client.RefitAsync("orchard-1");
         return history;
+    }
+
+    // Forecast answers counted by the service's metrics, by whether the cache held them.
+    private static async Task<(int Hits, int Misses)> CacheCountsAsync(HttpClient client)
+    {
+        var page = await client.GetStringAsync(new Uri("/metrics", UriKind.Relative));
+        int Count(string cache) => page.Split('\n')
+            .Where(l => l.StartsWith($"forecasthub_forecast_duration_seconds_count{{cache=\"{cache}\"}} ", StringComparison.Ordinal))
+            .Select(l => int.Parse(l[(l.LastIndexOf(' ') + 1)..], System.Globalization.CultureInfo.InvariantCulture))
+            .SingleOrDefault();
+        return (Count("hit"), Count("miss"));
     }
 
     private static async Task<(byte[] Body, string? ContentType)> GetAsync(HttpClient client)

@@ -1,4 +1,5 @@
 using ForecastHub.Api.Tests.Infrastructure;
+using Microsoft.Extensions.DependencyInjection;
 
 namespace ForecastHub.Api.Tests.Models;
 
@@ -22,10 +23,18 @@ public sealed class LoadedModelCapTests
         }
 
         // Each read evicts the one model held, so every later read goes back to storage.
+        var models = factory.Services.GetRequiredService<ForecastHub.Api.Models.ModelService>();
+        var held = sites[^1];
         foreach (var site in sites.Reverse().Concat(sites))
         {
+            // Only the model read last is held; any other must have been evicted and is read from storage.
+            Assert.Equal(site == held, models.IsLoaded(site));
             var model = await client.GetJsonAsync($"/api/v1/sites/{site}/model");
+            held = site;
+
             Assert.Equal(before[site], model.GetRawText());
+            Assert.Equal(1, models.LoadedCount);
+            Assert.True(models.IsLoaded(site));
         }
     }
 

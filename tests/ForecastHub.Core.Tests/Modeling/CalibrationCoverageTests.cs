@@ -14,7 +14,7 @@ public sealed class CalibrationCoverageTests(ITestOutputHelper output)
     {
         const int trainHours = 3 * 8760;
         var grid = SomeGrid.SeasonalHourlyGrid(trainHours + 8760 + 24, seed: 42);
-        var model = SiteModelFitter.Fit(grid.Until(trainHours - 1), new ModelSettings());
+        var model = SiteModelFitter.Fit(grid.Until(trainHours - 1), new ModelSettings { FitWindowDays = 1095 });
         var gaussianModel = model with { Settings = model.Settings with { IntervalMethod = IntervalMethod.Gaussian } };
 
         var (calibrated, gaussian, outcomes) = (new double[2], new double[2], 0);

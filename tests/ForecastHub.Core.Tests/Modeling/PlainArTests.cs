@@ -18,7 +18,7 @@ public sealed class PlainArTests
     {
         var fixture = ReferenceFixture.Load("plain-ar-predict.json");
         var grid = SomeGrid.DailyGrid(fixture.Doubles("values"));
-        var settings = new ModelSettings { Seasonality = Seasonality.None, IntervalMethod = IntervalMethod.Gaussian, Method = method, OrderPolicy = OrderPolicy.Aic };
+        var settings = new ModelSettings { FitWindowDays = 1095, Seasonality = Seasonality.None, IntervalMethod = IntervalMethod.Gaussian, Method = method, OrderPolicy = OrderPolicy.Aic };
 
         var model = SiteModelFitter.Fit(grid, settings);
         var forecast = SiteForecaster.Forecast(model, grid, 24, [0.95], [], seed: 1);

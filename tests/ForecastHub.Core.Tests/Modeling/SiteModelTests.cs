@@ -10,7 +10,7 @@ namespace ForecastHub.Core.Tests.Modeling;
 public sealed class SiteModelTests
 {
     private static readonly Lazy<TimeGrid> Hourly = new(() => SomeGrid.SeasonalHourlyGrid(400 * 24, seed: 3));
-    private static readonly Lazy<SiteModel> HourlyModel = new(() => SiteModelFitter.Fit(Hourly.Value, new ModelSettings { MaxOrder = 24 }));
+    private static readonly Lazy<SiteModel> HourlyModel = new(() => SiteModelFitter.Fit(Hourly.Value, new ModelSettings { FitWindowDays = 1095, MaxOrder = 24 }));
 
     [Fact]
     public void AutoSeasonalityUsesAnnualAndDiurnalTermsForAYearOfHourlyData()
@@ -31,7 +31,7 @@ public sealed class SiteModelTests
     {
         var grid = SomeGrid.SeasonalHourlyGrid(60 * 24, seed: 4);
 
-        var model = SiteModelFitter.Fit(grid, new ModelSettings { MaxOrder = 10, IntervalMethod = IntervalMethod.Gaussian });
+        var model = SiteModelFitter.Fit(grid, new ModelSettings { FitWindowDays = 1095, MaxOrder = 10, IntervalMethod = IntervalMethod.Gaussian });
 
         Assert.Equal(0, model.Climatology.Design.AnnualHarmonics);
         Assert.Equal(3, model.Climatology.Design.DiurnalHarmonics);
@@ -42,7 +42,7 @@ public sealed class SiteModelTests
     {
         var grid = SomeGrid.DailyGrid(SomeAr.ArSeries(200, [0.6], mean: 10));
 
-        var model = SiteModelFitter.Fit(grid, new ModelSettings { Seasonality = Seasonality.Annual });
+        var model = SiteModelFitter.Fit(grid, new ModelSettings { FitWindowDays = 1095, Seasonality = Seasonality.Annual });
 
         Assert.Equal(1, model.Climatology.Design.Columns);
         Assert.Contains(model.Notes, n => n.Contains("year of data", StringComparison.Ordinal));
@@ -131,7 +131,7 @@ public sealed class SiteModelTests
     public void DailySitesHaveNoNextDaySummary()
     {
         var grid = SomeGrid.DailyGrid(SomeAr.ArSeries(300, [0.5], mean: 3));
-        var model = SiteModelFitter.Fit(grid, new ModelSettings());
+        var model = SiteModelFitter.Fit(grid, new ModelSettings { FitWindowDays = 1095 });
 
         var forecast = SiteForecaster.Forecast(model, grid, 3, [0.8], [], seed: 1);
 
@@ -144,7 +144,7 @@ public sealed class SiteModelTests
     {
         var empty = GridBuilder.Build([], SomeGrid.Hourly());
 
-        var e = Assert.Throws<SeriesException>(() => SiteModelFitter.Fit(empty, new ModelSettings()));
+        var e = Assert.Throws<SeriesException>(() => SiteModelFitter.Fit(empty, new ModelSettings { FitWindowDays = 1095 }));
 
         Assert.Equal(SeriesProblem.Empty, e.Problem);
     }
@@ -154,7 +154,7 @@ public sealed class SiteModelTests
     {
         var gaps = SomeGrid.HourlyGrid(Enumerable.Repeat(double.NaN, 48).ToArray());
 
-        Assert.Equal(SeriesProblem.Empty, Assert.Throws<SeriesException>(() => SiteModelFitter.Fit(gaps, new ModelSettings())).Problem);
+        Assert.Equal(SeriesProblem.Empty, Assert.Throws<SeriesException>(() => SiteModelFitter.Fit(gaps, new ModelSettings { FitWindowDays = 1095 })).Problem);
         Assert.Equal(SeriesProblem.Empty, Assert.Throws<SeriesException>(() => SiteForecaster.Forecast(HourlyModel.Value, gaps with { TimeZone = "Europe/Berlin" }, 3, [0.8], [], 1)).Problem);
     }
 
@@ -163,7 +163,7 @@ public sealed class SiteModelTests
     {
         var grid = SomeGrid.HourlyGrid([1, 2, 3, 2, 1, 2]);
 
-        var e = Assert.Throws<SeriesException>(() => SiteModelFitter.Fit(grid, new ModelSettings()));
+        var e = Assert.Throws<SeriesException>(() => SiteModelFitter.Fit(grid, new ModelSettings { FitWindowDays = 1095 }));
 
         Assert.Equal(SeriesProblem.TooShort, e.Problem);
     }
@@ -173,7 +173,7 @@ public sealed class SiteModelTests
     {
         var grid = SomeGrid.DailyGrid(Enumerable.Repeat(4.5, 100).ToArray());
 
-        var e = Assert.Throws<SeriesException>(() => SiteModelFitter.Fit(grid, new ModelSettings()));
+        var e = Assert.Throws<SeriesException>(() => SiteModelFitter.Fit(grid, new ModelSettings { FitWindowDays = 1095 }));
 
         Assert.Equal(SeriesProblem.Constant, e.Problem);
     }
@@ -186,8 +186,8 @@ public sealed class SiteModelTests
         var grid = SomeGrid.DailyGrid(values);
         var infinite = grid with { Values = grid.Values.Select((v, i) => i == 120 ? double.PositiveInfinity : v).ToArray() };
 
-        var model = SiteModelFitter.Fit(grid, new ModelSettings { IntervalMethod = IntervalMethod.Gaussian });
-        var e = Assert.Throws<SeriesException>(() => SiteModelFitter.Fit(infinite, new ModelSettings()));
+        var model = SiteModelFitter.Fit(grid, new ModelSettings { FitWindowDays = 1095, IntervalMethod = IntervalMethod.Gaussian });
+        var e = Assert.Throws<SeriesException>(() => SiteModelFitter.Fit(infinite, new ModelSettings { FitWindowDays = 1095 }));
 
         Assert.Equal(200, model.Window.Points);
         Assert.Equal(1, model.Window.Interpolated);

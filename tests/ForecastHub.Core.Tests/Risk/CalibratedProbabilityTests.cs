@@ -19,6 +19,7 @@ namespace ForecastHub.Core.Tests.Risk;
 /// </summary>
 public sealed class CalibratedProbabilityTests
 {
+    // The fit window covers all FitHours (the hourly default window, 400 days, would keep only the last 9,600).
     private const int FitHours = 40_000;
     private const int Outcomes = 30_000;
 
@@ -26,7 +27,7 @@ public sealed class CalibratedProbabilityTests
     public void CalibratedProbabilitiesAreReliableInEveryDecileWhereGaussianOnesAreNot()
     {
         var values = SkewedAr(FitHours + Outcomes + 60, seed: 5);
-        var model = SiteModelFitter.Fit(SomeGrid.HourlyGrid(values[..FitHours]), new ModelSettings { Seasonality = Seasonality.None, MaxOrder = 6 });
+        var model = SiteModelFitter.Fit(SomeGrid.HourlyGrid(values[..FitHours]), new ModelSettings { Seasonality = Seasonality.None, MaxOrder = 6, FitWindowDays = FitHours / 24 + 1 });
         Assert.NotNull(model.Calibration);
 
         var random = new Random(17);

@@ -79,7 +79,7 @@ public sealed class BacktestEdgeTests
     {
         var grid = ForecastHub.Core.Tests.Support.SomeGrid.DailyGrid(SomeAr.ArSeries(100, [0.5], mean: 3));
 
-        var result = Backtest.Run(grid, new ForecastHub.Core.Modeling.ModelSettings(), new BacktestOptions { TestFrom = grid.Times[^1].AddDays(10) });
+        var result = Backtest.Run(grid, new ForecastHub.Core.Modeling.ModelSettings { FitWindowDays = 1095 }, new BacktestOptions { TestFrom = grid.Times[^1].AddDays(10) });
 
         Assert.Equal(0, result.Origins);
         Assert.Null(result.From);
@@ -93,7 +93,7 @@ public sealed class BacktestEdgeTests
         var grid = ForecastHub.Core.Tests.Support.SomeGrid.DailyGrid(values);
         var changedFuture = ForecastHub.Core.Tests.Support.SomeGrid.DailyGrid(values.Select((v, i) => i >= 180 ? v + 50 : v).ToArray());
         var options = new BacktestOptions { TestFrom = grid.Times[180], TestTo = grid.Times[181], RefitEveryDays = 1 };
-        var settings = new ForecastHub.Core.Modeling.ModelSettings { IntervalMethod = ForecastHub.Core.Modeling.IntervalMethod.Gaussian };
+        var settings = new ForecastHub.Core.Modeling.ModelSettings { FitWindowDays = 1095, IntervalMethod = ForecastHub.Core.Modeling.IntervalMethod.Gaussian };
 
         var a = Backtest.Run(grid, settings, options);
         var b = Backtest.Run(changedFuture, settings, options);

@@ -19,7 +19,7 @@ public sealed class SeattleBacktestTests(ITestOutputHelper output)
             TestFrom = GridBuilder.LocalDayStart(new DateOnly(2015, 1, 1), GridBuilder.FindZone(SeattleWeather.Zone)),
             RefitEveryDays = 1,
         };
-        var settings = new ModelSettings();
+        var settings = new ModelSettings { FitWindowDays = 1095 };
         var results = new[] { ("max", DailyStatistic.Max, max), ("min", DailyStatistic.Min, min) }
             .Select(c => (c.Item1, Backtest.Run(SeattleWeather.Grid(dates, c.Item3, c.Item2), settings, options)))
             .ToArray();
