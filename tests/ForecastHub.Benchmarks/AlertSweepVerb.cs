@@ -1,6 +1,7 @@
 using System.Diagnostics;
 using System.Globalization;
 using ForecastHub.Api.Alerts;
+using ForecastHub.Api.Auth;
 using ForecastHub.Api.Cluster;
 using ForecastHub.Api.Forecasts;
 using ForecastHub.Api.Health;
@@ -10,6 +11,8 @@ using ForecastHub.Api.Models;
 using ForecastHub.Api.Sites;
 using ForecastHub.Api.Verification;
 using ForecastHub.Api.Webhooks;
+using ForecastHub.Core.Modeling;
+using ForecastHub.Core.Risk;
 using ForecastHub.Storage.Migrations;
 using ForecastHub.Storage.Sites;
 using Microsoft.Data.Sqlite;
@@ -22,7 +25,7 @@ namespace ForecastHub.Benchmarks;
 /// <summary>
 /// The alert sweep over a fleet of fitted hourly sites: the service's own components (storage,
 /// models, health, alert evaluation) composed as in the server, without HTTP; CPU time of the
-/// whole process per sweep, target at most 2 s for 1,000 sites.
+/// whole process per sweep of sites with two alerting thresholds each, target at most 2 s for 1,000 sites.
 /// </summary>
 internal sealed class AlertSweepVerb : IBenchmarkVerb
 {
@@ -31,7 +34,7 @@ internal sealed class AlertSweepVerb : IBenchmarkVerb
 
     public string Name => "alerts";
 
-    public string Description => "alert sweep over 1,000 fitted hourly sites: CPU time per sweep (target <= 2 s)";
+    public string Description => "alert sweep over 1,000 fitted hourly sites with 2 thresholds each: CPU time per sweep (target <= 2 s)";
 
     public int Run(TextWriter output) => RunAsync(output).GetAwaiter().GetResult();
 
@@ -58,15 +61,22 @@ internal sealed class AlertSweepVerb : IBenchmarkVerb
             }
             output.WriteLine($"fitted {sites} sites in {fitting.Elapsed.TotalSeconds:0.0} s");
 
-            var worker = provider.GetRequiredService<AlertWorker>();
-            var risk = provider.GetServices<ISiteRiskSource>().Any();
-            output.WriteLine(risk
-                ? "risk source registered: each evaluation computes the site's threshold risk"
-                : "no risk source registered in this build: each evaluation covers health and stored alert state only");
+            // Two alerting thresholds per site, as the target says: a frost level and a warm level.
+            foreach (var site in await store.ListAsync(null, sites))
+            {
+                await store.UpdateAsync(site.Id, s => s with
+                {
+                    Risk = s.Risk with { Thresholds = [new SiteThreshold("frost", ThresholdDirection.Below, 0, 0.3), new SiteThreshold("warm", ThresholdDirection.Above, 25, 0.5)] },
+                });
+            }
 
-            // The first sweep records every site's health state (one write per site); later sweeps find nothing changed.
-            var first = await SweepAsync(worker);
-            output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"first sweep (records {sites} health states): {first.Cpu:0.000} s CPU, {first.Wall:0.000} s wall"));
+            var worker = provider.GetRequiredService<AlertWorker>();
+
+            // The first sweep computes every site's forecast with its risk (2,000 sample paths per site) and records each health state;
+            // that is what a sweep costs after new data has reached every site. Later sweeps find the forecasts cached.
+            var cold = await SweepAsync(worker);
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"cold sweep (every forecast and risk computed, {sites} health states recorded): {cold.Cpu:0.000} s CPU, {cold.Wall:0.000} s wall"));
             var measured = new List<(double Cpu, double Wall)>();
             for (var i = 0; i < MeasuredSweeps; i++)
             {
@@ -75,11 +85,14 @@ internal sealed class AlertSweepVerb : IBenchmarkVerb
 
             var cpu = measured.Select(m => m.Cpu).Order().ToList();
             var wall = measured.Select(m => m.Wall).Order().ToList();
-            var verdict = cpu[MeasuredSweeps / 2] <= TargetCpuSeconds ? "met" : "NOT met";
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"sweep of {sites} sites, {MeasuredSweeps} runs: CPU median {cpu[MeasuredSweeps / 2]:0.000} s (min {cpu[0]:0.000}, max {cpu[^1]:0.000}), wall median {wall[MeasuredSweeps / 2]:0.000} s; target <= {TargetCpuSeconds} s CPU: {verdict}"));
+                $"warm sweep (forecasts cached), {MeasuredSweeps} runs: CPU median {cpu[MeasuredSweeps / 2]:0.000} s (min {cpu[0]:0.000}, max {cpu[^1]:0.000}), wall median {wall[MeasuredSweeps / 2]:0.000} s"));
+            // The target is judged on the cold sweep: in service, new readings reach every site between sweeps.
+            var met = cold.Cpu <= TargetCpuSeconds;
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"target <= {TargetCpuSeconds} s CPU per sweep of {sites} sites with 2 thresholds each (cold): {(met ? "met" : "NOT met")}"));
             output.WriteLine($"load average: {File.ReadAllText("/proc/loadavg").Trim()}");
-            return cpu[MeasuredSweeps / 2] <= TargetCpuSeconds ? 0 : 1;
+            return met ? 0 : 1;
         }
         finally
         {
@@ -112,7 +125,9 @@ internal sealed class AlertSweepVerb : IBenchmarkVerb
         var services = new ServiceCollection();
         services.AddSingleton<IConfiguration>(configuration);
         services.AddLogging(logging => logging.SetMinimumLevel(LogLevel.Warning));
+        services.AddMetrics();
         services.AddForecastHubStorage();
+        services.AddForecastHubAuth();
         services.AddForecastHubMetrics();
         services.AddCluster();
         services.AddSites();

@@ -25,6 +25,11 @@ internal sealed class NextDayVerb : IBenchmarkVerb
             var pathOnly = Measure.Run(() => SiteForecaster.Forecast(model, grid, 48, [0.8, 0.95], thresholds, 0, paths: 0), batches: 31, callsPerBatch: 20, warmupCalls: 200);
             output.WriteLine($"AR({model.Ar.Order}), calibrated, 2,000 paths: {m.Describe()}");
             output.WriteLine($"AR({model.Ar.Order}), same 48-step forecast without the next-day summary: {pathOnly.Describe()}");
+            // What the service computes for a site with two thresholds: the summary plus the night and next24h risk (diagnosis, no target of its own).
+            var risk = new ForecastHub.Core.Risk.RiskRequest(
+                [new("frost", ThresholdDirection.Below, 0), new("warm", ThresholdDirection.Above, 25)], ForecastHub.Core.Risk.NightHours.Default, grid.Times[^1]);
+            var withRisk = Measure.Run(() => SiteForecaster.Forecast(model, grid, 48, [0.8, 0.95], thresholds, seed++, 2000, risk), batches: 31, callsPerBatch: 20, warmupCalls: 200);
+            output.WriteLine($"AR({model.Ar.Order}), 2,000 paths, with night and next24h risk for 2 thresholds: {withRisk.Describe()}");
             failed |= m.MedianMicroseconds > TargetMicroseconds;
         }
 

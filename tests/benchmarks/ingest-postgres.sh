@@ -50,10 +50,18 @@ for _ in $(seq 1 600); do
   sleep 0.1
 done
 
+# CPU seconds (user+system) of the PostgreSQL server: the postmaster and every backend it started.
+pg_cpu() {
+  local main; main=$(head -1 "$work/pg/postmaster.pid")
+  for p in "$main" $(pgrep -P "$main"); do cat "/proc/$p/stat" 2>/dev/null; done |
+    awk -v hz="$(getconf CLK_TCK)" '{ sub(/^.*\) /, ""); t += $12 + $13 } END { printf "%.1f", t / hz }'
+}
+pg_cpu_before=$(pg_cpu)
 service_out=$(FORECASTHUB_URL="$url" FORECASTHUB_KEY="$key" FORECASTHUB_PID="$pid" \
   dotnet tests/ForecastHub.Benchmarks/bin/Release/net10.0/ForecastHub.Benchmarks.dll ingest)
 echo "$service_out" | grep -v '^service_rate='
 service_rate=$(echo "$service_out" | sed -n 's/^service_rate=//p')
+echo "PostgreSQL server CPU (user+system) during the service run, with site set-up and warm-up: $(awk -v a="$pg_cpu_before" -v b="$(pg_cpu)" 'BEGIN { printf "%.1f", b - a }') s"
 kill "$pid"; pid=""
 
 # The same shape of rows as the service stores: 100 sites x 10,000 hourly times from 2022-01-01.

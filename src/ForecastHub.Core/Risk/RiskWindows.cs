@@ -131,15 +131,17 @@ public static class RiskWindows
                 }
 
                 var firstCross = new int[n];
+                Array.Fill(firstCross, -1);
                 var beyond = 0L;
-                var crossing = 0;
-                for (var j = 0; j < n; j++)
+
+                // Step by step over each step's row of paths, so memory is read in order.
+                for (var i = 0; i < length; i++)
                 {
-                    firstCross[j] = -1;
-                    for (var i = 0; i < length; i++)
+                    var row = paths.Scores.AsSpan((first + i) * paths.Stride, n);
+                    var limit = limits[i];
+                    for (var j = 0; j < n; j++)
                     {
-                        var z = paths.Scores[(first + i) * paths.Stride + j];
-                        if (below ? z < limits[i] : z > limits[i])
+                        if (below ? row[j] < limit : row[j] > limit)
                         {
                             beyond++;
                             if (firstCross[j] < 0)
@@ -148,12 +150,9 @@ public static class RiskWindows
                             }
                         }
                     }
-
-                    if (firstCross[j] >= 0)
-                    {
-                        crossing++;
-                    }
                 }
+
+                var crossing = firstCross.Count(c => c >= 0);
 
                 var probability = length == 1 ? steps[first].Probability(threshold.Direction, threshold.ValueC) : crossing / (double)n;
                 CrossingTimes? firstCrossing = null;

@@ -12,10 +12,17 @@ namespace ForecastHub.Storage.Tests.Postgres;
 public sealed class BothBackendsTests
 {
     private const long Day = 86_400_000;
+    private const long Hour = 3_600_000;
     private static readonly DateTimeOffset Received = new(2025, 1, 1, 0, 0, 0, TimeSpan.Zero);
 
     private static IncomingReading[] DailyReadings(int firstDay, params double[] values) =>
         values.Select((v, i) => new IncomingReading(i, (firstDay + i) * Day, v, v, "C")).ToArray();
+
+    // Hourly readings from hour `first`, indexed from 0 in the batch; value(i) of the hour i.
+    internal static IncomingReading[] Hourly(int first, int count, Func<int, double> value) =>
+        Enumerable.Range(first, count).Select(i => new IncomingReading(i - first, i * Hour, value(i), value(i), "C")).ToArray();
+
+    internal static double Wave(int hour) => Math.Round(10 + (6 * Math.Sin(2 * Math.PI * hour / 24)) + (hour % 7 * 0.1), 2);
 
     private static async Task<Backend> WithSiteAsync(string backend)
     {
@@ -119,6 +126,47 @@ public sealed class BothBackendsTests
         Assert.Null(await b.Readings.IngestAsync("missing", DailyReadings(0, 1), ConflictPolicy.Reject, Received));
         Assert.Null(await b.Readings.ReadAsync("missing", 0, long.MaxValue, null, 10));
         Assert.Null(await b.Readings.SpanAsync("missing"));
+    }
+
+    [Fact]
+    public async Task BothBackendsGiveTheSameOutcomesAndRowsForMixedBatches()
+    {
+        await using var sqlite = await WithSiteAsync("sqlite");
+        await using var postgres = await WithSiteAsync("postgres");
+        // 3,000 hours with an out-of-range value, a spike, a flat line and a time sent twice in one batch;
+        // then an overlapping batch (duplicates, conflicts, new rows), then replacements that end the flat line.
+        var first = Hourly(0, 3_000, i => i switch { 100 => 75, 500 => 40, >= 1_000 and < 1_008 => 4.5, _ => Wave(i) })
+            .Append(new IncomingReading(3_000, 2_999 * Hour, Wave(2_999), Wave(2_999), "C")).ToArray();
+        var overlap = Hourly(2_500, 1_000, i => i % 10 == 0 ? Wave(i) + 1 : Wave(i));
+        var replace = Hourly(1_003, 3, i => 9.75);
+        Func<Backend, Task<IngestResult?>>[] steps =
+        [
+            b => b.Readings.IngestAsync("site-a", first, ConflictPolicy.Reject, Received),
+            b => b.Readings.IngestAsync("site-a", overlap, ConflictPolicy.Reject, Received.AddHours(1)),
+            b => b.Readings.IngestAsync("site-a", replace, ConflictPolicy.Replace, Received.AddHours(2)),
+        ];
+
+        var outcomes = new List<IReadOnlyList<ReadingOutcome>>();
+        foreach (var step in steps)
+        {
+            var expected = (await step(sqlite))!.Outcomes;
+            Assert.Equal(expected, (await step(postgres))!.Outcomes);
+            outcomes.Add(expected);
+        }
+
+        var rows = await sqlite.Readings.ReadAsync("site-a", long.MinValue, long.MaxValue, null, 10_000);
+        Assert.Equal(rows, await postgres.Readings.ReadAsync("site-a", long.MinValue, long.MaxValue, null, 10_000));
+        // The script reaches every outcome and flag it means to, so the comparisons above cover them.
+        Assert.Equal(ReadingOutcomeKind.Duplicate, outcomes[0][^1].Kind);
+        Assert.Equal(50, outcomes[1].Count(o => o.Kind == ReadingOutcomeKind.Conflict));
+        Assert.Equal(450, outcomes[1].Count(o => o.Kind == ReadingOutcomeKind.Duplicate));
+        Assert.Equal(500, outcomes[1].Count(o => o.Kind == ReadingOutcomeKind.Accepted));
+        Assert.All(outcomes[2], o => Assert.Equal(ReadingOutcomeKind.Replaced, o.Kind));
+        Assert.Equal(3_500, rows!.Count);
+        Assert.Contains(rows, r => r.Flags.HasFlag(QualityFlags.OutOfRange));
+        Assert.Contains(rows, r => r.Flags.HasFlag(QualityFlags.Spike));
+        Assert.Contains(rows, r => r.Flags.HasFlag(QualityFlags.FlatLine));
+        Assert.Equal(9.75, rows[1_004].ValueC);
     }
 
     [Theory]

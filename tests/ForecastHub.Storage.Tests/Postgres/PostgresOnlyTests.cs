@@ -1,8 +1,11 @@
 using ForecastHub.Storage.Postgres;
 using ForecastHub.Storage.Postgres.Cluster;
+using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Postgres.Keys;
 using ForecastHub.Storage.Postgres.Migrations;
+using ForecastHub.Storage.Postgres.Readings;
 using ForecastHub.Storage.Postgres.Sites;
+using ForecastHub.Storage.Readings;
 using Npgsql;
 
 namespace ForecastHub.Storage.Tests.Postgres;
@@ -66,5 +69,71 @@ public sealed class PostgresOnlyTests
         Assert.Equal(["site:site-a", "site:site-a", "key:k1", "key:k1"], heard);
         Assert.Equal(new ChangeNotice(ChangeKind.Key, "k1"), ChangeNotice.Parse(heard[^1]));
         Assert.Null(ChangeNotice.Parse("unknown:x"));
+    }
+
+    [Fact]
+    public async Task ABatchCancelledWhileWritingStoresNothingAndItsRetryMatchesSqlite()
+    {
+        await using var pg = await PostgresTestDatabase.CreateAsync();
+        await using var sqlite = await Backend.CreateAsync("sqlite");
+        var readings = new PostgresReadingStore(pg.Database);
+        Assert.True(await new PostgresSiteStore(pg.Database, TimeProvider.System).CreateAsync(SiteStoreTests.Site()));
+        Assert.True(await sqlite.Sites.CreateAsync(SiteStoreTests.Site()));
+        var received = new DateTimeOffset(2025, 1, 1, 0, 0, 0, TimeSpan.Zero);
+        var stored = BothBackendsTests.Hourly(0, 1_000, BothBackendsTests.Wave);
+        // Overlaps the stored hours (duplicates, a conflict every 25 hours) and adds new ones with a spike.
+        var batch = BothBackendsTests.Hourly(900, 1_100, i => i == 1_500 ? 45 : BothBackendsTests.Wave(i) + (i % 25 == 0 ? 2 : 0));
+        await readings.IngestAsync("site-a", stored, ConflictPolicy.Reject, received);
+        await sqlite.Readings.IngestAsync("site-a", stored, ConflictPolicy.Reject, received);
+
+        // Another session holds the table, so the attempt stops at its write, after it planned the batch; then it is cancelled.
+        await using (var blocker = await pg.Database.OpenAsync())
+        await using (var hold = await blocker.BeginTransactionAsync())
+        {
+            await using (var lockTable = new NpgsqlCommand("LOCK TABLE readings IN EXCLUSIVE MODE;", blocker, hold))
+            {
+                await lockTable.ExecuteNonQueryAsync();
+            }
+            using var cancel = new CancellationTokenSource();
+            var attempt = readings.IngestAsync("site-a", batch, ConflictPolicy.Reject, received.AddHours(1), cancel.Token);
+            using var patience = new CancellationTokenSource(TimeSpan.FromSeconds(30));
+            while (await pg.ScalarAsync<long>("SELECT count(*) FROM pg_stat_activity WHERE wait_event_type = 'Lock' AND query LIKE 'COPY readings%';") == 0)
+            {
+                await Task.Delay(10, patience.Token);
+            }
+            await cancel.CancelAsync();
+            await Assert.ThrowsAnyAsync<OperationCanceledException>(() => attempt);
+        }
+        Assert.Equal(1_000, (await readings.SpanAsync("site-a"))!.Value.Count);
+
+        var retried = await readings.IngestAsync("site-a", batch, ConflictPolicy.Reject, received.AddHours(2));
+        var expected = await sqlite.Readings.IngestAsync("site-a", batch, ConflictPolicy.Reject, received.AddHours(2));
+
+        Assert.Equal(expected!.Outcomes, retried!.Outcomes);
+        Assert.Equal(4, retried.Outcomes.Count(o => o.Kind == ReadingOutcomeKind.Conflict));
+        Assert.Contains(retried.Outcomes, o => o.Flags.HasFlag(QualityFlags.Spike));
+        Assert.Equal(await sqlite.Readings.ReadAsync("site-a", long.MinValue, long.MaxValue, null, 5_000),
+            await readings.ReadAsync("site-a", long.MinValue, long.MaxValue, null, 5_000));
+    }
+
+    [Fact]
+    public async Task ReadingsStoredBeforeVersionFourStayAndGoWithTheirSite()
+    {
+        await using var pg = await PostgresTestDatabase.CreateAsync(migrated: false);
+        var runner = new PostgresMigrationRunner(pg.Database);
+        await runner.ApplyAsync(3);
+        var sites = new PostgresSiteStore(pg.Database, TimeProvider.System);
+        var readings = new PostgresReadingStore(pg.Database);
+        Assert.True(await sites.CreateAsync(SiteStoreTests.Site()));
+        Assert.True(await sites.CreateAsync(SiteStoreTests.Site("site-b")));
+        await readings.IngestAsync("site-a", BothBackendsTests.Hourly(0, 48, BothBackendsTests.Wave), ConflictPolicy.Reject, DateTimeOffset.UnixEpoch);
+        await readings.IngestAsync("site-b", BothBackendsTests.Hourly(0, 24, BothBackendsTests.Wave), ConflictPolicy.Reject, DateTimeOffset.UnixEpoch);
+
+        await runner.ApplyAsync();
+
+        Assert.Equal(48, (await readings.SpanAsync("site-a"))!.Value.Count);
+        Assert.True(await sites.DeleteAsync("site-a"));
+        Assert.Equal(24, await pg.ScalarAsync<long>("SELECT count(*) FROM readings;"));
+        Assert.Equal(24, (await readings.SpanAsync("site-b"))!.Value.Count);
     }
 }
