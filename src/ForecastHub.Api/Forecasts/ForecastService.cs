@@ -30,12 +30,6 @@ public sealed class ForecastService(
     IOptions<JsonOptions> json,
     TimeProvider clock)
 {
-    /// <summary>Hourly forecasts condition on this much recent data (enough for any AR order the settings allow).</summary>
-    public static readonly TimeSpan HourlyRecentWindow = TimeSpan.FromDays(10);
-
-    /// <summary>Daily forecasts condition on this much recent data.</summary>
-    public static readonly TimeSpan DailyRecentWindow = TimeSpan.FromDays(120);
-
     // Fixed so the same data, model and query give the same next-day summary.
     private const int MonteCarloSeed = 20_240_601;
     private const int MaxEntriesPerSite = 32;
@@ -109,7 +103,7 @@ public sealed class ForecastService(
 
         // Hourly: the hour in progress counts (the mean of its readings so far); daily: only whole local days.
         var to = isDaily ? currentStep : SiteGridLoader.NextStep(site, currentStep);
-        var recentWindow = isDaily ? DailyRecentWindow : HourlyRecentWindow;
+        var recentWindow = Core.Modeling.SiteForecaster.RecentWindow(site.Cadence);
         var from = now - recentWindow;
         var readings = await grids.ReadAsync(site, from, to, cancellationToken);
         if (readings is null)

@@ -1,6 +1,7 @@
 using System.Collections.Concurrent;
 using System.Text.Json;
 using ForecastHub.Api.Models;
+using ForecastHub.Core.Verification;
 using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Verification;
 
@@ -50,8 +51,15 @@ public sealed class VerificationService(
             var readings = await grids.ReadAsync(site, end.AddDays(-(days + site.Model.FitWindowDays)),
                 SiteGridLoader.NextStep(site, SiteGridLoader.AlignDown(site, end)), cancellationToken);
             var refitEvery = site.IsDaily ? RefitEveryDays : HourlyRefitEveryDays;
-            backtest = readings is null ? null
-                : Backtester.Run(site, readings, end, days, refitEvery, site.Risk.WithQueryThresholds([], []));
+            var thresholds = site.Risk.WithQueryThresholds([], []);
+            backtest = readings is null ? null : BacktestResponse.Of(Backtest.Run(readings, site.GridOptions, site.Model, new BacktestOptions
+            {
+                DataEnd = end,
+                Days = days,
+                RefitEveryDays = refitEvery,
+                Thresholds = thresholds,
+                Night = site.Risk.Night,
+            }), thresholds);
             backtests[site.Id] = (model.Stored.FittedAt, site.Risk.Key, backtest);
         }
 
