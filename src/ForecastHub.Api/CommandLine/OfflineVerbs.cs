@@ -87,7 +87,7 @@ public static class OfflineVerbs
         try
         {
             var fitted = FittedSiteModel.Fit(grid, site.Model);
-            var stored = new StoredModel(SiteId, now, stopwatch.Elapsed.TotalMilliseconds, site.SettingsVersion, fitted.DataEnd,
+            var stored = new StoredModel(SiteId, site.Key, now, stopwatch.Elapsed.TotalMilliseconds, site.SettingsVersion, fitted.DataEnd,
                 fitted.Model.Window.Points, fitted.ResidualPValue, fitted.Json);
             model = ModelMapping.Describe(site, new ServingModel(stored, fitted.Model), null);
         }

@@ -61,8 +61,8 @@ public sealed class ForecastService(
         var (dataVersion, modelVersion) = versions.Get(site.Id);
         var step = SiteGridLoader.AlignDown(site, now);
         var entry = cache.AddOrUpdate(site.Id,
-            _ => new SiteEntry(dataVersion, modelVersion, step),
-            (_, old) => old.Matches(dataVersion, modelVersion, step) ? old : new SiteEntry(dataVersion, modelVersion, step));
+            _ => new SiteEntry(site.Key, dataVersion, modelVersion, step),
+            (_, old) => old.Matches(site.Key, dataVersion, modelVersion, step) ? old : new SiteEntry(site.Key, dataVersion, modelVersion, step));
         // The site's thresholds and night are part of the key, so changing them re-evaluates the risk.
         var key = query.Key + "#" + site.Risk.Key;
         if (entry.Answers.TryGetValue(key, out var hit))
@@ -180,12 +180,13 @@ public sealed class ForecastService(
         return new ConfidenceReason(state, message);
     }
 
-    private sealed class SiteEntry(long dataVersion, long modelVersion, DateTimeOffset step)
+    // Keyed by the site's internal key too, so a site created again under the same id never meets the old site's answers.
+    private sealed class SiteEntry(long siteKey, long dataVersion, long modelVersion, DateTimeOffset step)
     {
         public ConcurrentDictionary<string, CachedForecast> Answers { get; } = new(StringComparer.Ordinal);
 
-        public bool Matches(long data, long model, DateTimeOffset currentStep) =>
-            data == dataVersion && model == modelVersion && currentStep == step;
+        public bool Matches(long key, long data, long model, DateTimeOffset currentStep) =>
+            key == siteKey && data == dataVersion && model == modelVersion && currentStep == step;
     }
 
     /// <summary>One computed answer; its JSON is made on first use and then reused.</summary>

@@ -26,7 +26,7 @@ public sealed class VerificationService(
     public const int HourlyRefitEveryDays = 7;
     public const int MaxLiveDays = 90;
 
-    private readonly ConcurrentDictionary<string, (DateTimeOffset FittedAt, string RiskKey, BacktestResponse? Backtest)> backtests = new(StringComparer.Ordinal);
+    private readonly ConcurrentDictionary<string, (long SiteKey, DateTimeOffset FittedAt, string RiskKey, BacktestResponse? Backtest)> backtests = new(StringComparer.Ordinal);
 
     /// <summary>Null when the site has no model yet.</summary>
     public async Task<VerificationResponse?> GetAsync(SiteRecord site, CancellationToken cancellationToken)
@@ -40,7 +40,7 @@ public sealed class VerificationService(
 
         var now = clock.GetUtcNow();
         BacktestResponse? backtest;
-        if (backtests.TryGetValue(site.Id, out var cached) && cached.FittedAt == model.Stored.FittedAt && cached.RiskKey == site.Risk.Key)
+        if (backtests.TryGetValue(site.Id, out var cached) && cached.SiteKey == site.Key && cached.FittedAt == model.Stored.FittedAt && cached.RiskKey == site.Risk.Key)
         {
             backtest = cached.Backtest;
         }
@@ -60,7 +60,7 @@ public sealed class VerificationService(
                 Thresholds = thresholds,
                 Night = site.Risk.Night,
             }), thresholds);
-            backtests[site.Id] = (model.Stored.FittedAt, site.Risk.Key, backtest);
+            backtests[site.Id] = (site.Key, model.Stored.FittedAt, site.Risk.Key, backtest);
         }
 
         var from = DateOnly.FromDateTime(now.UtcDateTime).AddDays(-MaxLiveDays);
