@@ -140,7 +140,7 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
             var json = ModelJson.Write(model);
             var jsonMs = watch.Elapsed.TotalMilliseconds;
             watch.Restart();
-            await models.SaveAsync(new StoredModel(site.Id, now, calibratedMs, site.SettingsVersion, model.Window.To, grid.ObservedCount,
+            await models.SaveAsync(new StoredModel(site.Id, site.Key, now, calibratedMs, site.SettingsVersion, model.Window.To, grid.ObservedCount,
                 model.Diagnostics.LjungBox?.PValue, json));
             var storeMs = watch.Elapsed.TotalMilliseconds;
             if (i >= WarmupRefits)
