@@ -57,18 +57,46 @@ public sealed class SqliteDatabase : IDisposable
 
     /// <summary>Runs <paramref name="work"/> as the only writer, in one IMMEDIATE transaction that
     /// commits when it returns and rolls back when it throws.</summary>
-    public async Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default)
+    public Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
+        WriteAsync(work, foreignKeys: true, cancellationToken);
+
+    /// <summary>As <see cref="WriteAsync{T}(Func{SqliteConnection, SqliteTransaction, T}, CancellationToken)"/>, with foreign
+    /// keys off for the transaction, for a migration that rebuilds a parent table (dropping it must not
+    /// cascade to its children). Every foreign key is checked before the commit; a dangling one rolls it back.</summary>
+    public Task<T> WriteWithoutForeignKeysAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
+        WriteAsync(work, foreignKeys: false, cancellationToken);
+
+    private async Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, bool foreignKeys, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(work);
         await _writeLock.WaitAsync(cancellationToken).ConfigureAwait(false);
         try
         {
             using var connection = Open();
-            using var transaction = connection.BeginTransaction(deferred: false);
-            var result = work(connection, transaction);
-            transaction.Commit();
-            Health.WriteSucceeded();
-            return result;
+            // The pragma is a no-op inside a transaction, so it is set before BEGIN and set back before the connection returns to the pool.
+            if (!foreignKeys)
+            {
+                SetForeignKeys(connection, on: false);
+            }
+            try
+            {
+                using var transaction = connection.BeginTransaction(deferred: false);
+                var result = work(connection, transaction);
+                if (!foreignKeys)
+                {
+                    CheckForeignKeys(connection, transaction);
+                }
+                transaction.Commit();
+                Health.WriteSucceeded();
+                return result;
+            }
+            finally
+            {
+                if (!foreignKeys)
+                {
+                    SetForeignKeys(connection, on: true);
+                }
+            }
         }
         catch (SqliteException error)
         {
@@ -79,6 +107,25 @@ public sealed class SqliteDatabase : IDisposable
         {
             _writeLock.Release();
         }
+    }
+
+    private static void CheckForeignKeys(SqliteConnection connection, SqliteTransaction transaction)
+    {
+        using var check = connection.Command(transaction, "PRAGMA foreign_key_check;");
+        using var reader = check.ExecuteReader();
+        if (reader.Read())
+        {
+            throw new SqliteException($"A row of table '{reader.GetString(0)}' refers to a missing row of '{reader.GetString(2)}'; nothing was changed.", SqliteConstraint);
+        }
+    }
+
+    private const int SqliteConstraint = 19;
+
+    private static void SetForeignKeys(SqliteConnection connection, bool on)
+    {
+        using var pragma = connection.CreateCommand();
+        pragma.CommandText = $"PRAGMA foreign_keys = {(on ? "ON" : "OFF")};";
+        pragma.ExecuteNonQuery();
     }
 
     /// <summary>Runs <paramref name="read"/> on a pooled connection inside one read transaction, so

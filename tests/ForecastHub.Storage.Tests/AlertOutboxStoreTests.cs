@@ -21,6 +21,8 @@ public sealed class AlertOutboxStoreTests
     private static RaisedAlert Raised(string siteId, string window = "night") =>
         new(siteId, "frost", window, T0.AddHours(2), T0.AddHours(17), T0, T0, """{"probability":0.4}""");
 
+    private static async Task<long> KeyOf(Backend b, string siteId) => (await b.Sites.GetAsync(siteId))!.Key;
+
     private static async Task<Backend> Open(string backend)
     {
         var b = await Backend.CreateAsync(backend);
@@ -116,7 +118,8 @@ public sealed class AlertOutboxStoreTests
         var alerts = b.Alerts;
         await webhooks.CreateAsync(Webhook("wh-all"));
 
-        Assert.True(await alerts.ApplyAsync(new SiteAlertChange("site-a", [Raised("site-a")], [], "ok",
+        var key = await KeyOf(b, "site-a");
+        Assert.True(await alerts.ApplyAsync(new SiteAlertChange("site-a", key, [Raised("site-a")], [], "ok",
             [new OutgoingEvent("risk", "risk.raised", "site-a", "{}")]), T0));
 
         var state = await alerts.GetAsync("site-a");
@@ -124,7 +127,7 @@ public sealed class AlertOutboxStoreTests
         Assert.Equal(Raised("site-a"), Assert.Single(state.Raised));
         Assert.Equal("risk.raised", Assert.Single(await webhooks.DueAsync(T0, T0, 10)).Delivery.EventType);
 
-        Assert.True(await alerts.ApplyAsync(new SiteAlertChange("site-a", [], [("frost", "night")], null, []), T0.AddHours(1)));
+        Assert.True(await alerts.ApplyAsync(new SiteAlertChange("site-a", key, [], [("frost", "night")], null, []), T0.AddHours(1)));
         Assert.Empty((await alerts.GetAsync("site-a")).Raised);
         Assert.Equal("ok", (await alerts.GetAsync("site-a")).HealthState);
     }
@@ -138,10 +141,17 @@ public sealed class AlertOutboxStoreTests
         var alerts = b.Alerts;
         await webhooks.CreateAsync(Webhook("wh-all"));
 
-        Assert.False(await alerts.ApplyAsync(new SiteAlertChange("gone", [Raised("gone")], [], "ok", [Health("gone")]), T0));
+        var key = await KeyOf(b, "site-a");
+        Assert.False(await alerts.ApplyAsync(new SiteAlertChange("gone", key, [Raised("gone")], [], "ok", [Health("gone")]), T0));
+
+        // An evaluation of site-a that ends after site-a was deleted and created again belongs to the old site.
+        Assert.True(await b.Sites.DeleteAsync("site-a"));
+        Assert.True(await b.Sites.CreateAsync(SiteStoreTests.Site("site-a")));
+        Assert.False(await alerts.ApplyAsync(new SiteAlertChange("site-a", key, [Raised("site-a")], [], "ok", [Health("site-a")]), T0));
 
         Assert.Empty(await webhooks.DueAsync(T0, T0, 10));
         Assert.Empty(await alerts.ListRaisedAsync(null, 10));
+        Assert.Equal(new SiteAlertState([], null), await alerts.GetAsync("site-a") with { Raised = [] });
     }
 
     [Theory]
@@ -153,8 +163,8 @@ public sealed class AlertOutboxStoreTests
         var alerts = b.Alerts;
         var sites = b.Sites;
         await webhooks.CreateAsync(Webhook("wh-all"));
-        await alerts.ApplyAsync(new SiteAlertChange("site-a", [Raised("site-a")], [], "ok", [Health("site-a")]), T0);
-        await alerts.ApplyAsync(new SiteAlertChange("site-b", [Raised("site-b")], [], "ok", [Health("site-b")]), T0);
+        await alerts.ApplyAsync(new SiteAlertChange("site-a", await KeyOf(b, "site-a"), [Raised("site-a")], [], "ok", [Health("site-a")]), T0);
+        await alerts.ApplyAsync(new SiteAlertChange("site-b", await KeyOf(b, "site-b"), [Raised("site-b")], [], "ok", [Health("site-b")]), T0);
 
         Assert.True(await sites.DeleteAsync("site-a"));
 
@@ -171,8 +181,8 @@ public sealed class AlertOutboxStoreTests
     {
         await using var b = await Open(backend);
         var alerts = b.Alerts;
-        await alerts.ApplyAsync(new SiteAlertChange("site-a", [Raised("site-a", "next24h"), Raised("site-a", "night")], [], null, []), T0);
-        await alerts.ApplyAsync(new SiteAlertChange("site-b", [Raised("site-b")], [], null, []), T0);
+        await alerts.ApplyAsync(new SiteAlertChange("site-a", await KeyOf(b, "site-a"), [Raised("site-a", "next24h"), Raised("site-a", "night")], [], null, []), T0);
+        await alerts.ApplyAsync(new SiteAlertChange("site-b", await KeyOf(b, "site-b"), [Raised("site-b")], [], null, []), T0);
 
         var first = await alerts.ListRaisedAsync(null, 2);
         var rest = await alerts.ListRaisedAsync((first[^1].SiteId, first[^1].ThresholdId, first[^1].WindowName), 2);

@@ -61,6 +61,46 @@ public sealed class MigrationTests
     }
 
     [Fact]
+    public async Task SitesTableRebuiltForNeverReusedKeysKeepsEveryChildRowAndItsCascades()
+    {
+        using var db = new TestDatabase();
+        var runner = new MigrationRunner(db.Database);
+        Assert.Equal(6, await runner.ApplyAsync(targetVersion: 6));
+        var sites = new Sites.SqliteSiteStore(db.Database, TimeProvider.System);
+        Assert.True(await sites.CreateAsync(SiteStoreTests.Site("kept")));
+        Assert.True(await sites.CreateAsync(SiteStoreTests.Site("newest")));
+        db.Execute("""
+            INSERT INTO readings (site_key, time_ms, value_c, original_value, original_unit, flags, received_at_ms)
+            VALUES (1, 1700000000000, 4.5, 4.5, 'C', 0, 1700000000000), (2, 1700000000000, 6, 6, 'C', 0, 1700000000000);
+            INSERT INTO site_models (site_key, fitted_at_ms, fit_duration_ms, settings_version, data_end_ms, data_points, model_json)
+            VALUES (1, 1700000000000, 1, 1, 1700000000000, 1, '{}');
+            INSERT INTO raised_alerts (site_id, threshold_id, window_name, window_from_ms, window_to_ms, raised_at_ms, updated_at_ms, detail_json)
+            VALUES ('kept', 'frost', 'night', 0, 1, 0, 0, '{}');
+            """);
+        Assert.True(await sites.DeleteAsync("newest"));
+
+        Assert.Equal(runner.LatestVersion, await runner.ApplyAsync());
+
+        // Every row of the kept site is still there, under its key.
+        Assert.Equal(1, (await sites.GetAsync("kept"))!.Key);
+        Assert.Equal(1, db.Scalar<int>("SELECT count(*) FROM readings WHERE site_key = 1;"));
+        Assert.Equal(1, db.Scalar<int>("SELECT count(*) FROM site_models WHERE site_key = 1;"));
+        Assert.Equal(1, db.Scalar<int>("PRAGMA foreign_keys;"));
+        // From now on no key is handed out twice: deleting the newest site and creating one gives a key above every key since.
+        Assert.True(await sites.CreateAsync(SiteStoreTests.Site("after")));
+        var after = (await sites.GetAsync("after"))!.Key;
+        Assert.True(await sites.DeleteAsync("after"));
+        Assert.True(await sites.CreateAsync(SiteStoreTests.Site("after")));
+        Assert.Equal(after + 1, (await sites.GetAsync("after"))!.Key);
+        // The cascades and the trigger of the old table hold on the rebuilt one.
+        Assert.True(await sites.DeleteAsync("kept"));
+        Assert.Equal(0, db.Scalar<int>("SELECT count(*) FROM readings WHERE site_key = 1;"));
+        Assert.Equal(0, db.Scalar<int>("SELECT count(*) FROM site_models;"));
+        Assert.Equal(0, db.Scalar<int>("SELECT count(*) FROM raised_alerts;"));
+        Assert.Equal("ok", db.Scalar<string>("PRAGMA integrity_check;"));
+    }
+
+    [Fact]
     public void ShippedMigrationsAreNumberedFromOneWithoutGaps()
     {
         Assert.Equal(Enumerable.Range(1, Migration.All.Count), Migration.All.Select(m => m.Version));

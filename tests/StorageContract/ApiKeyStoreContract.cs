@@ -74,4 +74,20 @@ public abstract class ApiKeyStoreContract : StorageContract
         Assert.False(await Backend.Keys.HasActiveAdminAsync());
         Assert.Null(await Backend.Keys.RevokeAsync("key-ffffffffffffffff", Start));
     }
+
+    [Fact]
+    public async Task AFirstAdminKeyIsStoredOnlyWhileNoActiveAdminExists()
+    {
+        Assert.True(await Backend.Keys.CreateAsync(Key("key-0000000000000001", "read")));
+
+        Assert.True(await Backend.Keys.CreateFirstAdminAsync(Key("key-0000000000000002")));
+        Assert.False(await Backend.Keys.CreateFirstAdminAsync(Key("key-0000000000000003")));
+        Assert.Null(await Backend.Keys.GetAsync("key-0000000000000003"));
+
+        // Once every admin key is revoked, a start may generate one again.
+        await Backend.Keys.RevokeAsync("key-0000000000000002", Start.AddHours(1));
+        Assert.True(await Backend.Keys.CreateFirstAdminAsync(Key("key-0000000000000004")));
+        Assert.Equal(["key-0000000000000001", "key-0000000000000002", "key-0000000000000004"],
+            (await Backend.Keys.ListAsync(null, 10)).Select(k => k.Id));
+    }
 }

@@ -7,13 +7,15 @@ public abstract class ForecastArchiveContract : StorageContract
 {
     private static readonly DateOnly Day = new(2026, 3, 2);
 
-    private static ArchivedForecast Forecast(DateOnly day, int issuedHour, string json = """{"steps":[]}""") =>
-        new("site-a", day, Start.AddHours(issuedHour), Start.AddHours(issuedHour - 1), Start.AddHours(-3), json);
+    private long siteKey;
+
+    private ArchivedForecast Forecast(DateOnly day, int issuedHour, string json = """{"steps":[]}""") =>
+        new("site-a", siteKey, day, Start.AddHours(issuedHour), Start.AddHours(issuedHour - 1), Start.AddHours(-3), json);
 
     [Fact]
     public async Task TheFirstForecastForADayIsKept()
     {
-        await CreateSiteAsync();
+        siteKey = (await CreateSiteAsync()).Key;
         var first = Forecast(Day, 1);
 
         Assert.False(await Backend.Archive.HasArchivedAsync("site-a", Day));
@@ -27,7 +29,7 @@ public abstract class ForecastArchiveContract : StorageContract
     [Fact]
     public async Task UnscoredForecastsAreListedOldestFirstUntilScored()
     {
-        await CreateSiteAsync();
+        siteKey = (await CreateSiteAsync()).Key;
         var days = new[] { Day.AddDays(2), Day, Day.AddDays(1) };
         foreach (var day in days)
         {
@@ -36,20 +38,20 @@ public abstract class ForecastArchiveContract : StorageContract
 
         Assert.Equal([Day, Day.AddDays(1)], (await Backend.Archive.ListUnscoredAsync("site-a", 2)).Select(f => f.TargetDate));
 
-        Assert.True(await Backend.Archive.SaveScoreAsync(new LiveScore("site-a", Day, Start.AddDays(2), """{"mae":1}""")));
+        Assert.True(await Backend.Archive.SaveScoreAsync(new LiveScore("site-a", siteKey, Day, Start.AddDays(2), """{"mae":1}""")));
         Assert.Equal([Day.AddDays(1), Day.AddDays(2)], (await Backend.Archive.ListUnscoredAsync("site-a", 10)).Select(f => f.TargetDate));
     }
 
     [Fact]
     public async Task ASecondScoreForADayReplacesTheFirstAndScoresListNewestFirstFromADate()
     {
-        await CreateSiteAsync();
+        siteKey = (await CreateSiteAsync()).Key;
         for (var d = 0; d < 4; d++)
         {
             await Backend.Archive.ArchiveAsync(Forecast(Day.AddDays(d), 1));
-            await Backend.Archive.SaveScoreAsync(new LiveScore("site-a", Day.AddDays(d), Start.AddDays(d + 2), $$"""{"mae":{{d}}}"""));
+            await Backend.Archive.SaveScoreAsync(new LiveScore("site-a", siteKey, Day.AddDays(d), Start.AddDays(d + 2), $$"""{"mae":{{d}}}"""));
         }
-        var rescored = new LiveScore("site-a", Day.AddDays(2), Start.AddDays(9), """{"mae":9}""");
+        var rescored = new LiveScore("site-a", siteKey, Day.AddDays(2), Start.AddDays(9), """{"mae":9}""");
 
         Assert.True(await Backend.Archive.SaveScoreAsync(rescored));
 

@@ -1,12 +1,13 @@
 using ForecastHub.Storage.Models;
+using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Storage.Contract;
 
 /// <summary>What every <see cref="IModelStore"/> must do: one serving model and one last attempt per site.</summary>
 public abstract class ModelStoreContract : StorageContract
 {
-    private static StoredModel Model(string siteId, int hours, string json = """{"order":3}""") =>
-        new(siteId, Start.AddHours(hours), 12.5, 1 + hours, Start.AddHours(hours - 1), 100 + hours, hours == 0 ? null : 0.25, json);
+    private static StoredModel Model(SiteRecord site, int hours, string json = """{"order":3}""") =>
+        new(site.Id, site.Key, Start.AddHours(hours), 12.5, 1 + hours, Start.AddHours(hours - 1), 100 + hours, hours == 0 ? null : 0.25, json);
 
     [Fact]
     public async Task ASiteWithoutAModelHasNone()
@@ -22,26 +23,26 @@ public abstract class ModelStoreContract : StorageContract
     [Fact]
     public async Task ASavedModelReadsBackEqualAndTheNextReplacesIt()
     {
-        await CreateSiteAsync();
-        var first = Model("site-a", 0);
-        var second = Model("site-a", 5, """{"order":4,"text":"\u00e9\n"}""");
+        var site = await CreateSiteAsync();
+        var first = Model(site, 0);
+        var second = Model(site, 5, """{"order":4,"text":"\u00e9\n"}""");
 
         Assert.True(await Backend.Models.SaveAsync(first));
         Assert.Equal(first, await Backend.Models.GetAsync("site-a"));
         Assert.True(await Backend.Models.SaveAsync(second));
 
         Assert.Equal(second, await Backend.Models.GetAsync("site-a"));
-        Assert.Equal(new FitAttempt("site-a", second.FittedAt, false, null), await Backend.Models.GetLastAttemptAsync("site-a"));
+        Assert.Equal(new FitAttempt("site-a", site.Key, second.FittedAt, false, null), await Backend.Models.GetLastAttemptAsync("site-a"));
     }
 
     [Fact]
     public async Task SummariesCarryTheBookkeepingOfEverySitesModel()
     {
-        await CreateSiteAsync("site-a");
-        await CreateSiteAsync("site-b");
+        var siteA = await CreateSiteAsync("site-a");
+        var siteB = await CreateSiteAsync("site-b");
         await CreateSiteAsync("site-c");
-        var a = Model("site-a", 2);
-        var b = Model("site-b", 3);
+        var a = Model(siteA, 2);
+        var b = Model(siteB, 3);
         await Backend.Models.SaveAsync(a);
         await Backend.Models.SaveAsync(b);
 
@@ -54,10 +55,10 @@ public abstract class ModelStoreContract : StorageContract
     [Fact]
     public async Task AFailedAttemptIsRecordedAndTheServingModelStays()
     {
-        await CreateSiteAsync();
-        var model = Model("site-a", 1);
+        var site = await CreateSiteAsync();
+        var model = Model(site, 1);
         await Backend.Models.SaveAsync(model);
-        var failure = new FitAttempt("site-a", Start.AddHours(9), true, "SeriesException: constant series");
+        var failure = new FitAttempt("site-a", site.Key, Start.AddHours(9), true, "SeriesException: constant series");
 
         Assert.True(await Backend.Models.RecordFailureAsync(failure));
 
@@ -65,16 +66,16 @@ public abstract class ModelStoreContract : StorageContract
         Assert.Equal(model, await Backend.Models.GetAsync("site-a"));
 
         // A later successful fit is the last attempt again.
-        var next = Model("site-a", 12);
+        var next = Model(site, 12);
         await Backend.Models.SaveAsync(next);
-        Assert.Equal(new FitAttempt("site-a", next.FittedAt, false, null), await Backend.Models.GetLastAttemptAsync("site-a"));
+        Assert.Equal(new FitAttempt("site-a", site.Key, next.FittedAt, false, null), await Backend.Models.GetLastAttemptAsync("site-a"));
     }
 
     [Fact]
     public async Task AnUnknownSiteStoresNothing()
     {
-        Assert.False(await Backend.Models.SaveAsync(Model("nowhere", 1)));
-        Assert.False(await Backend.Models.RecordFailureAsync(new FitAttempt("nowhere", Start, true, "x")));
+        Assert.False(await Backend.Models.SaveAsync(Model(Site("nowhere") with { Key = 1 }, 1)));
+        Assert.False(await Backend.Models.RecordFailureAsync(new FitAttempt("nowhere", 1, Start, true, "x")));
         Assert.Null(await Backend.Models.GetAsync("nowhere"));
         Assert.Empty(await Backend.Models.ListSummariesAsync());
     }

@@ -20,8 +20,10 @@ public abstract class SiteStoreContract : StorageContract
         Assert.True(await Backend.Sites.CreateAsync(hourly));
         Assert.True(await Backend.Sites.CreateAsync(daily));
 
-        Assert.Equal(hourly, await Backend.Sites.GetAsync("hourly-site"));
-        Assert.Equal(daily, await Backend.Sites.GetAsync("daily-site"));
+        var (storedHourly, storedDaily) = (await Backend.Sites.GetAsync("hourly-site"), await Backend.Sites.GetAsync("daily-site"));
+        Assert.Equal(hourly with { Key = storedHourly!.Key }, storedHourly);
+        Assert.Equal(daily with { Key = storedDaily!.Key }, storedDaily);
+        Assert.NotEqual(storedHourly.Key, storedDaily.Key);
     }
 
     [Fact]
@@ -118,8 +120,8 @@ public abstract class SiteStoreContract : StorageContract
     {
         var site = await CreateSiteAsync();
         await Backend.Readings.IngestAsync(site.Id, Hourly(Start, 1, 2, 3), Readings.ConflictPolicy.Reject, Start);
-        await Backend.Models.SaveAsync(new Models.StoredModel(site.Id, Start, 10, 1, Start, 3, 0.5, "{}"));
-        await Backend.Archive.ArchiveAsync(new Verification.ArchivedForecast(site.Id, new DateOnly(2026, 3, 2), Start, Start, Start, "{}"));
+        Assert.True(await Backend.Models.SaveAsync(new Models.StoredModel(site.Id, site.Key, Start, 10, 1, Start, 3, 0.5, "{}")));
+        Assert.True(await Backend.Archive.ArchiveAsync(new Verification.ArchivedForecast(site.Id, site.Key, new DateOnly(2026, 3, 2), Start, Start, Start, "{}")));
 
         Assert.True(await Backend.Sites.DeleteAsync(site.Id));
 
@@ -128,9 +130,12 @@ public abstract class SiteStoreContract : StorageContract
         Assert.Null(await Backend.Models.GetAsync(site.Id));
         Assert.False(await Backend.Archive.HasArchivedAsync(site.Id, new DateOnly(2026, 3, 2)));
 
-        // A new site under the same id starts empty.
-        await CreateSiteAsync(site.Id);
+        // A new site under the same id starts empty, has another key, and refuses the old site's writes.
+        var renewed = await CreateSiteAsync(site.Id);
+        Assert.NotEqual(site.Key, renewed.Key);
         Assert.Empty((await Backend.Readings.ReadAsync(site.Id, long.MinValue, long.MaxValue, null, 10))!);
+        Assert.Null(await Backend.Models.GetAsync(site.Id));
+        Assert.False(await Backend.Models.SaveAsync(new Models.StoredModel(site.Id, site.Key, Start, 10, 1, Start, 3, 0.5, "{}")));
         Assert.Null(await Backend.Models.GetAsync(site.Id));
     }
 }

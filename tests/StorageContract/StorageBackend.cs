@@ -62,11 +62,15 @@ public abstract class StorageContract : IAsyncLifetime
         id, $"Site {id}", "Europe/Berlin", cadence, cadence == GridCadence.Daily ? DailyStatistic.Max : null,
         52.5, 13.4, 34, QualityLimits.Default, ModelSettings.DefaultFor(cadence), Start, Start);
 
+    /// <summary>Creates <see cref="Site"/> and answers it as stored, with the internal key the store gave it.</summary>
     protected async Task<SiteRecord> CreateSiteAsync(string id = "site-a", GridCadence cadence = GridCadence.Hourly)
     {
         var site = Site(id, cadence);
         Assert.True(await Backend.Sites.CreateAsync(site));
-        return site;
+        var stored = await Backend.Sites.GetAsync(id);
+        Assert.True(stored!.Key > 0);
+        Assert.Equal(site with { Key = stored.Key }, stored);
+        return stored;
     }
 
     protected static long Ms(DateTimeOffset time) => time.ToUnixTimeMilliseconds();

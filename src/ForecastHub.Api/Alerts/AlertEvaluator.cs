@@ -101,7 +101,7 @@ public sealed class AlertEvaluator(
             upserts.Add(Record(site, level, alert, now, now));
         }
 
-        return new SiteAlertChange(site.Id, upserts, clears, healthToStore, events);
+        return new SiteAlertChange(site.Id, site.Key, upserts, clears, healthToStore, events);
     }
 
     private static RaisedAlert Record(SiteRecord site, WindowRiskLevel level, RiskAlert alert, DateTimeOffset raisedAt, DateTimeOffset now) =>

@@ -30,7 +30,12 @@ internal sealed class FirstAdminKey(
         var secret = ApiKeySecrets.NewSecret();
         var key = new ApiKeyRecord(ApiKeySecrets.NewId(), ApiKeySecrets.Digest(secret), ApiKeyScopes.Admin, [],
             "generated at first start", clock.GetUtcNow(), null);
-        await keys.CreateAsync(key, cancellationToken).ConfigureAwait(false);
+        if (!await keys.CreateFirstAdminAsync(key, cancellationToken).ConfigureAwait(false))
+        {
+            // Another node sharing the storage generated one meanwhile and printed it.
+            return;
+        }
+
         await output.Writer.WriteLineAsync(
             $"ForecastHub generated the first admin key {key.Id}. It is shown only this once; keep it safe:{Environment.NewLine}{secret}").ConfigureAwait(false);
         await output.Writer.FlushAsync(cancellationToken).ConfigureAwait(false);

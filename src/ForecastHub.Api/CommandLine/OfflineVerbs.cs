@@ -8,6 +8,7 @@ using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
 using ForecastHub.Core.Series;
 using ForecastHub.Core.Settings;
+using ForecastHub.Core.Verification;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Sites;
 using ModelResponse = ForecastHub.Api.Models.ModelResponse;
@@ -86,7 +87,7 @@ public static class OfflineVerbs
         try
         {
             var fitted = FittedSiteModel.Fit(grid, site.Model);
-            var stored = new StoredModel(SiteId, now, stopwatch.Elapsed.TotalMilliseconds, site.SettingsVersion, fitted.DataEnd,
+            var stored = new StoredModel(SiteId, site.Key, now, stopwatch.Elapsed.TotalMilliseconds, site.SettingsVersion, fitted.DataEnd,
                 fitted.Model.Window.Points, fitted.ResidualPValue, fitted.Json);
             model = ModelMapping.Describe(site, new ServingModel(stored, fitted.Model), null);
         }
@@ -97,8 +98,16 @@ public static class OfflineVerbs
 
         var testDays = options.TestDays ?? (options.Verb == "fit" ? FitTestDays : BacktestTestDays);
         using var progress = CommandLineProgress.Start(errors, "backtest");
-        var backtest = Backtester.Run(site, readings, dataEnd, testDays, options.RefitEveryDays,
-            site.Risk.WithQueryThresholds(options.Below, options.Above), progress.Report);
+        var thresholds = site.Risk.WithQueryThresholds(options.Below, options.Above);
+        var backtest = BacktestResponse.Of(Backtest.Run(readings, site.GridOptions, site.Model, new BacktestOptions
+        {
+            DataEnd = dataEnd,
+            Days = testDays,
+            RefitEveryDays = options.RefitEveryDays,
+            Thresholds = thresholds,
+            Night = site.Risk.Night,
+            Progress = progress.Report,
+        }), thresholds);
         progress.Done();
         var report = new OfflineReport(options.Verb, now, input, model, backtest);
         await File.WriteAllTextAsync(jsonPath, JsonSerializer.Serialize(report, Json)).ConfigureAwait(false);

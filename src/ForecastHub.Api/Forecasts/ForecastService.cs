@@ -30,12 +30,6 @@ public sealed class ForecastService(
     IOptions<JsonOptions> json,
     TimeProvider clock)
 {
-    /// <summary>Hourly forecasts condition on this much recent data (enough for any AR order the settings allow).</summary>
-    public static readonly TimeSpan HourlyRecentWindow = TimeSpan.FromDays(10);
-
-    /// <summary>Daily forecasts condition on this much recent data.</summary>
-    public static readonly TimeSpan DailyRecentWindow = TimeSpan.FromDays(120);
-
     // Fixed so the same data, model and query give the same next-day summary.
     private const int MonteCarloSeed = 20_240_601;
     private const int MaxEntriesPerSite = 32;
@@ -67,8 +61,8 @@ public sealed class ForecastService(
         var (dataVersion, modelVersion) = versions.Get(site.Id);
         var step = SiteGridLoader.AlignDown(site, now);
         var entry = cache.AddOrUpdate(site.Id,
-            _ => new SiteEntry(dataVersion, modelVersion, step),
-            (_, old) => old.Matches(dataVersion, modelVersion, step) ? old : new SiteEntry(dataVersion, modelVersion, step));
+            _ => new SiteEntry(site.Key, dataVersion, modelVersion, step),
+            (_, old) => old.Matches(site.Key, dataVersion, modelVersion, step) ? old : new SiteEntry(site.Key, dataVersion, modelVersion, step));
         // The site's thresholds and night are part of the key, so changing them re-evaluates the risk.
         var key = query.Key + "#" + site.Risk.Key;
         if (entry.Answers.TryGetValue(key, out var hit))
@@ -109,7 +103,7 @@ public sealed class ForecastService(
 
         // Hourly: the hour in progress counts (the mean of its readings so far); daily: only whole local days.
         var to = isDaily ? currentStep : SiteGridLoader.NextStep(site, currentStep);
-        var recentWindow = isDaily ? DailyRecentWindow : HourlyRecentWindow;
+        var recentWindow = Core.Modeling.SiteForecaster.RecentWindow(site.Cadence);
         var from = now - recentWindow;
         var readings = await grids.ReadAsync(site, from, to, cancellationToken);
         if (readings is null)
@@ -186,12 +180,13 @@ public sealed class ForecastService(
         return new ConfidenceReason(state, message);
     }
 
-    private sealed class SiteEntry(long dataVersion, long modelVersion, DateTimeOffset step)
+    // Keyed by the site's internal key too, so a site created again under the same id never meets the old site's answers.
+    private sealed class SiteEntry(long siteKey, long dataVersion, long modelVersion, DateTimeOffset step)
     {
         public ConcurrentDictionary<string, CachedForecast> Answers { get; } = new(StringComparer.Ordinal);
 
-        public bool Matches(long data, long model, DateTimeOffset currentStep) =>
-            data == dataVersion && model == modelVersion && currentStep == step;
+        public bool Matches(long key, long data, long model, DateTimeOffset currentStep) =>
+            key == siteKey && data == dataVersion && model == modelVersion && currentStep == step;
     }
 
     /// <summary>One computed answer; its JSON is made on first use and then reused.</summary>

@@ -52,7 +52,7 @@ public static class ModelEndpoints
         }
 
         var (_, outcome) = await models.RefitIfDueAsync(site, force: true, cancellationToken);
-        if (outcome is null || outcome.NotEnoughData)
+        if (outcome is null || outcome.NotEnoughData || outcome.Discarded)
         {
             return ApiProblems.Conflict(outcome?.Error ?? $"Site '{siteId}' has no data to fit.");
         }

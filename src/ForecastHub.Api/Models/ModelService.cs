@@ -12,13 +12,18 @@ namespace ForecastHub.Api.Models;
 public sealed record RefitOutcome(ServingModel? Model, string? Error, bool NotEnoughData)
 {
     public bool Succeeded => Model is not null && Error is null && !NotEnoughData;
+
+    /// <summary>The site was deleted while the fit ran, so its result was thrown away.</summary>
+    public bool Discarded => Error == ModelService.DeletedDuringFit;
 }
 
 /// <summary>
 /// The serving models: fits a site (one fit per site at a time), stores the result, and hands out
 /// the stored model, loading it from storage on first use (after a restart, or after a background
 /// fit that was evicted). At most <see cref="RefitOptions.MaxLoadedModels"/> parsed models stay in
-/// memory, so a fleet sweep does not keep every site's model.
+/// memory, so a fleet sweep does not keep every site's model. Every model here belongs to one
+/// incarnation of a site (its internal key): a fit of a site deleted meanwhile is refused by the store
+/// and dropped, and a model in memory serves only the site record with the same key.
 /// </summary>
 public sealed partial class ModelService(
     IModelStore store,
@@ -36,6 +41,9 @@ public sealed partial class ModelService(
 
     // Moved by every Forget: a model read from storage before a forget is served but not kept.
     private long generation;
+
+    /// <summary>The outcome's error when the site a fit ran for no longer exists (deleted, perhaps created again): the fit is discarded.</summary>
+    public const string DeletedDuringFit = "The site was deleted during the fit; its result was discarded.";
 
     /// <summary>Completes with the outcome of the next fit of the site that finishes (background or requested), so callers await work instead of polling.</summary>
     public Task<RefitOutcome> WhenNextFitAsync(string siteId) =>
@@ -55,15 +63,16 @@ public sealed partial class ModelService(
     public async Task<ServingModel?> GetAsync(SiteRecord site, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(site);
-        if (loaded.TryGetValue(site.Id, out var cached))
+        if (loaded.TryGetValue(site.Id, out var cached) && cached.Stored.SiteKey == site.Key)
         {
             return cached;
         }
 
         var seen = Interlocked.Read(ref generation);
         var stored = await store.GetAsync(site.Id, cancellationToken);
-        if (stored is null)
+        if (stored is null || stored.SiteKey != site.Key)
         {
+            // A model of another incarnation of the id (the record in hand is of a deleted site) serves nothing.
             return null;
         }
 
@@ -74,7 +83,7 @@ public sealed partial class ModelService(
         }
 
         MakeRoom();
-        return loaded.GetOrAdd(site.Id, model);
+        return loaded.AddOrUpdate(site.Id, model, (_, held) => held.Stored.SiteKey == site.Key ? held : model);
     }
 
     /// <summary>Grid points a site needs before its first fit.</summary>
@@ -151,17 +160,22 @@ public sealed partial class ModelService(
             LogFitFailed(logger, error, site.Id, reason);
             metrics.Fits.Inc(1, "failed");
             var message = $"{error.GetType().Name}: {error.Message}";
-            await store.RecordFailureAsync(new FitAttempt(site.Id, now, Failed: true, Error: message), cancellationToken);
+            if (!await store.RecordFailureAsync(new FitAttempt(site.Id, site.Key, now, Failed: true, Error: message), cancellationToken))
+            {
+                return new RefitOutcome(null, DeletedDuringFit, NotEnoughData: false);
+            }
+
             versions.ModelChanged(site.Id);
             return new RefitOutcome(await GetAsync(site, cancellationToken), message, NotEnoughData: false);
         }
 
         watch.Stop();
-        var stored = new StoredModel(site.Id, now, Math.Round(watch.Elapsed.TotalMilliseconds, 3), site.SettingsVersion,
+        var stored = new StoredModel(site.Id, site.Key, now, Math.Round(watch.Elapsed.TotalMilliseconds, 3), site.SettingsVersion,
             fitted.DataEnd, grid.ObservedCount, fitted.ResidualPValue, fitted.Json);
         if (!await store.SaveAsync(stored, cancellationToken))
         {
-            return new RefitOutcome(null, "The site was deleted during the fit.", NotEnoughData: false);
+            LogFitDiscarded(logger, site.Id, reason);
+            return new RefitOutcome(null, DeletedDuringFit, NotEnoughData: false);
         }
 
         var serving = ServingModel.From(stored, fitted.Model);
@@ -209,6 +223,9 @@ public sealed partial class ModelService(
             loaded.TryRemove(siteId, out _);
         }
     }
+
+    [LoggerMessage(Level = LogLevel.Information, Message = "Fit of site {SiteId} ({Reason}) discarded: the site was deleted while it ran")]
+    private static partial void LogFitDiscarded(ILogger logger, string siteId, RefitReason reason);
 
     [LoggerMessage(Level = LogLevel.Warning, Message = "Fit of site {SiteId} ({Reason}) failed; the previous model keeps serving")]
     private static partial void LogFitFailed(ILogger logger, Exception error, string siteId, RefitReason reason);

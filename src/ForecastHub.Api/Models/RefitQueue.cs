@@ -9,12 +9,19 @@ public readonly record struct RefitRequest(string SiteId, bool Force);
 /// <summary>
 /// The queue that feeds the refit service. Enqueueing never waits (ingestion must not block on
 /// fitting), and a site already waiting is not queued twice, so the queue stays as long as the
-/// number of sites at most.
+/// number of sites at most. A request names the site by id only: the worker reads the site as it
+/// is when it takes the request, so a request queued before a site was deleted (and re-created)
+/// never carries the deleted site's data or settings.
 /// </summary>
 public sealed class RefitQueue
 {
     private readonly Channel<RefitRequest> channel = Channel.CreateUnbounded<RefitRequest>(new UnboundedChannelOptions { SingleReader = false });
     private readonly ConcurrentDictionary<string, bool> waiting = new(StringComparer.Ordinal);
+    private readonly Lock gate = new();
+
+    // Requests written to the channel and not yet finished by a worker; idle completes when it falls to zero.
+    private int unfinished;
+    private TaskCompletionSource idle = Completed();
 
     public ChannelReader<RefitRequest> Reader => channel.Reader;
 
@@ -35,10 +42,46 @@ public sealed class RefitQueue
             return;
         }
 
+        lock (gate)
+        {
+            if (unfinished++ == 0)
+            {
+                idle = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
+            }
+        }
+
         channel.Writer.TryWrite(new RefitRequest(siteId, force));
     }
 
     /// <summary>Called by a worker when it takes a request, so new data after this point queues the site again.</summary>
     public RefitRequest Take(RefitRequest request) =>
         waiting.TryRemove(request.SiteId, out var force) ? request with { Force = force || request.Force } : request;
+
+    /// <summary>Called by a worker when it is done with a request it read (whatever came of it).</summary>
+    public void Finished()
+    {
+        lock (gate)
+        {
+            if (--unfinished == 0)
+            {
+                idle.TrySetResult();
+            }
+        }
+    }
+
+    /// <summary>Completes when every request queued so far (and any queued meanwhile) has been worked off.</summary>
+    public Task WhenIdleAsync()
+    {
+        lock (gate)
+        {
+            return idle.Task;
+        }
+    }
+
+    private static TaskCompletionSource Completed()
+    {
+        var done = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
+        done.SetResult();
+        return done;
+    }
 }

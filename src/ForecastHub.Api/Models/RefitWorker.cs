@@ -81,6 +81,10 @@ public sealed partial class RefitWorker(
             {
                 LogSiteFailed(logger, error, taken.SiteId);
             }
+            finally
+            {
+                queue.Finished();
+            }
         }
     }
 

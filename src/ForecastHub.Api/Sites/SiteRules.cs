@@ -137,6 +137,7 @@ public static partial class SiteRules
         return new SiteRecord(id!, name!.Trim(), timeZone!, cadence!.Value, dailyStatistic, latitude, longitude, elevation,
             quality, model, current?.CreatedAt ?? now, now, current?.SettingsVersion ?? 1)
         {
+            Key = current?.Key ?? 0,
             Risk = risk,
         };
     }

@@ -33,7 +33,8 @@ public sealed class DayAheadArchiveStep(
     public static readonly TimeSpan GiveUpAfter = TimeSpan.FromDays(3);
 
     private static readonly double[] Levels = [0.80, 0.95];
-    private readonly ConcurrentDictionary<string, DateOnly> archivedThrough = new(StringComparer.Ordinal);
+    // The last target day archived per site, with the site's internal key: a site created again under the same id starts afresh.
+    private readonly ConcurrentDictionary<string, (long SiteKey, DateOnly Through)> archivedThrough = new(StringComparer.Ordinal);
 
     public async Task RunAsync(SiteRecord site, CancellationToken cancellationToken)
     {
@@ -53,14 +54,14 @@ public sealed class DayAheadArchiveStep(
         var zone = GridBuilder.FindZone(site.TimeZone);
         var now = clock.GetUtcNow();
         var target = GridBuilder.LocalDate(now, zone).AddDays(1);
-        if (archivedThrough.TryGetValue(site.Id, out var done) && done >= target)
+        if (archivedThrough.TryGetValue(site.Id, out var done) && done.SiteKey == site.Key && done.Through >= target)
         {
             return;
         }
 
         if (await archive.HasArchivedAsync(site.Id, target, cancellationToken))
         {
-            archivedThrough[site.Id] = target;
+            archivedThrough[site.Id] = (site.Key, target);
             return;
         }
 
@@ -86,8 +87,9 @@ public sealed class DayAheadArchiveStep(
         }
 
         var json = JsonSerializer.Serialize(new ArchivedDay(Levels, daySteps), LiveScoreOptions.Json);
-        await archive.ArchiveAsync(new ArchivedForecast(site.Id, target, now, forecast.LastData, model.Stored.FittedAt, json), cancellationToken);
-        archivedThrough[site.Id] = target;
+        // Refused when the site was deleted (and perhaps created again) since the sweep read it.
+        await archive.ArchiveAsync(new ArchivedForecast(site.Id, site.Key, target, now, forecast.LastData, model.Stored.FittedAt, json), cancellationToken);
+        archivedThrough[site.Id] = (site.Key, target);
     }
 
     private async Task ScoreEndedDaysAsync(SiteRecord site, ServingModel model, CancellationToken cancellationToken)
@@ -116,7 +118,11 @@ public sealed class DayAheadArchiveStep(
                 score = score with { Points = [] };
             }
 
-            await archive.SaveScoreAsync(new LiveScore(site.Id, archived.TargetDate, now, JsonSerializer.Serialize(score, LiveScoreOptions.Json)), cancellationToken);
+            if (!await archive.SaveScoreAsync(new LiveScore(site.Id, site.Key, archived.TargetDate, now, JsonSerializer.Serialize(score, LiveScoreOptions.Json)), cancellationToken))
+            {
+                return;
+            }
+
             versions.ModelChanged(site.Id);
         }
     }

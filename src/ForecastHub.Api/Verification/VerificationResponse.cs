@@ -21,6 +21,23 @@ public sealed record BacktestResponse(
 {
     /// <summary>Per threshold (the site's, and any asked for), the verification of its next-24-hour risk.</summary>
     public IReadOnlyList<ThresholdScoresResponse> Thresholds { get; init; } = [];
+
+    /// <summary>The core's backtest in the field names of DESIGN.md; <paramref name="thresholds"/> are those it verified, in its order.
+    /// Null when the backtest had no origin.</summary>
+    public static BacktestResponse? Of(BacktestResult? result, IReadOnlyList<RiskThreshold> thresholds)
+    {
+        ArgumentNullException.ThrowIfNull(thresholds);
+        return result is null ? null : new BacktestResponse(
+            result.From,
+            result.To,
+            result.Origins,
+            result.RefitEveryDays,
+            [.. result.Horizons.Where(s => s.Count > 0).Select(s => ScoresResponse.From(s, s.Horizon))],
+            ScoresResponse.From(result.Pooled, null))
+        {
+            Thresholds = [.. thresholds.Select((t, i) => ThresholdScoresResponse.From(t, RiskWindow.Next24h, result.Thresholds[i]))],
+        };
+    }
 }
 
 /// <summary>

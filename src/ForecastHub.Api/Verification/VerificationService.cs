@@ -1,6 +1,7 @@
 using System.Collections.Concurrent;
 using System.Text.Json;
 using ForecastHub.Api.Models;
+using ForecastHub.Core.Verification;
 using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Verification;
 
@@ -25,7 +26,7 @@ public sealed class VerificationService(
     public const int HourlyRefitEveryDays = 7;
     public const int MaxLiveDays = 90;
 
-    private readonly ConcurrentDictionary<string, (DateTimeOffset FittedAt, string RiskKey, BacktestResponse? Backtest)> backtests = new(StringComparer.Ordinal);
+    private readonly ConcurrentDictionary<string, (long SiteKey, DateTimeOffset FittedAt, string RiskKey, BacktestResponse? Backtest)> backtests = new(StringComparer.Ordinal);
 
     /// <summary>Null when the site has no model yet.</summary>
     public async Task<VerificationResponse?> GetAsync(SiteRecord site, CancellationToken cancellationToken)
@@ -39,7 +40,7 @@ public sealed class VerificationService(
 
         var now = clock.GetUtcNow();
         BacktestResponse? backtest;
-        if (backtests.TryGetValue(site.Id, out var cached) && cached.FittedAt == model.Stored.FittedAt && cached.RiskKey == site.Risk.Key)
+        if (backtests.TryGetValue(site.Id, out var cached) && cached.SiteKey == site.Key && cached.FittedAt == model.Stored.FittedAt && cached.RiskKey == site.Risk.Key)
         {
             backtest = cached.Backtest;
         }
@@ -50,9 +51,16 @@ public sealed class VerificationService(
             var readings = await grids.ReadAsync(site, end.AddDays(-(days + site.Model.FitWindowDays)),
                 SiteGridLoader.NextStep(site, SiteGridLoader.AlignDown(site, end)), cancellationToken);
             var refitEvery = site.IsDaily ? RefitEveryDays : HourlyRefitEveryDays;
-            backtest = readings is null ? null
-                : Backtester.Run(site, readings, end, days, refitEvery, site.Risk.WithQueryThresholds([], []));
-            backtests[site.Id] = (model.Stored.FittedAt, site.Risk.Key, backtest);
+            var thresholds = site.Risk.WithQueryThresholds([], []);
+            backtest = readings is null ? null : BacktestResponse.Of(Backtest.Run(readings, site.GridOptions, site.Model, new BacktestOptions
+            {
+                DataEnd = end,
+                Days = days,
+                RefitEveryDays = refitEvery,
+                Thresholds = thresholds,
+                Night = site.Risk.Night,
+            }), thresholds);
+            backtests[site.Id] = (site.Key, model.Stored.FittedAt, site.Risk.Key, backtest);
         }
 
         var from = DateOnly.FromDateTime(now.UtcDateTime).AddDays(-MaxLiveDays);

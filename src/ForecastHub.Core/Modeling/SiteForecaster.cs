@@ -20,6 +20,15 @@ public static class SiteForecaster
 {
     public const int DefaultPaths = 2000;
 
+    /// <summary>Hourly forecasts condition on this much recent data (enough for any AR order the settings allow).</summary>
+    public static readonly TimeSpan HourlyRecentWindow = TimeSpan.FromDays(10);
+
+    /// <summary>Daily forecasts condition on this much recent data.</summary>
+    public static readonly TimeSpan DailyRecentWindow = TimeSpan.FromDays(120);
+
+    /// <summary>How much data before its origin a forecast of this cadence conditions on.</summary>
+    public static TimeSpan RecentWindow(GridCadence cadence) => cadence == GridCadence.Daily ? DailyRecentWindow : HourlyRecentWindow;
+
     /// <summary>Missing steps walked at most: beyond them the AR state is forgotten (its psi-weights have died
     /// away), so the walk starts this many steps before the end from the anomaly mean, at the full spread.</summary>
     public const int MaxWalkedSteps = 1000;

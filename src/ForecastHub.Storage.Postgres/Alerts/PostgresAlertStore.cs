@@ -49,8 +49,10 @@ public sealed class PostgresAlertStore(PostgresDatabase database) : IAlertStore
         ArgumentNullException.ThrowIfNull(change);
         return database.WriteAsync(async (connection, transaction) =>
         {
-            // FOR SHARE holds off a DELETE of the site until this commits, so its trigger then removes what is written here.
-            await using (var exists = connection.Command(transaction, "SELECT 1 FROM sites WHERE id = $1 FOR SHARE;").With(change.SiteId))
+            // FOR SHARE holds off a DELETE of the site until this commits, so its trigger then removes what is written here;
+            // the key refuses a change for a site deleted and created again since the evaluation read it.
+            await using (var exists = connection.Command(transaction, "SELECT 1 FROM sites WHERE id = $1 AND key = $2 FOR SHARE;")
+                             .With(change.SiteId).With(change.SiteKey))
             {
                 if (await exists.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false) is null)
                 {

@@ -7,30 +7,58 @@ namespace ForecastHub.Storage.Postgres.Keys;
 
 public sealed class PostgresApiKeyStore(PostgresDatabase database) : IApiKeyStore
 {
+    // Any fixed 64-bit number shared by every node; it names the first-admin lock (the migration lock uses another).
+    private const long FirstAdminLockId = 0x466F_7265_4875_6202;
+
     private const string Columns = "id, secret_sha256, scope, site_ids, label, created_at_ms, revoked_at_ms";
 
     public Task<bool> CreateAsync(ApiKeyRecord key, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(key);
+        return database.WriteAsync((connection, transaction) => InsertAsync(connection, transaction, key, cancellationToken), cancellationToken);
+    }
+
+    public Task<bool> CreateFirstAdminAsync(ApiKeyRecord key, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(key);
         return database.WriteAsync(async (connection, transaction) =>
         {
-            await using var insert = connection.Command(transaction, $"""
-                    INSERT INTO api_keys ({Columns}) VALUES ($1, $2, $3, $4, $5, $6, $7) ON CONFLICT DO NOTHING;
-                    """)
-                .With(key.Id)
-                .With(key.SecretSha256)
-                .With(key.Scope)
-                .With(JsonSerializer.Serialize(key.SiteIds))
-                .With(key.Label, NpgsqlTypes.NpgsqlDbType.Text)
-                .With(key.CreatedAt.ToUnixTimeMilliseconds())
-                .With(key.RevokedAt?.ToUnixTimeMilliseconds(), NpgsqlTypes.NpgsqlDbType.Bigint);
-            var created = await insert.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false) == 1;
-            if (created)
+            // Nodes starting together queue on this lock until the first commits; the next then sees its key.
+            await using (var take = connection.Command(transaction, "SELECT pg_advisory_xact_lock($1);").With(FirstAdminLockId))
             {
-                await new ChangeNotice(ChangeKind.Key, key.Id).SendAsync(connection, transaction, cancellationToken).ConfigureAwait(false);
+                await take.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
             }
-            return created;
+
+            await using (var exists = connection.Command(transaction, "SELECT EXISTS (SELECT 1 FROM api_keys WHERE scope = 'admin' AND revoked_at_ms IS NULL);"))
+            {
+                if ((bool)(await exists.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false))!)
+                {
+                    return false;
+                }
+            }
+
+            return await InsertAsync(connection, transaction, key, cancellationToken).ConfigureAwait(false);
         }, cancellationToken);
+    }
+
+    private static async Task<bool> InsertAsync(NpgsqlConnection connection, NpgsqlTransaction transaction, ApiKeyRecord key, CancellationToken cancellationToken)
+    {
+        await using var insert = connection.Command(transaction, $"""
+                INSERT INTO api_keys ({Columns}) VALUES ($1, $2, $3, $4, $5, $6, $7) ON CONFLICT DO NOTHING;
+                """)
+            .With(key.Id)
+            .With(key.SecretSha256)
+            .With(key.Scope)
+            .With(JsonSerializer.Serialize(key.SiteIds))
+            .With(key.Label, NpgsqlTypes.NpgsqlDbType.Text)
+            .With(key.CreatedAt.ToUnixTimeMilliseconds())
+            .With(key.RevokedAt?.ToUnixTimeMilliseconds(), NpgsqlTypes.NpgsqlDbType.Bigint);
+        var created = await insert.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false) == 1;
+        if (created)
+        {
+            await new ChangeNotice(ChangeKind.Key, key.Id).SendAsync(connection, transaction, cancellationToken).ConfigureAwait(false);
+        }
+        return created;
     }
 
     public Task<ApiKeyRecord?> FindBySecretAsync(byte[] secretSha256, CancellationToken cancellationToken = default) =>

@@ -39,7 +39,7 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
     public Task<IReadOnlyList<SiteRecord>> ListAsync(string? afterId, int limit, CancellationToken cancellationToken = default) =>
         database.QueryAsync<IReadOnlyList<SiteRecord>>(async connection =>
         {
-            await using var select = connection.Command(null, $"SELECT {Columns} FROM sites WHERE id > $1 ORDER BY id LIMIT $2;")
+            await using var select = connection.Command(null, $"SELECT {Columns}, key FROM sites WHERE id > $1 ORDER BY id LIMIT $2;")
                 .With(afterId ?? "").With(limit);
             await using var reader = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
             var sites = new List<SiteRecord>();
@@ -99,7 +99,7 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
         CancellationToken cancellationToken)
     {
         await using var select = connection.Command(transaction,
-            $"SELECT {Columns} FROM sites WHERE id = $1{(lockRow ? " FOR NO KEY UPDATE" : "")};").With(id);
+            $"SELECT {Columns}, key FROM sites WHERE id = $1{(lockRow ? " FOR NO KEY UPDATE" : "")};").With(id);
         await using var reader = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
         return await reader.ReadAsync(cancellationToken).ConfigureAwait(false) ? ReadSite(reader) : null;
     }
@@ -146,6 +146,7 @@ public sealed class PostgresSiteStore(PostgresDatabase database, TimeProvider cl
         UpdatedAt: NpgsqlExtensions.FromUnixMs(r.GetInt64(19)),
         SettingsVersion: r.GetInt64(20))
     {
+        Key = r.GetInt64(24),
         Risk = SiteColumns.ReadRisk(r.GetString(21), r.GetString(22), r.GetString(23)),
     };
 }

@@ -20,10 +20,12 @@ public sealed record SiteAlertState(IReadOnlyList<RaisedAlert> Raised, string? H
 /// <summary>
 /// What one evaluation of a site changes, applied as one transaction: raised alerts written
 /// (new or refreshed), cleared ones removed, the announced health state, and the events for the
-/// outbox. A crash leaves either all of it or none of it.
+/// outbox. A crash leaves either all of it or none of it. <c>SiteKey</c> is the internal key of the
+/// site that was evaluated, so a change for a site deleted (and created again) meanwhile is refused.
 /// </summary>
 public sealed record SiteAlertChange(
     string SiteId,
+    long SiteKey,
     IReadOnlyList<RaisedAlert> Upserts,
     IReadOnlyList<(string ThresholdId, string WindowName)> Clears,
     string? HealthState,

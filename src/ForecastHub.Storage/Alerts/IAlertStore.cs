@@ -11,7 +11,8 @@ public interface IAlertStore
     Task<SiteAlertState> GetAsync(string siteId, CancellationToken cancellationToken = default);
 
     /// <summary>Applies the change and queues its events for every covering webhook, due at <paramref name="at"/>.
-    /// Does nothing when the site no longer exists (deleted during the evaluation); answers whether it applied.</summary>
+    /// Does nothing when no site has the change's id and key (deleted, or deleted and created again, during the
+    /// evaluation); answers whether it applied.</summary>
     Task<bool> ApplyAsync(SiteAlertChange change, DateTimeOffset at, CancellationToken cancellationToken = default);
 
     /// <summary>Raised alerts across the fleet, ordered by site, threshold and window, after the given key (exclusive).</summary>

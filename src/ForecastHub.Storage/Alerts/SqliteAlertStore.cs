@@ -34,7 +34,8 @@ public sealed class SqliteAlertStore(SqliteDatabase database) : IAlertStore
         ArgumentNullException.ThrowIfNull(change);
         return database.WriteAsync((connection, transaction) =>
         {
-            using (var exists = connection.Command(transaction, "SELECT EXISTS (SELECT 1 FROM sites WHERE id = $site);").With("$site", change.SiteId))
+            using (var exists = connection.Command(transaction, "SELECT EXISTS (SELECT 1 FROM sites WHERE id = $site AND key = $key);")
+                       .With("$site", change.SiteId).With("$key", change.SiteKey))
             {
                 if (Convert.ToInt64(exists.ExecuteScalar(), System.Globalization.CultureInfo.InvariantCulture) == 0)
                 {

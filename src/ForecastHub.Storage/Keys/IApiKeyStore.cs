@@ -7,6 +7,10 @@ public interface IApiKeyStore
     /// <summary>Stores a new key; false when its id or digest is taken.</summary>
     Task<bool> CreateAsync(ApiKeyRecord key, CancellationToken cancellationToken = default);
 
+    /// <summary>Stores <paramref name="key"/> only when no active admin key exists, as one step across every
+    /// process sharing the storage, so nodes starting together generate one first admin key; false when one exists.</summary>
+    Task<bool> CreateFirstAdminAsync(ApiKeyRecord key, CancellationToken cancellationToken = default);
+
     /// <summary>The key whose secret has this SHA-256 digest, revoked or not; null when none.</summary>
     Task<ApiKeyRecord?> FindBySecretAsync(byte[] secretSha256, CancellationToken cancellationToken = default);
 

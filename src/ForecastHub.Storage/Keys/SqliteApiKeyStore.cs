@@ -10,21 +10,34 @@ public sealed class SqliteApiKeyStore(SqliteDatabase database) : IApiKeyStore
     public Task<bool> CreateAsync(ApiKeyRecord key, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(key);
+        return database.WriteAsync((connection, transaction) => Insert(connection, transaction, key), cancellationToken);
+    }
+
+    // The write transaction holds SQLite's one write lock, so the check and the insert are one step for every process on the file.
+    public Task<bool> CreateFirstAdminAsync(ApiKeyRecord key, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(key);
         return database.WriteAsync((connection, transaction) =>
         {
-            using var insert = connection.Command(transaction, $"""
-                    INSERT INTO api_keys ({Columns}) VALUES ($id, $hash, $scope, $sites, $label, $created, $revoked)
-                    ON CONFLICT DO NOTHING;
-                    """)
-                .With("$id", key.Id)
-                .With("$hash", key.SecretSha256)
-                .With("$scope", key.Scope)
-                .With("$sites", JsonSerializer.Serialize(key.SiteIds))
-                .With("$label", key.Label)
-                .With("$created", key.CreatedAt.ToUnixTimeMilliseconds())
-                .With("$revoked", key.RevokedAt?.ToUnixTimeMilliseconds());
-            return insert.ExecuteNonQuery() == 1;
+            using var exists = connection.Command(transaction, "SELECT EXISTS (SELECT 1 FROM api_keys WHERE scope = 'admin' AND revoked_at_ms IS NULL);");
+            return Convert.ToInt64(exists.ExecuteScalar(), System.Globalization.CultureInfo.InvariantCulture) == 0 && Insert(connection, transaction, key);
         }, cancellationToken);
+    }
+
+    private static bool Insert(SqliteConnection connection, SqliteTransaction transaction, ApiKeyRecord key)
+    {
+        using var insert = connection.Command(transaction, $"""
+                INSERT INTO api_keys ({Columns}) VALUES ($id, $hash, $scope, $sites, $label, $created, $revoked)
+                ON CONFLICT DO NOTHING;
+                """)
+            .With("$id", key.Id)
+            .With("$hash", key.SecretSha256)
+            .With("$scope", key.Scope)
+            .With("$sites", JsonSerializer.Serialize(key.SiteIds))
+            .With("$label", key.Label)
+            .With("$created", key.CreatedAt.ToUnixTimeMilliseconds())
+            .With("$revoked", key.RevokedAt?.ToUnixTimeMilliseconds());
+        return insert.ExecuteNonQuery() == 1;
     }
 
     public Task<ApiKeyRecord?> FindBySecretAsync(byte[] secretSha256, CancellationToken cancellationToken = default) =>

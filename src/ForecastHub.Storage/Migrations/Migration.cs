@@ -7,6 +7,10 @@ namespace ForecastHub.Storage.Migrations;
 /// <c>Migrations/NNNN_name.sql</c> of this assembly, applied in order of their number.</summary>
 public sealed partial record Migration(int Version, string Name, string Sql)
 {
+    /// <summary>A migration whose first line is <c>-- foreign_keys: off</c> rebuilds a parent table and
+    /// runs with foreign keys off (checked before its commit).</summary>
+    public bool ForeignKeysOff => Sql.StartsWith("-- foreign_keys: off", StringComparison.Ordinal);
+
     /// <summary>Every migration shipped with this build, ordered by version.</summary>
     public static IReadOnlyList<Migration> All { get; } = LoadEmbedded();
 

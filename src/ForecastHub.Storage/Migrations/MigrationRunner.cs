@@ -75,7 +75,7 @@ public sealed class MigrationRunner(SqliteDatabase database, IReadOnlyList<Migra
         var target = targetVersion ?? LatestVersion;
         foreach (var migration in migrations.Where(m => m.Version <= target))
         {
-            await database.WriteAsync((connection, transaction) =>
+            Func<SqliteConnection, SqliteTransaction, int> apply = (connection, transaction) =>
             {
                 EnsureHistoryTable(connection, transaction);
                 if (CurrentVersion(connection, transaction) >= migration.Version)
@@ -93,7 +93,10 @@ public sealed class MigrationRunner(SqliteDatabase database, IReadOnlyList<Migra
                     .With("$t", DateTimeOffset.UtcNow.ToUnixTimeMilliseconds());
                 record.ExecuteNonQuery();
                 return 1;
-            }, cancellationToken).ConfigureAwait(false);
+            };
+            await (migration.ForeignKeysOff
+                ? database.WriteWithoutForeignKeysAsync(apply, cancellationToken)
+                : database.WriteAsync(apply, cancellationToken)).ConfigureAwait(false);
         }
         return CurrentVersion();
     }

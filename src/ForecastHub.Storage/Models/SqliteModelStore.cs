@@ -10,12 +10,12 @@ public sealed class SqliteModelStore(SqliteDatabase database) : IModelStore
         Task.FromResult(database.Read((connection, transaction) =>
         {
             using var select = connection.Command(transaction, """
-                SELECT m.fitted_at_ms, m.fit_duration_ms, m.settings_version, m.data_end_ms, m.data_points, m.residual_p_value, m.model_json
+                SELECT m.fitted_at_ms, m.fit_duration_ms, m.settings_version, m.data_end_ms, m.data_points, m.residual_p_value, m.model_json, s.key
                 FROM site_models m JOIN sites s ON s.key = m.site_key WHERE s.id = $id;
                 """).With("$id", siteId);
             using var reader = select.ExecuteReader();
             return reader.Read()
-                ? new StoredModel(siteId, SqliteExtensions.FromUnixMs(reader.GetInt64(0)), reader.GetDouble(1), reader.GetInt64(2),
+                ? new StoredModel(siteId, reader.GetInt64(7), SqliteExtensions.FromUnixMs(reader.GetInt64(0)), reader.GetDouble(1), reader.GetInt64(2),
                     SqliteExtensions.FromUnixMs(reader.GetInt64(3)), reader.GetInt32(4), reader.GetNullableDouble(5), reader.GetString(6))
                 : null;
         }));
@@ -27,13 +27,14 @@ public sealed class SqliteModelStore(SqliteDatabase database) : IModelStore
         {
             using var upsert = connection.Command(transaction, """
                 INSERT INTO site_models (site_key, fitted_at_ms, fit_duration_ms, settings_version, data_end_ms, data_points, residual_p_value, model_json)
-                SELECT key, $fitted, $duration, $settings, $end, $points, $p, $json FROM sites WHERE id = $id
+                SELECT key, $fitted, $duration, $settings, $end, $points, $p, $json FROM sites WHERE id = $id AND key = $key
                 ON CONFLICT (site_key) DO UPDATE SET fitted_at_ms = excluded.fitted_at_ms,
                     fit_duration_ms = excluded.fit_duration_ms, settings_version = excluded.settings_version,
                     data_end_ms = excluded.data_end_ms, data_points = excluded.data_points,
                     residual_p_value = excluded.residual_p_value, model_json = excluded.model_json;
                 """)
                 .With("$id", model.SiteId)
+                .With("$key", model.SiteKey)
                 .With("$fitted", model.FittedAt.ToUnixTimeMilliseconds())
                 .With("$duration", model.FitDurationMs)
                 .With("$settings", model.SettingsVersion)
@@ -46,7 +47,7 @@ public sealed class SqliteModelStore(SqliteDatabase database) : IModelStore
                 return false;
             }
 
-            WriteAttempt(connection, transaction, new FitAttempt(model.SiteId, model.FittedAt, Failed: false, Error: null));
+            WriteAttempt(connection, transaction, new FitAttempt(model.SiteId, model.SiteKey, model.FittedAt, Failed: false, Error: null));
             return true;
         }, cancellationToken);
     }
@@ -61,12 +62,12 @@ public sealed class SqliteModelStore(SqliteDatabase database) : IModelStore
         Task.FromResult(database.Read((connection, transaction) =>
         {
             using var select = connection.Command(transaction, """
-                SELECT a.attempted_at_ms, a.failed, a.error
+                SELECT a.attempted_at_ms, a.failed, a.error, s.key
                 FROM site_fit_attempts a JOIN sites s ON s.key = a.site_key WHERE s.id = $id;
                 """).With("$id", siteId);
             using var reader = select.ExecuteReader();
             return reader.Read()
-                ? new FitAttempt(siteId, SqliteExtensions.FromUnixMs(reader.GetInt64(0)), reader.GetInt64(1) != 0, reader.GetNullableString(2))
+                ? new FitAttempt(siteId, reader.GetInt64(3), SqliteExtensions.FromUnixMs(reader.GetInt64(0)), reader.GetInt64(1) != 0, reader.GetNullableString(2))
                 : null;
         }));
 
@@ -102,11 +103,12 @@ public sealed class SqliteModelStore(SqliteDatabase database) : IModelStore
     {
         using var upsert = connection.Command(transaction, """
             INSERT INTO site_fit_attempts (site_key, attempted_at_ms, failed, error)
-            SELECT key, $at, $failed, $error FROM sites WHERE id = $id
+            SELECT key, $at, $failed, $error FROM sites WHERE id = $id AND key = $key
             ON CONFLICT (site_key) DO UPDATE SET attempted_at_ms = excluded.attempted_at_ms,
                 failed = excluded.failed, error = excluded.error;
             """)
             .With("$id", attempt.SiteId)
+            .With("$key", attempt.SiteKey)
             .With("$at", attempt.AttemptedAt.ToUnixTimeMilliseconds())
             .With("$failed", attempt.Failed ? 1 : 0)
             .With("$error", attempt.Error);

@@ -23,6 +23,11 @@ public sealed record SiteRecord(
     DateTimeOffset UpdatedAt,
     long SettingsVersion = 1)
 {
+    /// <summary>The store's internal key of this site, given when it is created and never given again
+    /// (0 before it is stored). A site deleted and created again under the same id gets a new key, so
+    /// background work started for the old one can tell, and its writes are refused.</summary>
+    public long Key { get; init; }
+
     public bool IsDaily => Cadence == GridCadence.Daily;
 
     /// <summary>How this site's readings become its grid.</summary>
@@ -37,10 +42,11 @@ public sealed record SiteRecord(
     {
         ArgumentNullException.ThrowIfNull(proposed);
         // Names and risk settings need no refit; a risk change re-evaluates through the forecast cache key.
-        var settingsChanged = proposed with { Name = Name, Risk = Risk } != this;
+        var settingsChanged = proposed with { Name = Name, Risk = Risk, Key = Key } != this;
         return proposed with
         {
             Id = Id,
+            Key = Key,
             CreatedAt = CreatedAt,
             UpdatedAt = now,
             SettingsVersion = SettingsVersion + (settingsChanged ? 1 : 0),

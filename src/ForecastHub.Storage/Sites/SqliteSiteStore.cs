@@ -35,7 +35,7 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         Task.FromResult(database.Read<IReadOnlyList<SiteRecord>>((connection, transaction) =>
         {
             using var select = connection.Command(transaction,
-                    $"SELECT {Columns} FROM sites WHERE id > $after ORDER BY id LIMIT $limit;")
+                    $"SELECT {Columns}, key FROM sites WHERE id > $after ORDER BY id LIMIT $limit;")
                 .With("$after", afterId ?? "")
                 .With("$limit", limit);
             using var reader = select.ExecuteReader();
@@ -88,7 +88,7 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
 
     private static SiteRecord? Get(SqliteConnection connection, SqliteTransaction transaction, string id)
     {
-        using var select = connection.Command(transaction, $"SELECT {Columns} FROM sites WHERE id = $id;").With("$id", id);
+        using var select = connection.Command(transaction, $"SELECT {Columns}, key FROM sites WHERE id = $id;").With("$id", id);
         using var reader = select.ExecuteReader();
         return reader.Read() ? ReadSite(reader) : null;
     }
@@ -134,6 +134,7 @@ public sealed class SqliteSiteStore(SqliteDatabase database, TimeProvider clock)
         UpdatedAt: SqliteExtensions.FromUnixMs(r.GetInt64(19)),
         SettingsVersion: r.GetInt64(20))
     {
+        Key = r.GetInt64(24),
         Risk = SiteColumns.ReadRisk(r.GetString(21), r.GetString(22), r.GetString(23)),
     };
 }

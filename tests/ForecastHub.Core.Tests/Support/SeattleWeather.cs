@@ -17,10 +17,13 @@ internal static class SeattleWeather
     }
 
     /// <summary>A daily grid of one statistic, readings placed at local noon of each date.</summary>
-    public static TimeGrid Grid(DateOnly[] dates, double[] values, DailyStatistic statistic)
+    public static TimeGrid Grid(DateOnly[] dates, double[] values, DailyStatistic statistic) =>
+        GridBuilder.Build(Readings(dates, values), new GridOptions(GridCadence.Daily, Zone, statistic));
+
+    /// <summary>One reading at local noon of each date.</summary>
+    public static GridReading[] Readings(DateOnly[] dates, double[] values)
     {
         var zone = GridBuilder.FindZone(Zone);
-        var readings = dates.Select((d, i) => new GridReading(GridBuilder.LocalDayStart(d, zone).AddHours(12), values[i]));
-        return GridBuilder.Build(readings, new GridOptions(GridCadence.Daily, Zone, statistic));
+        return [.. dates.Select((d, i) => new GridReading(GridBuilder.LocalDayStart(d, zone).AddHours(12), values[i]))];
     }
 }

@@ -1,3 +1,5 @@
+using ForecastHub.Core.Grid;
+using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Tests.Support;
 using ForecastHub.Core.Verification;
 
@@ -74,32 +76,54 @@ public sealed class ScoresTests
 
 public sealed class BacktestEdgeTests
 {
+    private static readonly DateOnly Day0 = new(2012, 1, 1);
+
+    private static GridReading[] DailyReadings(double[] values) =>
+        [.. values.Select((v, i) => new GridReading(new DateTimeOffset(Day0.AddDays(i).ToDateTime(new TimeOnly(12, 0)), TimeSpan.Zero), v))];
+
+    private static readonly GridOptions Daily = new(GridCadence.Daily, "UTC", DailyStatistic.Mean);
+
     [Fact]
-    public void BacktestWithNoOriginInTheTestSpanReportsZeroOriginsAndNaNScores()
+    public void BacktestWithoutEnoughDataBeforeAnyOriginIsNull()
     {
-        var grid = ForecastHub.Core.Tests.Support.SomeGrid.DailyGrid(SomeAr.ArSeries(100, [0.5], mean: 3));
+        var readings = DailyReadings(SomeAr.ArSeries(100, [0.5], mean: 3));
+        var settings = new ModelSettings { FitWindowDays = 1095 };
 
-        var result = Backtest.Run(grid, new ForecastHub.Core.Modeling.ModelSettings { FitWindowDays = 1095 }, new BacktestOptions { TestFrom = grid.Times[^1].AddDays(10) });
-
-        Assert.Equal(0, result.Origins);
-        Assert.Null(result.From);
-        Assert.True(double.IsNaN(result.Horizons[0].Mae));
+        // 100 observed days are fewer than the 10 x 10 a fit needs before the last origin; test days before the data have no history.
+        Assert.Null(Backtest.Run(readings, Daily, settings, new BacktestOptions { DataEnd = readings[^1].Time, Days = 30 }));
+        Assert.Null(Backtest.Run(readings, Daily, settings, new BacktestOptions { DataEnd = readings[0].Time.AddDays(-10), Days = 5 }));
+        Assert.Null(Backtest.Run([], Daily, settings, new BacktestOptions { DataEnd = readings[0].Time, Days = 5 }));
     }
 
     [Fact]
-    public void BacktestNeverLetsAFitSeeDataAfterItsOrigin()
+    public void BacktestNeverLetsAFitOrForecastSeeDataAfterItsOrigin()
     {
         var values = SomeAr.ArSeries(200, [0.6], mean: 3);
-        var grid = ForecastHub.Core.Tests.Support.SomeGrid.DailyGrid(values);
-        var changedFuture = ForecastHub.Core.Tests.Support.SomeGrid.DailyGrid(values.Select((v, i) => i >= 180 ? v + 50 : v).ToArray());
-        var options = new BacktestOptions { TestFrom = grid.Times[180], TestTo = grid.Times[181], RefitEveryDays = 1 };
-        var settings = new ForecastHub.Core.Modeling.ModelSettings { FitWindowDays = 1095, IntervalMethod = ForecastHub.Core.Modeling.IntervalMethod.Gaussian };
+        var readings = DailyReadings(values);
+        var changedFuture = DailyReadings([.. values.Select((v, i) => i >= 180 ? v + 50 : v)]);
+        var options = new BacktestOptions { DataEnd = readings[180].Time, Days = 1, RefitEveryDays = 1 };
+        var settings = new ModelSettings { FitWindowDays = 1095, IntervalMethod = IntervalMethod.Gaussian };
 
-        var a = Backtest.Run(grid, settings, options);
-        var b = Backtest.Run(changedFuture, settings, options);
+        var a = Backtest.Run(readings, Daily, settings, options)!;
+        var b = Backtest.Run(changedFuture, Daily, settings, options)!;
 
-        Assert.Equal(1, a.Origins);
+        Assert.Equal((1, 1), (a.Origins, a.Refits));
+        Assert.Equal(1, a.Horizons[0].Count);
         Assert.Equal(Math.Abs(a.Horizons[0].Bias - 50), b.Horizons[0].Mae, 9);
         Assert.Equal(a.Horizons[0].Bias - 50, b.Horizons[0].Bias, 9);
+    }
+
+    [Fact]
+    public void ReadingsOutOfTimeOrderGiveTheSameBacktest()
+    {
+        var readings = DailyReadings(SomeAr.ArSeries(300, [0.6], mean: 3));
+        var options = new BacktestOptions { DataEnd = readings[^1].Time, Days = 40, RefitEveryDays = 10 };
+        var settings = new ModelSettings { FitWindowDays = 1095, IntervalMethod = IntervalMethod.Gaussian };
+
+        var inOrder = Backtest.Run(readings, Daily, settings, options)!;
+        var shuffled = Backtest.Run([.. readings.OrderBy(r => r.ValueC)], Daily, settings, options)!;
+
+        Assert.Equal((40, 4), (inOrder.Origins, inOrder.Refits));
+        Assert.Equal((inOrder.Pooled.Count, inOrder.Pooled.Mae, inOrder.Pooled.Crps), (shuffled.Pooled.Count, shuffled.Pooled.Mae, shuffled.Pooled.Crps));
     }
 }

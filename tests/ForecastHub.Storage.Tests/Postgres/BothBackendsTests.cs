@@ -42,7 +42,9 @@ public sealed class BothBackendsTests
         }
 
         Assert.False(await b.Sites.CreateAsync(SiteStoreTests.Site("a")));
-        Assert.Equal(SiteStoreTests.Site("a"), await b.Sites.GetAsync("a"));
+        var stored = await b.Sites.GetAsync("a");
+        Assert.True(stored!.Key > 0);
+        Assert.Equal(SiteStoreTests.Site("a") with { Key = stored.Key }, stored);
         Assert.Equal(["B", "Z", "a"], (await b.Sites.ListAsync(null, 3)).Select(s => s.Id));
         Assert.Equal(["a-1", "b"], (await b.Sites.ListAsync("a", 3)).Select(s => s.Id));
         Assert.Null(await b.Sites.GetAsync("missing"));
@@ -58,7 +60,7 @@ public sealed class BothBackendsTests
         var renamed = await b.Sites.UpdateAsync("site-a", s => s with { Name = "Renamed" });
         var changed = await b.Sites.UpdateAsync("site-a", s => s with { Model = s.Model with { MaxOrder = 10 } });
 
-        Assert.Equal(SiteStoreTests.Site(), same);
+        Assert.Equal(SiteStoreTests.Site() with { Key = same!.Key }, same);
         Assert.Equal(1, renamed!.SettingsVersion);
         Assert.Equal(2, changed!.SettingsVersion);
         var stored = await b.Sites.GetAsync("site-a");
@@ -86,8 +88,9 @@ public sealed class BothBackendsTests
     {
         await using var b = await WithSiteAsync(backend);
         await b.Readings.IngestAsync("site-a", DailyReadings(0, 1, 2), ConflictPolicy.Reject, Received);
-        await b.Models.SaveAsync(Model("site-a"));
-        await b.Archive.ArchiveAsync(Archived("site-a", new DateOnly(2025, 1, 2)));
+        var key = await KeyOfAsync(b, "site-a");
+        Assert.True(await b.Models.SaveAsync(Model("site-a", key)));
+        Assert.True(await b.Archive.ArchiveAsync(Archived("site-a", key, new DateOnly(2025, 1, 2))));
 
         Assert.True(await b.Sites.DeleteAsync("site-a"));
         Assert.True(await b.Sites.CreateAsync(SiteStoreTests.Site()));
@@ -258,15 +261,16 @@ public sealed class BothBackendsTests
     public async Task ModelsAndFitAttemptsAreKeptOnePerSite(string backend)
     {
         await using var b = await WithSiteAsync(backend);
+        var key = await KeyOfAsync(b, "site-a");
         Assert.Null(await b.Models.GetAsync("site-a"));
 
-        Assert.True(await b.Models.SaveAsync(Model("site-a")));
-        Assert.True(await b.Models.RecordFailureAsync(new FitAttempt("site-a", Received.AddHours(1), true, "boom")));
-        Assert.False(await b.Models.SaveAsync(Model("missing")));
-        Assert.False(await b.Models.RecordFailureAsync(new FitAttempt("missing", Received, true, "x")));
+        Assert.True(await b.Models.SaveAsync(Model("site-a", key)));
+        Assert.True(await b.Models.RecordFailureAsync(new FitAttempt("site-a", key, Received.AddHours(1), true, "boom")));
+        Assert.False(await b.Models.SaveAsync(Model("missing", key)));
+        Assert.False(await b.Models.RecordFailureAsync(new FitAttempt("missing", key, Received, true, "x")));
 
-        Assert.Equal(Model("site-a"), await b.Models.GetAsync("site-a"));
-        Assert.Equal(new FitAttempt("site-a", Received.AddHours(1), true, "boom"), await b.Models.GetLastAttemptAsync("site-a"));
+        Assert.Equal(Model("site-a", key), await b.Models.GetAsync("site-a"));
+        Assert.Equal(new FitAttempt("site-a", key, Received.AddHours(1), true, "boom"), await b.Models.GetLastAttemptAsync("site-a"));
         var summary = new ModelSummary("site-a", Received, 3, Received.AddDays(-1), 900, null);
         Assert.Equal(summary, await b.Models.GetSummaryAsync("site-a"));
         Assert.Equal([summary], await b.Models.ListSummariesAsync());
@@ -277,20 +281,21 @@ public sealed class BothBackendsTests
     public async Task TheFirstArchivedForecastStaysAndScoresReplace(string backend)
     {
         await using var b = await WithSiteAsync(backend);
+        var key = await KeyOfAsync(b, "site-a");
         var day = new DateOnly(2025, 3, 4);
 
-        Assert.True(await b.Archive.ArchiveAsync(Archived("site-a", day)));
-        Assert.False(await b.Archive.ArchiveAsync(Archived("site-a", day) with { ForecastJson = "{\"second\":true}" }));
-        Assert.True(await b.Archive.ArchiveAsync(Archived("site-a", day.AddDays(1))));
-        Assert.False(await b.Archive.ArchiveAsync(Archived("missing", day)));
+        Assert.True(await b.Archive.ArchiveAsync(Archived("site-a", key, day)));
+        Assert.False(await b.Archive.ArchiveAsync(Archived("site-a", key, day) with { ForecastJson = "{\"second\":true}" }));
+        Assert.True(await b.Archive.ArchiveAsync(Archived("site-a", key, day.AddDays(1))));
+        Assert.False(await b.Archive.ArchiveAsync(Archived("missing", key, day)));
         Assert.Equal([day, day.AddDays(1)], (await b.Archive.ListUnscoredAsync("site-a", 10)).Select(f => f.TargetDate));
-        Assert.Equal(Archived("site-a", day), (await b.Archive.ListUnscoredAsync("site-a", 1)).Single());
+        Assert.Equal(Archived("site-a", key, day), (await b.Archive.ListUnscoredAsync("site-a", 1)).Single());
 
-        Assert.True(await b.Archive.SaveScoreAsync(new LiveScore("site-a", day, Received, "{\"a\":1}")));
-        Assert.True(await b.Archive.SaveScoreAsync(new LiveScore("site-a", day, Received.AddHours(1), "{\"a\":2}")));
+        Assert.True(await b.Archive.SaveScoreAsync(new LiveScore("site-a", key, day, Received, "{\"a\":1}")));
+        Assert.True(await b.Archive.SaveScoreAsync(new LiveScore("site-a", key, day, Received.AddHours(1), "{\"a\":2}")));
 
         Assert.Equal([day.AddDays(1)], (await b.Archive.ListUnscoredAsync("site-a", 10)).Select(f => f.TargetDate));
-        Assert.Equal([new LiveScore("site-a", day, Received.AddHours(1), "{\"a\":2}")], await b.Archive.ListScoresAsync("site-a", day, 10));
+        Assert.Equal([new LiveScore("site-a", key, day, Received.AddHours(1), "{\"a\":2}")], await b.Archive.ListScoresAsync("site-a", day, 10));
         Assert.Empty(await b.Archive.ListScoresAsync("site-a", day.AddDays(1), 10));
         Assert.True(await b.Archive.HasArchivedAsync("site-a", day));
     }
@@ -326,9 +331,68 @@ public sealed class BothBackendsTests
         Assert.Single(taken, t => t);
     }
 
-    private static StoredModel Model(string siteId) =>
-        new(siteId, Received, 12.5, 3, Received.AddDays(-1), 900, null, "{\"model\":1}");
+    [Theory]
+    [MemberData(nameof(Backend.Names), MemberType = typeof(Backend))]
+    public async Task SiteKeysAreNeverGivenTwice(string backend)
+    {
+        await using var b = await Backend.CreateAsync(backend);
+        Assert.True(await b.Sites.CreateAsync(SiteStoreTests.Site("a")));
+        Assert.True(await b.Sites.CreateAsync(SiteStoreTests.Site("b")));
+        var (a1, b1) = (await KeyOfAsync(b, "a"), await KeyOfAsync(b, "b"));
 
-    private static ArchivedForecast Archived(string siteId, DateOnly day) =>
-        new(siteId, day, Received, Received.AddHours(-1), Received.AddDays(-2), "{\"forecast\":1}");
+        // The newest site (the highest key) deleted and created again: a plain rowid would hand out its key again.
+        Assert.True(await b.Sites.DeleteAsync("b"));
+        Assert.True(await b.Sites.CreateAsync(SiteStoreTests.Site("b")));
+        var b2 = await KeyOfAsync(b, "b");
+        Assert.True(await b.Sites.DeleteAsync("a"));
+        Assert.True(await b.Sites.DeleteAsync("b"));
+        Assert.True(await b.Sites.CreateAsync(SiteStoreTests.Site("a")));
+        var a2 = await KeyOfAsync(b, "a");
+
+        Assert.True(a1 > 0 && b1 > a1, $"keys {a1}, {b1}");
+        Assert.True(b2 > b1, $"b was {b1}, then {b2}");
+        Assert.True(a2 > b2, $"a was {a1}, then {a2} after {b2}");
+        Assert.Equal(a2, (await b.Sites.ListAsync(null, 10)).Single().Key);
+    }
+
+    [Theory]
+    [MemberData(nameof(Backend.Names), MemberType = typeof(Backend))]
+    public async Task WritesForADeletedSiteAreRefusedAlsoAfterItIsCreatedAgain(string backend)
+    {
+        await using var b = await WithSiteAsync(backend);
+        var old = await KeyOfAsync(b, "site-a");
+        var day = new DateOnly(2025, 3, 4);
+        Assert.True(await b.Sites.DeleteAsync("site-a"));
+
+        // Deleted: work that started for it (a fit, the archive step) stores nothing.
+        Assert.False(await b.Models.SaveAsync(Model("site-a", old)));
+        Assert.False(await b.Archive.ArchiveAsync(Archived("site-a", old, day)));
+
+        // Created again under the same id: still refused, the new site has another key.
+        Assert.True(await b.Sites.CreateAsync(SiteStoreTests.Site()));
+        var renewed = await KeyOfAsync(b, "site-a");
+        Assert.NotEqual(old, renewed);
+        Assert.False(await b.Models.SaveAsync(Model("site-a", old)));
+        Assert.False(await b.Models.RecordFailureAsync(new FitAttempt("site-a", old, Received, true, "boom")));
+        Assert.False(await b.Archive.ArchiveAsync(Archived("site-a", old, day)));
+        Assert.False(await b.Archive.SaveScoreAsync(new LiveScore("site-a", old, day, Received, "{}")));
+        Assert.Null(await b.Models.GetAsync("site-a"));
+        Assert.Null(await b.Models.GetSummaryAsync("site-a"));
+        Assert.Null(await b.Models.GetLastAttemptAsync("site-a"));
+        Assert.Empty(await b.Models.ListSummariesAsync());
+        Assert.False(await b.Archive.HasArchivedAsync("site-a", day));
+        Assert.Empty(await b.Archive.ListScoresAsync("site-a", day, 10));
+
+        // The new site's own writes go through.
+        Assert.True(await b.Models.SaveAsync(Model("site-a", renewed)));
+        Assert.Equal(renewed, (await b.Models.GetAsync("site-a"))!.SiteKey);
+    }
+
+    private static async Task<long> KeyOfAsync(Backend b, string siteId) => (await b.Sites.GetAsync(siteId))!.Key;
+
+    private static StoredModel Model(string siteId, long siteKey) =>
+        new(siteId, siteKey, Received, 12.5, 3, Received.AddDays(-1), 900, null, "{\"model\":1}");
+
+    private static ArchivedForecast Archived(string siteId, long siteKey, DateOnly day) =>
+        new(siteId, siteKey, day, Received, Received.AddHours(-1), Received.AddDays(-2), "{\"forecast\":1}");
 }

@@ -1,6 +1,7 @@
+using ForecastHub.Core.Quality;
+using ForecastHub.Storage.Keys;
 using ForecastHub.Storage.Postgres;
 using ForecastHub.Storage.Postgres.Cluster;
-using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Postgres.Keys;
 using ForecastHub.Storage.Postgres.Migrations;
 using ForecastHub.Storage.Postgres.Readings;
@@ -25,6 +26,30 @@ public sealed class PostgresOnlyTests
         Assert.All(versions, v => Assert.Equal(runner.LatestVersion, v));
         Assert.Equal(runner.LatestVersion, await runner.CurrentVersionAsync());
         Assert.Equal(PostgresMigrationRunner.All.Count, await db.ScalarAsync<int>("SELECT count(*) FROM schema_migrations;"));
+    }
+
+    [Fact]
+    public async Task NodesStartingTogetherStoreOneFirstAdminKey()
+    {
+        await using var db = await PostgresTestDatabase.CreateAsync();
+        var nodes = Enumerable.Range(0, 6).Select(_ => new PostgresApiKeyStore(db.Database)).ToArray();
+
+        // The race is timing-dependent, so it is run many times, each from an empty key table.
+        for (var round = 0; round < 20; round++)
+        {
+            Assert.Equal(round == 0 ? 0 : 1, await db.ScalarAsync<long>("WITH gone AS (DELETE FROM api_keys RETURNING 1) SELECT count(*) FROM gone;"));
+            using var go = new ManualResetEventSlim();
+            var starts = nodes.Select((node, i) => Task.Run(() =>
+            {
+                go.Wait();
+                return node.CreateFirstAdminAsync(new ApiKeyRecord($"key-{round:D8}{i:D8}", System.Security.Cryptography.SHA256.HashData([(byte)round, (byte)i]),
+                    "admin", [], "generated at first start", DateTimeOffset.UtcNow, null));
+            })).ToArray();
+            go.Set();
+
+            Assert.Single(await Task.WhenAll(starts), s => s);
+            Assert.Equal(1, await db.ScalarAsync<long>("SELECT count(*) FROM api_keys WHERE scope = 'admin';"));
+        }
     }
 
     [Fact]
