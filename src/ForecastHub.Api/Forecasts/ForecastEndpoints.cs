@@ -2,6 +2,7 @@ using ForecastHub.Api.Http;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Models;
 using ForecastHub.Api.Observations;
+using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Storage.Sites;
 using Microsoft.AspNetCore.Http.HttpResults;
@@ -17,7 +18,8 @@ public static class ForecastEndpoints
         var group = api.MapGroup("/sites/{siteId}").WithTags("Forecasts").RequireAuthorization(AuthPolicies.Read);
         group.MapGet("/forecast", GetForecast).WithName("GetForecast").WithSiteETag()
             .WithSummary("The forecast path with prediction intervals, the next local day's summary with threshold probabilities, the model used, and cautions.")
-            .ProducesProblem(StatusCodes.Status409Conflict);
+            .ProducesProblem(StatusCodes.Status409Conflict)
+            .WithSuccessFormats(csv: true);
         group.MapGet("/forecast.svg", GetForecastChart).WithName("GetForecastChart").WithSiteETag()
             .WithSummary("A chart of the recent history, the forecast and its 80% and 95% bands, as SVG.")
             .Produces<string>(StatusCodes.Status200OK, "image/svg+xml")

@@ -4,6 +4,7 @@ using System.Text;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Metrics;
+using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
 using ForecastHub.Core.Grid;
@@ -33,7 +34,8 @@ public static class ObservationsEndpoints
             .ProducesProblem(StatusCodes.Status422UnprocessableEntity);
         group.MapGet("/", ObservationQueries.Get).WithName("GetObservations")
             .WithSummary("Stored readings (resolution=raw) or the site's regular grid (resolution=grid), JSON or CSV, paged by 'next'.")
-            .RequireAuthorization(AuthPolicies.Read);
+            .RequireAuthorization(AuthPolicies.Read)
+            .WithSuccessFormats(csv: true, typeof(ObservationPage), typeof(GridPage));
         return group;
     }
 

@@ -9,7 +9,7 @@ namespace ForecastHub.Api.OpenApi;
 /// <summary>
 /// Adds what every endpoint shares by convention, so new endpoints are described without extra
 /// work: the Bearer requirement and 401/403/429 on endpoints that need a key, 404 where the route
-/// names a site or key, 400 where query parameters are read, 400/413/415 where a body is accepted,
+/// names a site, key or webhook, 400 where query parameters are read, 400/413/415 where a body is accepted,
 /// and problem+json on each of them.
 /// </summary>
 public sealed class ProblemResponsesFilter : IOperationFilter
@@ -44,10 +44,17 @@ public sealed class ProblemResponsesFilter : IOperationFilter
             operation.Responses["304"] = new OpenApiResponse { Description = "Not modified: the If-None-Match ETag still matches; no body." };
         }
 
-        var route = context.ApiDescription.RelativePath ?? "";
-        if (route.Contains("{siteId}", StringComparison.Ordinal) || route.Contains("{keyId}", StringComparison.Ordinal))
+        if (metadata.OfType<SuccessFormats>().FirstOrDefault() is { } formats
+            && operation.Responses.TryGetValue("200", out var answer) && answer is OpenApiResponse ok)
         {
-            Add(operation, context, StatusCodes.Status404NotFound, "No such site or key.");
+            DescribeSuccessFormats(ok, formats, context);
+        }
+
+        var route = context.ApiDescription.RelativePath ?? "";
+        if (route.Contains("{siteId}", StringComparison.Ordinal) || route.Contains("{keyId}", StringComparison.Ordinal)
+            || route.Contains("{webhookId}", StringComparison.Ordinal))
+        {
+            Add(operation, context, StatusCodes.Status404NotFound, "No such site, key or webhook.");
         }
 
         if (operation.Parameters?.Any(p => p.In == ParameterLocation.Query) == true)
@@ -60,6 +67,23 @@ public sealed class ProblemResponsesFilter : IOperationFilter
             Add(operation, context, StatusCodes.Status400BadRequest, "The body is malformed or a field is invalid; the problem names the field.");
             Add(operation, context, StatusCodes.Status413PayloadTooLarge, "The body is larger than this endpoint accepts.");
             Add(operation, context, StatusCodes.Status415UnsupportedMediaType, "The Content-Type is not one this endpoint reads.");
+        }
+    }
+
+    private static void DescribeSuccessFormats(OpenApiResponse ok, SuccessFormats formats, OperationFilterContext context)
+    {
+        ok.Content ??= new Dictionary<string, OpenApiMediaType>();
+        if (formats.JsonTypes.Count > 0)
+        {
+            var schemas = formats.JsonTypes.Select(t => context.SchemaGenerator.GenerateSchema(t, context.SchemaRepository)).ToList();
+            ok.Content["application/json"] = new OpenApiMediaType
+            {
+                Schema = schemas.Count == 1 ? schemas[0] : new OpenApiSchema { OneOf = schemas },
+            };
+        }
+        if (formats.Csv)
+        {
+            ok.Content["text/csv"] = new OpenApiMediaType { Schema = new OpenApiSchema { Type = JsonSchemaType.String } };
         }
     }
 

@@ -42,7 +42,11 @@ public sealed record SiteRecord(
     {
         ArgumentNullException.ThrowIfNull(proposed);
         // Names and risk settings need no refit; a risk change re-evaluates through the forecast cache key.
-        var settingsChanged = proposed with { Name = Name, Risk = Risk, Key = Key } != this;
+        // Bookkeeping fields are this record's own, so only settings a fit reads are compared.
+        var settingsChanged = proposed with
+        {
+            Id = Id, Key = Key, Name = Name, Risk = Risk, CreatedAt = CreatedAt, UpdatedAt = UpdatedAt, SettingsVersion = SettingsVersion,
+        } != this;
         return proposed with
         {
             Id = Id,

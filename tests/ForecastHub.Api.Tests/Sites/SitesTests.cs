@@ -155,12 +155,14 @@ public sealed class SitesTests
         await using var factory = new ApiFactory();
         using var client = factory.CreateAdminClient();
         (await client.CreateSite()).Dispose();
+        factory.Clock.Advance(TimeSpan.FromHours(1));
 
         using var response = await client.PatchAsJsonAsync(Site("orchard-1"), new { name = "North orchard" });
 
         var site = await response.Content.ReadFromJsonAsync<JsonElement>();
         Assert.Equal("North orchard", site.GetProperty("name").GetString());
         Assert.Equal(1, site.GetProperty("settingsVersion").GetInt64());
+        Assert.Equal(ApiFactory.Now.AddHours(1), site.GetProperty("updatedAt").GetDateTimeOffset());
     }
 
     [Fact]
