@@ -7,8 +7,6 @@ namespace ForecastHub.Storage.Postgres.Alerts;
 /// <summary>Alert state shared by every node, changed in one transaction with the outbox rows it causes.</summary>
 public sealed class PostgresAlertStore(PostgresDatabase database) : IAlertStore
 {
-    private const string Columns = "site_id, threshold_id, window_name, window_from_ms, window_to_ms, raised_at_ms, updated_at_ms, detail_json";
-
     /// <summary>
     /// A session advisory lock per site, held on its own connection: a second node asking for it
     /// waits until the first has applied its change, so it then reads that change and never raises
@@ -34,7 +32,7 @@ public sealed class PostgresAlertStore(PostgresDatabase database) : IAlertStore
         database.ReadAsync(async (connection, transaction) =>
         {
             List<RaisedAlert> raised;
-            await using (var select = connection.Command(transaction, $"SELECT {Columns} FROM raised_alerts WHERE site_id = $1 ORDER BY threshold_id, window_name;")
+            await using (var select = connection.Command(transaction, $"SELECT {RaisedAlert.Columns} FROM raised_alerts WHERE site_id = $1 ORDER BY threshold_id, window_name;")
                              .With(siteId))
             {
                 raised = await ReadAlertsAsync(select, cancellationToken).ConfigureAwait(false);
@@ -63,7 +61,7 @@ public sealed class PostgresAlertStore(PostgresDatabase database) : IAlertStore
             foreach (var alert in change.Upserts)
             {
                 await using var upsert = connection.Command(transaction, $"""
-                    INSERT INTO raised_alerts ({Columns}) VALUES ($1, $2, $3, $4, $5, $6, $7, $8)
+                    INSERT INTO raised_alerts ({RaisedAlert.Columns}) VALUES ($1, $2, $3, $4, $5, $6, $7, $8)
                     ON CONFLICT (site_id, threshold_id, window_name) DO UPDATE SET
                         window_from_ms = excluded.window_from_ms, window_to_ms = excluded.window_to_ms,
                         raised_at_ms = excluded.raised_at_ms, updated_at_ms = excluded.updated_at_ms, detail_json = excluded.detail_json;
@@ -111,7 +109,7 @@ public sealed class PostgresAlertStore(PostgresDatabase database) : IAlertStore
         database.QueryAsync<IReadOnlyList<RaisedAlert>>(async connection =>
         {
             await using var select = connection.Command(null, $"""
-                SELECT {Columns} FROM raised_alerts
+                SELECT {RaisedAlert.Columns} FROM raised_alerts
                 WHERE (site_id, threshold_id, window_name) > ($1, $2, $3)
                 ORDER BY site_id, threshold_id, window_name LIMIT $4;
                 """)
@@ -125,15 +123,7 @@ public sealed class PostgresAlertStore(PostgresDatabase database) : IAlertStore
         var raised = new List<RaisedAlert>();
         while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
         {
-            raised.Add(new RaisedAlert(
-                reader.GetString(0),
-                reader.GetString(1),
-                reader.GetString(2),
-                NpgsqlExtensions.FromUnixMs(reader.GetInt64(3)),
-                NpgsqlExtensions.FromUnixMs(reader.GetInt64(4)),
-                NpgsqlExtensions.FromUnixMs(reader.GetInt64(5)),
-                NpgsqlExtensions.FromUnixMs(reader.GetInt64(6)),
-                reader.GetString(7)));
+            raised.Add(RaisedAlert.Read(reader));
         }
 
         return raised;

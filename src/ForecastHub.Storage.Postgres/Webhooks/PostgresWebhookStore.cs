@@ -1,4 +1,3 @@
-using System.Security.Cryptography;
 using System.Text.Json;
 using ForecastHub.Storage.Webhooks;
 using Npgsql;
@@ -13,20 +12,13 @@ namespace ForecastHub.Storage.Postgres.Webhooks;
 /// </summary>
 public sealed class PostgresWebhookStore(PostgresDatabase database) : IWebhookStore
 {
-    private const string WebhookColumns = "id, url, secret, site_ids, events, created_at_ms";
-
-    private const string DeliveryColumns = """
-        d.seq, d.message_id, d.webhook_id, d.event_type, d.site_id, d.body, d.status, d.attempts, d.created_at_ms,
-        d.next_attempt_at_ms, d.last_attempt_at_ms, d.last_status_code, d.last_error
-        """;
-
     public Task<bool> CreateAsync(WebhookRecord webhook, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(webhook);
         return database.WriteAsync(async (connection, transaction) =>
         {
             await using var insert = connection.Command(transaction, $"""
-                INSERT INTO webhooks ({WebhookColumns}) VALUES ($1, $2, $3, $4, $5, $6) ON CONFLICT DO NOTHING;
+                INSERT INTO webhooks ({WebhookRows.WebhookColumns}) VALUES ($1, $2, $3, $4, $5, $6) ON CONFLICT DO NOTHING;
                 """)
                 .With(webhook.Id)
                 .With(webhook.Url)
@@ -41,16 +33,16 @@ public sealed class PostgresWebhookStore(PostgresDatabase database) : IWebhookSt
     public Task<WebhookRecord?> GetAsync(string id, CancellationToken cancellationToken = default) =>
         database.QueryAsync(async connection =>
         {
-            await using var select = connection.Command(null, $"SELECT {WebhookColumns} FROM webhooks WHERE id = $1;").With(id);
-            return (await ReadAllAsync(select, ReadWebhook, cancellationToken).ConfigureAwait(false)).FirstOrDefault();
+            await using var select = connection.Command(null, $"SELECT {WebhookRows.WebhookColumns} FROM webhooks WHERE id = $1;").With(id);
+            return (await ReadAllAsync(select, WebhookRows.Webhook, cancellationToken).ConfigureAwait(false)).FirstOrDefault();
         }, cancellationToken);
 
     public Task<IReadOnlyList<WebhookRecord>> ListAsync(string? afterId, int limit, CancellationToken cancellationToken = default) =>
         database.QueryAsync<IReadOnlyList<WebhookRecord>>(async connection =>
         {
-            await using var select = connection.Command(null, $"SELECT {WebhookColumns} FROM webhooks WHERE id > $1 ORDER BY id LIMIT $2;")
+            await using var select = connection.Command(null, $"SELECT {WebhookRows.WebhookColumns} FROM webhooks WHERE id > $1 ORDER BY id LIMIT $2;")
                 .With(afterId ?? "").With(limit);
-            return await ReadAllAsync(select, ReadWebhook, cancellationToken).ConfigureAwait(false);
+            return await ReadAllAsync(select, WebhookRows.Webhook, cancellationToken).ConfigureAwait(false);
         }, cancellationToken);
 
     public Task<bool> DeleteAsync(string id, CancellationToken cancellationToken = default) =>
@@ -72,9 +64,9 @@ public sealed class PostgresWebhookStore(PostgresDatabase database) : IWebhookSt
         CancellationToken cancellationToken)
     {
         List<WebhookRecord> webhooks;
-        await using (var select = connection.Command(transaction, $"SELECT {WebhookColumns} FROM webhooks ORDER BY id;"))
+        await using (var select = connection.Command(transaction, $"SELECT {WebhookRows.WebhookColumns} FROM webhooks ORDER BY id;"))
         {
-            webhooks = await ReadAllAsync(select, ReadWebhook, cancellationToken).ConfigureAwait(false);
+            webhooks = await ReadAllAsync(select, WebhookRows.Webhook, cancellationToken).ConfigureAwait(false);
         }
 
         var queued = 0;
@@ -84,7 +76,7 @@ public sealed class PostgresWebhookStore(PostgresDatabase database) : IWebhookSt
                 INSERT INTO webhook_deliveries (message_id, webhook_id, event_type, site_id, body, status, attempts, created_at_ms, next_attempt_at_ms)
                 VALUES ($1, $2, $3, $4, $5, 'pending', 0, $6, $6);
                 """)
-                .With(NewMessageId())
+                .With(WebhookRows.NewMessageId())
                 .With(webhook.Id)
                 .With(outgoing.EventType)
                 .With(outgoing.SiteId)
@@ -108,14 +100,14 @@ public sealed class PostgresWebhookStore(PostgresDatabase database) : IWebhookSt
                     FOR UPDATE SKIP LOCKED),
                 claimed AS (
                     UPDATE webhook_deliveries d SET next_attempt_at_ms = $3 FROM due WHERE d.seq = due.seq RETURNING d.seq)
-                SELECT {DeliveryColumns}, w.url, w.secret
+                SELECT {WebhookRows.DeliveryColumns}, w.url, w.secret
                 FROM claimed c JOIN webhook_deliveries d ON d.seq = c.seq JOIN webhooks w ON w.id = d.webhook_id
                 ORDER BY d.next_attempt_at_ms, d.seq;
                 """)
                 .With(now.ToUnixTimeMilliseconds())
                 .With(limit)
                 .With(claimUntil.ToUnixTimeMilliseconds());
-            return await ReadAllAsync(claim, r => new DueDelivery(ReadDelivery(r), r.GetString(13), r.GetString(14)), cancellationToken)
+            return await ReadAllAsync(claim, r => new DueDelivery(WebhookRows.Delivery(r), r.GetString(13), r.GetString(14)), cancellationToken)
                 .ConfigureAwait(false);
         }, cancellationToken);
 
@@ -153,15 +145,12 @@ public sealed class PostgresWebhookStore(PostgresDatabase database) : IWebhookSt
         database.QueryAsync<IReadOnlyList<DeliveryRecord>>(async connection =>
         {
             await using var select = connection.Command(null, $"""
-                SELECT {DeliveryColumns} FROM webhook_deliveries d
+                SELECT {WebhookRows.DeliveryColumns} FROM webhook_deliveries d
                 WHERE d.webhook_id = $1 AND d.seq < $2 ORDER BY d.seq DESC LIMIT $3;
                 """)
                 .With(webhookId).With(beforeSeq ?? long.MaxValue).With(limit);
-            return await ReadAllAsync(select, ReadDelivery, cancellationToken).ConfigureAwait(false);
+            return await ReadAllAsync(select, WebhookRows.Delivery, cancellationToken).ConfigureAwait(false);
         }, cancellationToken);
-
-    // Standard Webhooks message ids: unique per message, the same on every retry of it.
-    private static string NewMessageId() => "msg_" + Convert.ToHexStringLower(RandomNumberGenerator.GetBytes(16));
 
     private static async Task<List<T>> ReadAllAsync<T>(NpgsqlCommand select, Func<NpgsqlDataReader, T> read, CancellationToken cancellationToken)
     {
@@ -174,27 +163,4 @@ public sealed class PostgresWebhookStore(PostgresDatabase database) : IWebhookSt
 
         return rows;
     }
-
-    private static WebhookRecord ReadWebhook(NpgsqlDataReader reader) => new(
-        reader.GetString(0),
-        reader.GetString(1),
-        reader.GetString(2),
-        JsonSerializer.Deserialize<string[]>(reader.GetString(3)) ?? [],
-        JsonSerializer.Deserialize<string[]>(reader.GetString(4)) ?? [],
-        NpgsqlExtensions.FromUnixMs(reader.GetInt64(5)));
-
-    private static DeliveryRecord ReadDelivery(NpgsqlDataReader reader) => new(
-        reader.GetInt64(0),
-        reader.GetString(1),
-        reader.GetString(2),
-        reader.GetString(3),
-        reader.GetNullableString(4),
-        reader.GetString(5),
-        reader.GetString(6),
-        reader.GetInt32(7),
-        NpgsqlExtensions.FromUnixMs(reader.GetInt64(8)),
-        reader.IsDBNull(9) ? null : NpgsqlExtensions.FromUnixMs(reader.GetInt64(9)),
-        reader.IsDBNull(10) ? null : NpgsqlExtensions.FromUnixMs(reader.GetInt64(10)),
-        reader.IsDBNull(11) ? null : reader.GetInt32(11),
-        reader.GetNullableString(12));
 }

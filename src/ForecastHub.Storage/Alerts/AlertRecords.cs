@@ -1,3 +1,4 @@
+using System.Data.Common;
 using ForecastHub.Storage.Webhooks;
 
 namespace ForecastHub.Storage.Alerts;
@@ -12,7 +13,25 @@ public sealed record RaisedAlert(
     DateTimeOffset WindowTo,
     DateTimeOffset RaisedAt,
     DateTimeOffset UpdatedAt,
-    string DetailJson);
+    string DetailJson)
+{
+    /// <summary>The columns every backend selects a raised alert by, in the order <see cref="Read"/> reads them.</summary>
+    public const string Columns = "site_id, threshold_id, window_name, window_from_ms, window_to_ms, raised_at_ms, updated_at_ms, detail_json";
+
+    public static RaisedAlert Read(DbDataReader reader)
+    {
+        ArgumentNullException.ThrowIfNull(reader);
+        return new(
+            reader.GetString(0),
+            reader.GetString(1),
+            reader.GetString(2),
+            DateTimeOffset.FromUnixTimeMilliseconds(reader.GetInt64(3)),
+            DateTimeOffset.FromUnixTimeMilliseconds(reader.GetInt64(4)),
+            DateTimeOffset.FromUnixTimeMilliseconds(reader.GetInt64(5)),
+            DateTimeOffset.FromUnixTimeMilliseconds(reader.GetInt64(6)),
+            reader.GetString(7));
+    }
+}
 
 /// <summary>The alert memory of one site: what is raised and the health state last announced.</summary>
 public sealed record SiteAlertState(IReadOnlyList<RaisedAlert> Raised, string? HealthState);

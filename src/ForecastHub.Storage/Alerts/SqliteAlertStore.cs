@@ -1,12 +1,9 @@
 using ForecastHub.Storage.Webhooks;
-using Microsoft.Data.Sqlite;
 
 namespace ForecastHub.Storage.Alerts;
 
 public sealed class SqliteAlertStore(SqliteDatabase database) : IAlertStore
 {
-    private const string Columns = "site_id, threshold_id, window_name, window_from_ms, window_to_ms, raised_at_ms, updated_at_ms, detail_json";
-
     /// <summary>A SQLite file has one service process, whose evaluator already runs one evaluation at a time.</summary>
     public Task<IAsyncDisposable> LockAsync(string siteId, CancellationToken cancellationToken = default) =>
         Task.FromResult<IAsyncDisposable>(NothingHeld.Instance);
@@ -15,13 +12,13 @@ public sealed class SqliteAlertStore(SqliteDatabase database) : IAlertStore
         Task.FromResult(database.Read((connection, transaction) =>
         {
             var raised = new List<RaisedAlert>();
-            using (var select = connection.Command(transaction, $"SELECT {Columns} FROM raised_alerts WHERE site_id = $site ORDER BY threshold_id, window_name;")
+            using (var select = connection.Command(transaction, $"SELECT {RaisedAlert.Columns} FROM raised_alerts WHERE site_id = $site ORDER BY threshold_id, window_name;")
                        .With("$site", siteId))
             using (var reader = select.ExecuteReader())
             {
                 while (reader.Read())
                 {
-                    raised.Add(ReadAlert(reader));
+                    raised.Add(RaisedAlert.Read(reader));
                 }
             }
 
@@ -46,7 +43,7 @@ public sealed class SqliteAlertStore(SqliteDatabase database) : IAlertStore
             foreach (var alert in change.Upserts)
             {
                 using var upsert = connection.Command(transaction, $"""
-                        INSERT INTO raised_alerts ({Columns}) VALUES ($site, $threshold, $window, $from, $to, $raised, $updated, $detail)
+                        INSERT INTO raised_alerts ({RaisedAlert.Columns}) VALUES ($site, $threshold, $window, $from, $to, $raised, $updated, $detail)
                         ON CONFLICT (site_id, threshold_id, window_name) DO UPDATE SET
                             window_from_ms = excluded.window_from_ms, window_to_ms = excluded.window_to_ms,
                             raised_at_ms = excluded.raised_at_ms, updated_at_ms = excluded.updated_at_ms, detail_json = excluded.detail_json;
@@ -98,7 +95,7 @@ public sealed class SqliteAlertStore(SqliteDatabase database) : IAlertStore
         Task.FromResult(database.Read<IReadOnlyList<RaisedAlert>>((connection, transaction) =>
         {
             using var select = connection.Command(transaction, $"""
-                    SELECT {Columns} FROM raised_alerts
+                    SELECT {RaisedAlert.Columns} FROM raised_alerts
                     WHERE (site_id, threshold_id, window_name) > ($site, $threshold, $window)
                     ORDER BY site_id, threshold_id, window_name LIMIT $limit;
                     """)
@@ -110,21 +107,11 @@ public sealed class SqliteAlertStore(SqliteDatabase database) : IAlertStore
             var raised = new List<RaisedAlert>();
             while (reader.Read())
             {
-                raised.Add(ReadAlert(reader));
+                raised.Add(RaisedAlert.Read(reader));
             }
 
             return raised;
         }));
-
-    private static RaisedAlert ReadAlert(SqliteDataReader reader) => new(
-        reader.GetString(0),
-        reader.GetString(1),
-        reader.GetString(2),
-        SqliteExtensions.FromUnixMs(reader.GetInt64(3)),
-        SqliteExtensions.FromUnixMs(reader.GetInt64(4)),
-        SqliteExtensions.FromUnixMs(reader.GetInt64(5)),
-        SqliteExtensions.FromUnixMs(reader.GetInt64(6)),
-        reader.GetString(7));
 
     private sealed class NothingHeld : IAsyncDisposable
     {

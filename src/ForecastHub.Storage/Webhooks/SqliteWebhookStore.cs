@@ -1,4 +1,3 @@
-using System.Security.Cryptography;
 using System.Text.Json;
 using Microsoft.Data.Sqlite;
 
@@ -6,20 +5,13 @@ namespace ForecastHub.Storage.Webhooks;
 
 public sealed class SqliteWebhookStore(SqliteDatabase database) : IWebhookStore
 {
-    private const string WebhookColumns = "id, url, secret, site_ids, events, created_at_ms";
-
-    private const string DeliveryColumns = """
-        d.seq, d.message_id, d.webhook_id, d.event_type, d.site_id, d.body, d.status, d.attempts, d.created_at_ms,
-        d.next_attempt_at_ms, d.last_attempt_at_ms, d.last_status_code, d.last_error
-        """;
-
     public Task<bool> CreateAsync(WebhookRecord webhook, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(webhook);
         return database.WriteAsync((connection, transaction) =>
         {
             using var insert = connection.Command(transaction, $"""
-                    INSERT INTO webhooks ({WebhookColumns}) VALUES ($id, $url, $secret, $sites, $events, $created)
+                    INSERT INTO webhooks ({WebhookRows.WebhookColumns}) VALUES ($id, $url, $secret, $sites, $events, $created)
                     ON CONFLICT DO NOTHING;
                     """)
                 .With("$id", webhook.Id)
@@ -35,18 +27,18 @@ public sealed class SqliteWebhookStore(SqliteDatabase database) : IWebhookStore
     public Task<WebhookRecord?> GetAsync(string id, CancellationToken cancellationToken = default) =>
         Task.FromResult(database.Read((connection, transaction) =>
         {
-            using var select = connection.Command(transaction, $"SELECT {WebhookColumns} FROM webhooks WHERE id = $id;").With("$id", id);
+            using var select = connection.Command(transaction, $"SELECT {WebhookRows.WebhookColumns} FROM webhooks WHERE id = $id;").With("$id", id);
             using var reader = select.ExecuteReader();
-            return reader.Read() ? ReadWebhook(reader) : null;
+            return reader.Read() ? WebhookRows.Webhook(reader) : null;
         }));
 
     public Task<IReadOnlyList<WebhookRecord>> ListAsync(string? afterId, int limit, CancellationToken cancellationToken = default) =>
         Task.FromResult(database.Read<IReadOnlyList<WebhookRecord>>((connection, transaction) =>
         {
-            using var select = connection.Command(transaction, $"SELECT {WebhookColumns} FROM webhooks WHERE id > $after ORDER BY id LIMIT $limit;")
+            using var select = connection.Command(transaction, $"SELECT {WebhookRows.WebhookColumns} FROM webhooks WHERE id > $after ORDER BY id LIMIT $limit;")
                 .With("$after", afterId ?? "")
                 .With("$limit", limit);
-            return ReadAll(select, ReadWebhook);
+            return ReadAll(select, WebhookRows.Webhook);
         }));
 
     public Task<bool> DeleteAsync(string id, CancellationToken cancellationToken = default) =>
@@ -67,9 +59,9 @@ public sealed class SqliteWebhookStore(SqliteDatabase database) : IWebhookStore
     internal static int Enqueue(SqliteConnection connection, SqliteTransaction transaction, OutgoingEvent outgoing, DateTimeOffset at)
     {
         List<WebhookRecord> webhooks;
-        using (var select = connection.Command(transaction, $"SELECT {WebhookColumns} FROM webhooks ORDER BY id;"))
+        using (var select = connection.Command(transaction, $"SELECT {WebhookRows.WebhookColumns} FROM webhooks ORDER BY id;"))
         {
-            webhooks = ReadAll(select, ReadWebhook);
+            webhooks = ReadAll(select, WebhookRows.Webhook);
         }
 
         var queued = 0;
@@ -79,7 +71,7 @@ public sealed class SqliteWebhookStore(SqliteDatabase database) : IWebhookStore
                     INSERT INTO webhook_deliveries (message_id, webhook_id, event_type, site_id, body, status, attempts, created_at_ms, next_attempt_at_ms)
                     VALUES ($message, $webhook, $type, $site, $body, 'pending', 0, $at, $at);
                     """)
-                .With("$message", NewMessageId())
+                .With("$message", WebhookRows.NewMessageId())
                 .With("$webhook", webhook.Id)
                 .With("$type", outgoing.EventType)
                 .With("$site", outgoing.SiteId)
@@ -97,14 +89,14 @@ public sealed class SqliteWebhookStore(SqliteDatabase database) : IWebhookStore
         Task.FromResult(database.Read<IReadOnlyList<DueDelivery>>((connection, transaction) =>
         {
             using var select = connection.Command(transaction, $"""
-                    SELECT {DeliveryColumns}, w.url, w.secret
+                    SELECT {WebhookRows.DeliveryColumns}, w.url, w.secret
                     FROM webhook_deliveries d JOIN webhooks w ON w.id = d.webhook_id
                     WHERE d.status = 'pending' AND d.next_attempt_at_ms <= $now
                     ORDER BY d.next_attempt_at_ms, d.seq LIMIT $limit;
                     """)
                 .With("$now", now.ToUnixTimeMilliseconds())
                 .With("$limit", limit);
-            return ReadAll(select, r => new DueDelivery(ReadDelivery(r), r.GetString(13), r.GetString(14)));
+            return ReadAll(select, r => new DueDelivery(WebhookRows.Delivery(r), r.GetString(13), r.GetString(14)));
         }));
 
     public Task<DateTimeOffset?> NextDueAsync(CancellationToken cancellationToken = default) =>
@@ -140,17 +132,14 @@ public sealed class SqliteWebhookStore(SqliteDatabase database) : IWebhookStore
         Task.FromResult(database.Read<IReadOnlyList<DeliveryRecord>>((connection, transaction) =>
         {
             using var select = connection.Command(transaction, $"""
-                    SELECT {DeliveryColumns} FROM webhook_deliveries d
+                    SELECT {WebhookRows.DeliveryColumns} FROM webhook_deliveries d
                     WHERE d.webhook_id = $webhook AND d.seq < $before ORDER BY d.seq DESC LIMIT $limit;
                     """)
                 .With("$webhook", webhookId)
                 .With("$before", beforeSeq ?? long.MaxValue)
                 .With("$limit", limit);
-            return ReadAll(select, ReadDelivery);
+            return ReadAll(select, WebhookRows.Delivery);
         }));
-
-    // Standard Webhooks message ids: unique per message, the same on every retry of it.
-    private static string NewMessageId() => "msg_" + Convert.ToHexStringLower(RandomNumberGenerator.GetBytes(16));
 
     private static List<T> ReadAll<T>(SqliteCommand select, Func<SqliteDataReader, T> read)
     {
@@ -163,27 +152,4 @@ public sealed class SqliteWebhookStore(SqliteDatabase database) : IWebhookStore
 
         return rows;
     }
-
-    private static WebhookRecord ReadWebhook(SqliteDataReader reader) => new(
-        reader.GetString(0),
-        reader.GetString(1),
-        reader.GetString(2),
-        JsonSerializer.Deserialize<string[]>(reader.GetString(3)) ?? [],
-        JsonSerializer.Deserialize<string[]>(reader.GetString(4)) ?? [],
-        SqliteExtensions.FromUnixMs(reader.GetInt64(5)));
-
-    private static DeliveryRecord ReadDelivery(SqliteDataReader reader) => new(
-        reader.GetInt64(0),
-        reader.GetString(1),
-        reader.GetString(2),
-        reader.GetString(3),
-        reader.GetNullableString(4),
-        reader.GetString(5),
-        reader.GetString(6),
-        reader.GetInt32(7),
-        SqliteExtensions.FromUnixMs(reader.GetInt64(8)),
-        reader.IsDBNull(9) ? null : SqliteExtensions.FromUnixMs(reader.GetInt64(9)),
-        reader.IsDBNull(10) ? null : SqliteExtensions.FromUnixMs(reader.GetInt64(10)),
-        reader.IsDBNull(11) ? null : reader.GetInt32(11),
-        reader.GetNullableString(12));
 }
