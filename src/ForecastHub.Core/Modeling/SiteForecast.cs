@@ -23,7 +23,18 @@ public sealed record ForecastStep(DateTimeOffset Time, int Horizon, double Mean,
 }
 
 /// <summary>A distribution summarised by its mean and central intervals.</summary>
-public sealed record DistributionSummary(double Mean, IReadOnlyList<PredictionInterval> Intervals);
+public sealed record DistributionSummary(double Mean, IReadOnlyList<PredictionInterval> Intervals)
+{
+    /// <summary>A simulated sample's mean and central intervals (R quantile type 7).</summary>
+    internal static DistributionSummary OfSample(double[] values, IReadOnlyList<double> levels)
+    {
+        var sorted = values.ToArray();
+        Array.Sort(sorted);
+        return new DistributionSummary(
+            values.Average(),
+            [.. levels.Select(l => new PredictionInterval(l, Calibration.SortedQuantile(sorted, (1 - l) / 2), Calibration.SortedQuantile(sorted, (1 + l) / 2)))]);
+    }
+}
 
 public sealed record ThresholdProbability(double Threshold, ThresholdDirection Direction, double Probability);
 
