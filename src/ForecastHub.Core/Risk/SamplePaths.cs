@@ -46,6 +46,7 @@ internal sealed class SamplePaths : IDisposable
         var buffer = ArrayPool<double>.Shared.Rent(horizons * stride);
         var d = buffer.AsSpan(0, horizons * stride);
         var sampler = new GaussianSampler(seed);
+        var coefficients = ar.Coefficients.Select(c => new Vector<double>(c)).ToArray();
         for (var k = 0; k < horizons; k++)
         {
             var row = d.Slice(k * stride, stride);
@@ -56,14 +57,17 @@ internal sealed class SamplePaths : IDisposable
                 row[half + j] = -row[j];
             }
 
-            for (var i = 1; i <= Math.Min(k, p); i++)
+            // Per block of paths the sum stays in a register over all lags, added in lag order (1, 2, ..., p).
+            var lags = Math.Min(k, p);
+            for (var j = 0; j < stride; j += width)
             {
-                var c = new Vector<double>(ar.Coefficients[i - 1]);
-                var previous = d.Slice((k - i) * stride, stride);
-                for (var j = 0; j < stride; j += width)
+                var sum = new Vector<double>(row[j..]);
+                for (var i = 1; i <= lags; i++)
                 {
-                    (new Vector<double>(row[j..]) + c * new Vector<double>(previous[j..])).CopyTo(row[j..]);
+                    sum += coefficients[i - 1] * new Vector<double>(d[(((k - i) * stride) + j)..]);
                 }
+
+                sum.CopyTo(row[j..]);
             }
         }
 
