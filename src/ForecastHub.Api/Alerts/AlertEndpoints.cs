@@ -2,6 +2,7 @@ using System.Globalization;
 using System.Text.Json;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Forecasts;
+using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Storage.Alerts;
 using Microsoft.AspNetCore.Http.HttpResults;
@@ -31,7 +32,7 @@ public static class AlertEndpoints
     }
 
     public static async Task<Results<Ok<AlertList>, ProblemHttpResult>> List(
-        IAlertStore alerts, [FromQuery] string? after, [FromQuery] string? limit, CancellationToken cancellationToken)
+        IAlertStore alerts, [FromQuery] string? after, [FromQuery, QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = MaxPageSize, Default = DefaultPageSize)] string? limit, CancellationToken cancellationToken)
     {
         var pageSize = DefaultPageSize;
         if (limit is not null && (!int.TryParse(limit, NumberStyles.None, CultureInfo.InvariantCulture, out pageSize) || pageSize is < 1 or > MaxPageSize))

@@ -34,7 +34,13 @@ public static class ForecastEndpoints
     /// <param name="unit">Temperature unit of the answer and of the thresholds: C (default), F or K.</param>
     /// <param name="format">json (default) or csv; <c>Accept: text/csv</c> also asks for CSV.</param>
     public static async Task<Results<SerializedOk<ForecastResponse>, Ok<ForecastResponse>, ContentHttpResult, ProblemHttpResult>> GetForecast(
-        string siteId, string? steps, string? levels, string? below, string? above, string? unit, string? format,
+        string siteId,
+        [QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = ForecastQuery.MaxHourlySteps)] string? steps,
+        [QueryValue(QueryValueKind.NumberList, Minimum = 0, Maximum = 100, ExclusiveBounds = true, MaxItems = ForecastQuery.MaxLevels, Default = "80,95")] string? levels,
+        [QueryValue(QueryValueKind.NumberList, MaxItems = ForecastQuery.MaxThresholds)] string? below,
+        [QueryValue(QueryValueKind.NumberList, MaxItems = ForecastQuery.MaxThresholds)] string? above,
+        [QueryValue(QueryValueKind.Choice, Values = [TemperatureUnits.Celsius, TemperatureUnits.Fahrenheit, TemperatureUnits.Kelvin], Default = TemperatureUnits.Celsius)] string? unit,
+        [QueryValue(QueryValueKind.Choice, Values = ["json", "csv"], Default = "json")] string? format,
         HttpRequest request, ISiteStore sites, ForecastService forecasts, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
@@ -103,7 +109,8 @@ public static class ForecastEndpoints
     /// <param name="steps">Grid steps ahead: 1-240 hourly (default 48), 1-14 daily (default 3).</param>
     /// <param name="unit">Temperature unit of the axis: C (default), F or K.</param>
     public static async Task<Results<ContentHttpResult, ProblemHttpResult>> GetForecastChart(
-        string siteId, string? steps, string? unit, HttpRequest request, ISiteStore sites, ForecastService forecasts, SiteGridLoader grids,
+        string siteId, [QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = ForecastQuery.MaxHourlySteps)] string? steps,
+        [QueryValue(QueryValueKind.Choice, Values = [TemperatureUnits.Celsius, TemperatureUnits.Fahrenheit, TemperatureUnits.Kelvin], Default = TemperatureUnits.Celsius)] string? unit, HttpRequest request, ISiteStore sites, ForecastService forecasts, SiteGridLoader grids,
         TimeProvider clock, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(grids);

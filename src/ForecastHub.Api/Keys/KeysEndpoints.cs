@@ -3,6 +3,7 @@ using System.Text.Json;
 using System.Text.RegularExpressions;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Hosting;
+using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
 using ForecastHub.Storage.Keys;
@@ -81,7 +82,7 @@ public static partial class KeysEndpoints
     }
 
     public static async Task<Results<Ok<KeyList>, ProblemHttpResult>> List(
-        IApiKeyStore keys, [FromQuery] string? after, [FromQuery] string? limit, CancellationToken cancellationToken)
+        IApiKeyStore keys, [FromQuery] string? after, [FromQuery, QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = MaxPageSize, Default = DefaultPageSize)] string? limit, CancellationToken cancellationToken)
     {
         var pageSize = DefaultPageSize;
         if (limit is not null && (!int.TryParse(limit, out pageSize) || pageSize < 1 || pageSize > MaxPageSize))

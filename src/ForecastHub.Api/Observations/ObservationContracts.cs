@@ -1,4 +1,5 @@
 using ForecastHub.Storage.Readings;
+using ForecastHub.Api.OpenApi;
 using Microsoft.AspNetCore.Mvc;
 
 namespace ForecastHub.Api.Observations;
@@ -46,10 +47,10 @@ public sealed record ReadingBody(string Time, double Value);
 public sealed record IngestQuery
 {
     /// <summary>Unit of values without their own: C (default), F or K.</summary>
-    [FromQuery(Name = "unit")] public string? Unit { get; init; }
+    [FromQuery(Name = "unit"), QueryValue(QueryValueKind.Choice, Values = [TemperatureUnits.Celsius, TemperatureUnits.Fahrenheit, TemperatureUnits.Kelvin], Default = TemperatureUnits.Celsius)] public string? Unit { get; init; }
 
     /// <summary>reject (default) or replace: what a different value for a stored time does.</summary>
-    [FromQuery(Name = "onConflict")] public string? OnConflict { get; init; }
+    [FromQuery(Name = "onConflict"), QueryValue(QueryValueKind.Choice, Values = ["reject", "replace"], Default = "reject")] public string? OnConflict { get; init; }
 
     /// <summary>CSV: the time column, by header name or 1-based position (default 'time').</summary>
     [FromQuery(Name = "timeColumn")] public string? TimeColumn { get; init; }
@@ -61,10 +62,10 @@ public sealed record IngestQuery
     [FromQuery(Name = "unitColumn")] public string? UnitColumn { get; init; }
 
     /// <summary>CSV: the field separator, ',' (default), ';' or 'tab'.</summary>
-    [FromQuery(Name = "separator")] public string? Separator { get; init; }
+    [FromQuery(Name = "separator"), QueryValue(QueryValueKind.Choice, Values = [",", ";", "tab"], Default = ",")] public string? Separator { get; init; }
 
     /// <summary>CSV: the decimal mark, '.' (default) or ','.</summary>
-    [FromQuery(Name = "decimal")] public string? DecimalMark { get; init; }
+    [FromQuery(Name = "decimal"), QueryValue(QueryValueKind.Choice, Values = [".", ","], Default = ".")] public string? DecimalMark { get; init; }
 
     /// <summary>true: times without an offset are wall-clock times of the site's zone (see the README for repeated hours).</summary>
     [FromQuery(Name = "localTimes")] public bool? LocalTimes { get; init; }

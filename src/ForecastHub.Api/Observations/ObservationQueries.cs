@@ -7,7 +7,9 @@ using ForecastHub.Core.Settings;
 using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
+using ForecastHub.Api.OpenApi;
 using Microsoft.AspNetCore.Http.HttpResults;
+using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.WebUtilities;
 
 namespace ForecastHub.Api.Observations;
@@ -15,7 +17,13 @@ namespace ForecastHub.Api.Observations;
 /// <summary>Query of <c>GET .../observations</c>: <c>from</c> (inclusive) and <c>to</c> (exclusive)
 /// ISO 8601 instants, <c>resolution=raw|grid</c>, <c>limit</c> (1..10000, default 1000),
 /// <c>cursor</c> (from a <c>next</c> link) and <c>format=json|csv</c> (or <c>Accept: text/csv</c>).</summary>
-public sealed record ObservationQuery(string? From, string? To, string? Resolution, string? Limit, string? Cursor, string? Format);
+public sealed record ObservationQuery(
+    [FromQuery(Name = "from"), QueryValue(QueryValueKind.DateTime)] string? From,
+    [FromQuery(Name = "to"), QueryValue(QueryValueKind.DateTime)] string? To,
+    [FromQuery(Name = "resolution"), QueryValue(QueryValueKind.Choice, Values = ["raw", "grid"], Default = "raw")] string? Resolution,
+    [FromQuery(Name = "limit"), QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = ObservationQueries.MaxLimit, Default = ObservationQueries.DefaultLimit)] string? Limit,
+    [FromQuery(Name = "cursor")] string? Cursor,
+    [FromQuery(Name = "format"), QueryValue(QueryValueKind.Choice, Values = ["json", "csv"], Default = "json")] string? Format);
 
 public static class ObservationQueries
 {

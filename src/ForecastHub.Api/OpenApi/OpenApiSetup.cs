@@ -34,6 +34,7 @@ public static class OpenApiSetup
                     "or read (every read). Reads need no key when the service runs with Auth:AllowAnonymousRead=true.",
             });
             options.OperationFilter<ProblemResponsesFilter>();
+            options.OperationFilter<QueryValuesFilter>();
             options.DocumentFilter<MetricsDocumentFilter>();
             var defaultSchemaId = options.SchemaGeneratorOptions.SchemaIdSelector;
             options.SchemaGeneratorOptions.SchemaIdSelector = type => SchemaId(type, defaultSchemaId);

@@ -3,6 +3,7 @@ using System.Text.Json;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Hosting;
+using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Storage.Sites;
 using Microsoft.AspNetCore.Http.HttpResults;
@@ -63,7 +64,7 @@ public static class SitesEndpoints
     }
 
     public static async Task<Results<Ok<SiteList>, ProblemHttpResult>> List(
-        ISiteStore sites, ModelHealthService health, [FromQuery] string? after, [FromQuery] string? limit, CancellationToken cancellationToken)
+        ISiteStore sites, ModelHealthService health, [FromQuery] string? after, [FromQuery, QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = MaxPageSize, Default = DefaultPageSize)] string? limit, CancellationToken cancellationToken)
     {
         var pageSize = DefaultPageSize;
         if (limit is not null && (!int.TryParse(limit, out pageSize) || pageSize < 1 || pageSize > MaxPageSize))

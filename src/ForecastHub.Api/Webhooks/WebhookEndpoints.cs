@@ -2,6 +2,7 @@ using System.Globalization;
 using System.Text.RegularExpressions;
 using ForecastHub.Api.Auth;
 using ForecastHub.Api.Hosting;
+using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Api.Sites;
 using ForecastHub.Storage.Webhooks;
@@ -78,7 +79,7 @@ public static partial class WebhookEndpoints
     }
 
     public static async Task<Results<Ok<WebhookList>, ProblemHttpResult>> List(
-        IWebhookStore webhooks, [FromQuery] string? after, [FromQuery] string? limit, CancellationToken cancellationToken)
+        IWebhookStore webhooks, [FromQuery] string? after, [FromQuery, QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = MaxPageSize, Default = DefaultPageSize)] string? limit, CancellationToken cancellationToken)
     {
         if (PageSize(limit) is not { } pageSize)
         {
@@ -100,7 +101,7 @@ public static partial class WebhookEndpoints
         await webhooks.DeleteAsync(webhookId, cancellationToken).ConfigureAwait(false) ? TypedResults.NoContent() : NoSuchWebhook(webhookId);
 
     public static async Task<Results<Ok<DeliveryList>, ProblemHttpResult>> ListDeliveries(
-        string webhookId, IWebhookStore webhooks, [FromQuery] string? before, [FromQuery] string? limit, CancellationToken cancellationToken)
+        string webhookId, IWebhookStore webhooks, [FromQuery] string? before, [FromQuery, QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = MaxPageSize, Default = DefaultPageSize)] string? limit, CancellationToken cancellationToken)
     {
         if (PageSize(limit) is not { } pageSize)
         {

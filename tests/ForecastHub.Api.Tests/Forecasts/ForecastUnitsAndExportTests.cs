@@ -28,6 +28,19 @@ public sealed class ForecastUnitsAndExportTests
     }
 
     [Fact]
+    public async Task ParameterNamesInAnotherCaseAreReadNotRefused()
+    {
+        await using var factory = new ApiFactory();
+        using var client = factory.CreateAdminClient();
+        await client.CreateHourlySiteAsync("units");
+
+        // Binding reads names without case, so the unknown-parameter check does too: only the value is judged.
+        using var response = await client.GetAsync(new Uri("/api/v1/sites/units/forecast?Steps=0", UriKind.Relative));
+
+        await ProblemAssert.NamesField(response, HttpStatusCode.BadRequest, "steps");
+    }
+
+    [Fact]
     public async Task FahrenheitAndKelvinAnswersAreTheCelsiusAnswerConverted()
     {
         await using var factory = await FittedAsync();

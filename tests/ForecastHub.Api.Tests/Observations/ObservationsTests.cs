@@ -292,6 +292,25 @@ public sealed class ObservationsTests
     }
 
     [Fact]
+    public async Task QueryNamesAreReadWithoutRegardToCaseAsTheDocumentSpellsThemLowerCase()
+    {
+        var (factory, client) = await WithSite();
+        await using var _ = factory;
+        var readings = Some.HourlyReadings(10, Now);
+        (await client.PostReadings(readings)).Dispose();
+        var from = Uri.EscapeDataString(Some.Iso(readings[2].Time));
+        var to = Uri.EscapeDataString(Some.Iso(readings[5].Time));
+
+        var lower = await client.GetFromJsonAsync<JsonElement>(new Uri($"/api/v1/sites/orchard-1/observations?from={from}&to={to}&limit=2", UriKind.Relative));
+        var capitalised = await client.GetFromJsonAsync<JsonElement>(new Uri($"/api/v1/sites/orchard-1/observations?From={from}&TO={to}&Limit=2", UriKind.Relative));
+
+        string[] Times(JsonElement page) => [.. page.GetProperty("readings").EnumerateArray().Select(r => r.GetProperty("time").GetString()!)];
+        Assert.Equal(readings.Skip(2).Take(2).Select(r => Some.Iso(r.Time)), Times(lower));
+        Assert.Equal(Times(lower), Times(capitalised));
+        Assert.NotNull(lower.GetProperty("next").GetString());
+    }
+
+    [Fact]
     public async Task GridAveragesEachHourInterpolatesShortGapsAndLeavesLongGapsEmpty()
     {
         var (factory, client) = await WithSite();

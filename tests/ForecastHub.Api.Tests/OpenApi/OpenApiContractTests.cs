@@ -80,6 +80,30 @@ public sealed class OpenApiContractTests
     }
 
     [Fact]
+    public async Task QueryParametersAreLowerCaseAndTypedAsTheHandlersParseThem()
+    {
+        var document = JsonNode.Parse(await ServedDocument())!;
+        // Opaque cursors and CSV column names (a header name or a position) are text.
+        string[] text = ["after", "before", "cursor", "timeColumn", "valueColumn", "unitColumn"];
+
+        var parameters = Operations(document)
+            .SelectMany(o => (o.Operation["parameters"]?.AsArray() ?? []).Where(p => (string?)p!["in"] == "query").Select(p => (o.Name, Parameter: p!)))
+            .ToList();
+
+        Assert.NotEmpty(parameters);
+        foreach (var (operation, parameter) in parameters)
+        {
+            var name = (string)parameter["name"]!;
+            var schema = parameter["schema"]!;
+            Assert.True(char.IsLower(name[0]), $"{operation}: query parameter '{name}' is not spelt as clients send it");
+            var typed = (string?)schema["type"] != "string" || schema["format"] is not null || schema["enum"] is not null;
+            Assert.True(typed || text.Contains(name), $"{operation}: query parameter '{name}' is a plain string");
+        }
+        var limit = parameters.Single(p => p.Name == "GET /api/v1/sites/{siteId}/observations" && (string?)p.Parameter["name"] == "limit").Parameter["schema"]!;
+        Assert.Equal(("integer", 1, 10_000, 1_000), ((string?)limit["type"], (int)limit["minimum"]!, (int)limit["maximum"]!, (int)limit["default"]!));
+    }
+
+    [Fact]
     public async Task DocumentDescribesEveryApiEndpointAndTheBearerScheme()
     {
         await using var factory = new ApiFactory();
