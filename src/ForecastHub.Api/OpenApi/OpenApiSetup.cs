@@ -35,7 +35,9 @@ public static class OpenApiSetup
             });
             options.OperationFilter<ProblemResponsesFilter>();
             options.OperationFilter<QueryValuesFilter>();
+            options.OperationFilter<CsvRequestBodyFilter>();
             options.DocumentFilter<MetricsDocumentFilter>();
+            options.DocumentFilter<ProblemTypesDocumentFilter>();
             var defaultSchemaId = options.SchemaGeneratorOptions.SchemaIdSelector;
             options.SchemaGeneratorOptions.SchemaIdSelector = type => SchemaId(type, defaultSchemaId);
             options.SupportNonNullableReferenceTypes();
