@@ -1,4 +1,3 @@
-using System.Text.Json;
 using ForecastHub.Api.Models;
 using ForecastHub.Api.Verification;
 using ForecastHub.Core.Health;
@@ -16,6 +15,7 @@ namespace ForecastHub.Api.Health;
 public sealed class ModelHealthService(
     ISiteStore sites,
     IModelStore models,
+    ModelService serving,
     IReadingSummaryStore readingSummaries,
     IForecastArchive archive,
     IOptions<HealthOptions> options,
@@ -36,6 +36,13 @@ public sealed class ModelHealthService(
         var summary = await readingSummaries.GetAsync(site.Id, cancellationToken) ?? new ReadingSummary(null, 0, 0, 0);
         var model = await models.GetSummaryAsync(site.Id, cancellationToken);
         var attempt = await models.GetLastAttemptAsync(site.Id, cancellationToken);
+        // A stored model this build cannot read serves nothing: judged as no model, with the reason said.
+        var unreadable = model is null ? null : await serving.FindUnreadableAsync(site, model.FittedAt, cancellationToken);
+        if (unreadable is not null)
+        {
+            model = null;
+        }
+
         var isDaily = site.IsDaily;
 
         // Grid points matter only before the first fit (warming-up); they are counted in the index, not read.
@@ -56,6 +63,7 @@ public sealed class ModelHealthService(
             GridPoints = gridPoints,
             LastObservationAt = summary.LastObservationAt,
             ModelFittedAt = model?.FittedAt,
+            UnservableModel = unreadable?.Describe(),
             ModelDataEnd = model?.DataEnd,
             LastFitFailedAt = attempt is { Failed: true } ? attempt.AttemptedAt : null,
             LastFitError = attempt?.Error,
@@ -75,8 +83,7 @@ public sealed class ModelHealthService(
     {
         var from = DateOnly.FromDateTime(now.UtcDateTime).AddDays(-liveOptions.Value.WindowDays);
         var stored = await archive.ListScoresAsync(siteId, from, liveOptions.Value.WindowDays + 1, cancellationToken);
-        var days = stored.Select(s => JsonSerializer.Deserialize<DayScore>(s.ScoresJson, LiveScoreOptions.Json)!)
-            .Where(d => d.Points.Count > 0).ToList();
+        var days = DayScore.ReadStored(stored).Where(d => d.Points.Count > 0).ToList();
         return new LiveWindow(days.Count, DayScore.Pool(days));
     }
 

@@ -33,6 +33,11 @@ public static class ModelEndpoints
         }
 
         var model = await models.GetAsync(site, cancellationToken);
+        if (model is null && models.KnownUnreadable(site) is { } unreadable)
+        {
+            return ApiProblems.NotFound($"Site '{siteId}' has no model this build can serve. {unreadable.Describe()}");
+        }
+
         if (model is null)
         {
             return ApiProblems.NotFound($"Site '{siteId}' has no fitted model yet; it is fitted once it has {models.MinPoints(site)} grid points, or on POST .../model/refit.");

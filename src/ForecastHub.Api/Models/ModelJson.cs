@@ -1,23 +1,17 @@
-using System.Text.Json;
-using System.Text.Json.Serialization;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Modeling;
 
 namespace ForecastHub.Api.Models;
 
-/// <summary>The stored JSON form of the core's <see cref="SiteModel"/>.</summary>
+/// <summary>The stored form of the core's <see cref="SiteModel"/>; the unversioned JSON of earlier builds (enums as integers) counts as format 1.</summary>
 public static class ModelJson
 {
-    // The model carries NaN in places (an undefined statistic); named literals keep it round-trippable.
-    private static readonly JsonSerializerOptions Json = new()
-    {
-        NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals,
-    };
+    public static readonly StoredFormat<SiteModel> Format = new("model", version: 2);
 
-    public static string Write(SiteModel model) => JsonSerializer.Serialize(model, Json);
+    public static string Write(SiteModel model) => Format.Write(model);
 
-    public static SiteModel Read(string json) =>
-        JsonSerializer.Deserialize<SiteModel>(json, Json) ?? throw new InvalidOperationException("A stored model is empty.");
+    /// <summary>Null when the text is of another format (older or newer): such a model is refitted, never read.</summary>
+    public static SiteModel? TryRead(string json, out int? format) => Format.TryRead(json, out var model, out format) ? model : null;
 }
 
 /// <summary>What the modeling pipeline produced for the store.</summary>

@@ -29,6 +29,7 @@ public sealed partial class ModelService(
     IModelStore store,
     SiteGridLoader grids,
     SiteVersions versions,
+    RefitQueue refits,
     ServiceMetrics metrics,
     IOptions<HealthOptions> healthOptions,
     IOptions<RefitOptions> refitOptions,
@@ -38,6 +39,9 @@ public sealed partial class ModelService(
     private readonly ConcurrentDictionary<string, ServingModel> loaded = new(StringComparer.Ordinal);
     private readonly ConcurrentDictionary<string, SemaphoreSlim> siteLocks = new(StringComparer.Ordinal);
     private readonly ConcurrentDictionary<string, TaskCompletionSource<RefitOutcome>> waiters = new(StringComparer.Ordinal);
+
+    // Sites whose stored model (this incarnation, this fit) is of a format this build does not read; each got one forced refit request.
+    private readonly ConcurrentDictionary<string, UnreadableModel> unreadable = new(StringComparer.Ordinal);
 
     // Moved by every Forget: a model read from storage before a forget is served but not kept.
     private long generation;
@@ -76,7 +80,21 @@ public sealed partial class ModelService(
             return null;
         }
 
-        var model = ServingModel.From(stored, ModelJson.Read(stored.ModelJson));
+        var parsed = ModelJson.TryRead(stored.ModelJson, out var format);
+        if (parsed is null)
+        {
+            var found = new UnreadableModel(stored.SiteKey, stored.FittedAt, format);
+            if (!unreadable.TryGetValue(site.Id, out var known) || known != found)
+            {
+                unreadable[site.Id] = found;
+                LogUnreadableModel(logger, site.Id, ModelJson.Format.Describe(format), ModelJson.Format.Version);
+                refits.Enqueue(site.Id, force: true);
+            }
+
+            return null;
+        }
+
+        var model = ServingModel.From(stored, parsed);
         if (seen != Interlocked.Read(ref generation))
         {
             return model;
@@ -85,6 +103,27 @@ public sealed partial class ModelService(
         MakeRoom();
         return loaded.AddOrUpdate(site.Id, model, (_, held) => held.Stored.SiteKey == site.Key ? held : model);
     }
+
+    /// <summary>The site's stored model (fitted at <paramref name="fittedAt"/>) when it is of a format this build does not read, so it serves nothing until the queued refit replaces it; null when it is readable.</summary>
+    public async Task<UnreadableModel?> FindUnreadableAsync(SiteRecord site, DateTimeOffset fittedAt, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        if (loaded.TryGetValue(site.Id, out var held) && held.Stored.SiteKey == site.Key && held.Stored.FittedAt == fittedAt)
+        {
+            return null;
+        }
+
+        if (!unreadable.ContainsKey(site.Id))
+        {
+            await GetAsync(site, cancellationToken);
+        }
+
+        return unreadable.TryGetValue(site.Id, out var bad) && bad.SiteKey == site.Key && bad.FittedAt == fittedAt ? bad : null;
+    }
+
+    /// <summary>The unreadable stored model <see cref="GetAsync"/> last met for this site, if that is why it answered null.</summary>
+    public UnreadableModel? KnownUnreadable(SiteRecord site) =>
+        site is not null && unreadable.TryGetValue(site.Id, out var bad) && bad.SiteKey == site.Key ? bad : null;
 
     /// <summary>Grid points a site needs before its first fit.</summary>
     public int MinPoints(SiteRecord site) =>
@@ -179,6 +218,7 @@ public sealed partial class ModelService(
         }
 
         var serving = ServingModel.From(stored, fitted.Model);
+        unreadable.TryRemove(site.Id, out _);
 
         // Set (not added) under the site's lock, so a lazy load of the older stored model cannot win.
         MakeRoom();
@@ -217,12 +257,17 @@ public sealed partial class ModelService(
         if (siteId is null)
         {
             loaded.Clear();
+            unreadable.Clear();
         }
         else
         {
             loaded.TryRemove(siteId, out _);
+            unreadable.TryRemove(siteId, out _);
         }
     }
+
+    [LoggerMessage(Level = LogLevel.Warning, Message = "The stored model of site {SiteId} is of {Found}; this build reads format {Version}, so it serves nothing and a refit is queued")]
+    private static partial void LogUnreadableModel(ILogger logger, string siteId, string found, int version);
 
     [LoggerMessage(Level = LogLevel.Information, Message = "Fit of site {SiteId} ({Reason}) discarded: the site was deleted while it ran")]
     private static partial void LogFitDiscarded(ILogger logger, string siteId, RefitReason reason);
@@ -232,6 +277,12 @@ public sealed partial class ModelService(
 
     [LoggerMessage(Level = LogLevel.Information, Message = "Fitted site {SiteId} ({Reason}) in {DurationMs} ms on {Points} grid points")]
     private static partial void LogFitted(ILogger logger, string siteId, RefitReason reason, double durationMs, int points);
+}
+
+/// <summary>A stored model of a format this build does not read: the incarnation and fit it belongs to, and its format (null: the unversioned first one).</summary>
+public sealed record UnreadableModel(long SiteKey, DateTimeOffset FittedAt, int? Format)
+{
+    public string Describe() => $"The stored model was written in {ModelJson.Format.Describe(Format)}, which this build (format {ModelJson.Format.Version}) does not read; it serves nothing and a refit is queued.";
 }
 
 /// <summary>A stored model's facts with its parsed form, ready to forecast; the JSON text is not kept (<c>Stored.ModelJson</c> is empty).</summary>

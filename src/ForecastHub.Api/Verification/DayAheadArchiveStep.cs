@@ -1,5 +1,4 @@
 using System.Collections.Concurrent;
-using System.Text.Json;
 using ForecastHub.Api.Forecasts;
 using ForecastHub.Api.Models;
 using ForecastHub.Core.Grid;
@@ -11,7 +10,11 @@ using Microsoft.Extensions.Options;
 namespace ForecastHub.Api.Verification;
 
 /// <summary>The forecast of one archived day: levels as fractions, and the steps that fall on the day.</summary>
-public sealed record ArchivedDay(IReadOnlyList<double> Levels, IReadOnlyList<ArchivedStep> Steps);
+public sealed record ArchivedDay(IReadOnlyList<double> Levels, IReadOnlyList<ArchivedStep> Steps)
+{
+    /// <summary>The stored form of an archived day; the unversioned JSON of earlier builds counts as format 1.</summary>
+    public static readonly StoredFormat<ArchivedDay> Format = new("day", version: 2);
+}
 
 public sealed record ArchivedStep(DateTimeOffset Time, double Mean, double Sd, IReadOnlyList<double> Lower, IReadOnlyList<double> Upper);
 
@@ -86,7 +89,7 @@ public sealed class DayAheadArchiveStep(
             return;
         }
 
-        var json = JsonSerializer.Serialize(new ArchivedDay(Levels, daySteps), LiveScoreOptions.Json);
+        var json = ArchivedDay.Format.Write(new ArchivedDay(Levels, daySteps));
         // Refused when the site was deleted (and perhaps created again) since the sweep read it.
         await archive.ArchiveAsync(new ArchivedForecast(site.Id, site.Key, target, now, forecast.LastData, model.Stored.FittedAt, json), cancellationToken);
         archivedThrough[site.Id] = (site.Key, target);
@@ -105,7 +108,17 @@ public sealed class DayAheadArchiveStep(
                 break;
             }
 
-            var day = JsonSerializer.Deserialize<ArchivedDay>(archived.ForecastJson, LiveScoreOptions.Json)!;
+            if (!ArchivedDay.Format.TryRead(archived.ForecastJson, out var day, out _))
+            {
+                // A day archived in another format (older or newer build) is scored empty and left alone, never misread.
+                if (!await SaveScoreAsync(site, new DayScore(archived.TargetDate, archived.IssuedAt, [], []), now, cancellationToken))
+                {
+                    return;
+                }
+
+                continue;
+            }
+
             var score = await ScoreAsync(site, model, archived, day, dayStart, dayEnd, cancellationToken);
             var observedShare = day.Steps.Count == 0 ? 0 : (double)score.Points.Count / day.Steps.Count;
             if (observedShare < options.Value.MinObservedShare && now - dayEnd < GiveUpAfter)
@@ -118,13 +131,23 @@ public sealed class DayAheadArchiveStep(
                 score = score with { Points = [] };
             }
 
-            if (!await archive.SaveScoreAsync(new LiveScore(site.Id, site.Key, archived.TargetDate, now, JsonSerializer.Serialize(score, LiveScoreOptions.Json)), cancellationToken))
+            if (!await SaveScoreAsync(site, score, now, cancellationToken))
             {
                 return;
             }
-
-            versions.ModelChanged(site.Id);
         }
+    }
+
+    /// <summary>False when the site was deleted (and perhaps created again) since the sweep read it.</summary>
+    private async Task<bool> SaveScoreAsync(SiteRecord site, DayScore score, DateTimeOffset now, CancellationToken cancellationToken)
+    {
+        if (!await archive.SaveScoreAsync(new LiveScore(site.Id, site.Key, score.Date, now, DayScore.Format.Write(score)), cancellationToken))
+        {
+            return false;
+        }
+
+        versions.ModelChanged(site.Id);
+        return true;
     }
 
     private async Task<DayScore> ScoreAsync(SiteRecord site, ServingModel model, ArchivedForecast archived, ArchivedDay day,

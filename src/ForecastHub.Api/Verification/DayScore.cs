@@ -1,4 +1,6 @@
+using ForecastHub.Api.Models;
 using ForecastHub.Core.Verification;
+using ForecastHub.Storage.Verification;
 
 namespace ForecastHub.Api.Verification;
 
@@ -19,6 +21,13 @@ public sealed record ScoredPoint(
 /// </summary>
 public sealed record DayScore(DateOnly Date, DateTimeOffset IssuedAt, IReadOnlyList<double> Levels, IReadOnlyList<ScoredPoint> Points)
 {
+    /// <summary>The stored form of a day's score; the unversioned JSON of earlier builds counts as format 1.</summary>
+    public static readonly StoredFormat<DayScore> Format = new("score", version: 2);
+
+    /// <summary>The stored scores this build reads; a score of another format (older or newer) is left out of every window, never misread.</summary>
+    public static List<DayScore> ReadStored(IEnumerable<LiveScore> stored) =>
+        [.. stored.Select(s => Format.TryRead(s.ScoresJson, out var day, out _) ? day : null).OfType<DayScore>()];
+
     /// <summary>Scores of the pooled pairs of <paramref name="days"/> (one horizon: day-ahead); null when no pair can be scored.</summary>
     public static HorizonScores? Pool(IReadOnlyCollection<DayScore> days)
     {

@@ -1,5 +1,3 @@
-using System.Text.Json;
-
 namespace ForecastHub.Api.Verification;
 
 /// <summary>Configuration section <c>LiveScores</c>: the recent window live skill and coverage are judged over.</summary>
@@ -13,9 +11,4 @@ public sealed class LiveScoreOptions
     /// <summary>A day counts as observed once this share of its grid points has a value.</summary>
     public double MinObservedShare { get; set; } = 0.75;
 
-    // Persistence is NaN where yesterday's value is missing; named literals keep it in the stored JSON.
-    internal static JsonSerializerOptions Json { get; } = new(JsonSerializerDefaults.Web)
-    {
-        NumberHandling = System.Text.Json.Serialization.JsonNumberHandling.AllowNamedFloatingPointLiterals,
-    };
 }

@@ -1,5 +1,4 @@
 using System.Collections.Concurrent;
-using System.Text.Json;
 using ForecastHub.Api.Models;
 using ForecastHub.Core.Verification;
 using ForecastHub.Storage.Sites;
@@ -65,7 +64,7 @@ public sealed class VerificationService(
 
         var from = DateOnly.FromDateTime(now.UtcDateTime).AddDays(-MaxLiveDays);
         var stored = await archive.ListScoresAsync(site.Id, from, MaxLiveDays, cancellationToken);
-        var scoredDays = stored.Select(s => JsonSerializer.Deserialize<DayScore>(s.ScoresJson, LiveScoreOptions.Json)!).ToList();
+        var scoredDays = DayScore.ReadStored(stored);
         var scored = scoredDays.Where(d => d.Points.Count > 0).ToList();
         var pooled = DayScore.Pool(scored);
         var daily = scoredDays.Select(d =>

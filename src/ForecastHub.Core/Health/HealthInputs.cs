@@ -18,6 +18,9 @@ public sealed record HealthInputs
 
     public DateTimeOffset? ModelFittedAt { get; init; }
 
+    /// <summary>Set when a stored model exists but serves nothing (a format this build does not read): the sentence saying so; a refit is due.</summary>
+    public string? UnservableModel { get; init; }
+
     /// <summary>Time of the newest grid point the serving model was fitted on.</summary>
     public DateTimeOffset? ModelDataEnd { get; init; }
 

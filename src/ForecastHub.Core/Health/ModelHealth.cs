@@ -57,6 +57,11 @@ public static class ModelHealth
                 HealthState.Stale));
         }
 
+        if (i.UnservableModel is { } why)
+        {
+            reasons.Add(new(HealthReasonCode.ModelOutdated, why, HealthState.Stale));
+        }
+
         var newerDataExists = i.LastObservationAt is { } obs && i.ModelDataEnd is { } end && obs > end;
         if (i.ModelFittedAt is { } fitted && newerDataExists && i.Now - fitted > o.ModelMaxAge)
         {
