@@ -1,3 +1,5 @@
+using ForecastHub.Storage.Alerts;
+using ForecastHub.Storage.Webhooks;
 using ForecastHub.Storage.Contract;
 using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Keys;
@@ -24,6 +26,8 @@ internal sealed class SqliteBackend : IStorageBackend
         Models = new SqliteModelStore(database.Database);
         Archive = new SqliteForecastArchive(database.Database);
         Keys = new SqliteApiKeyStore(database.Database);
+        Webhooks = new SqliteWebhookStore(database.Database);
+        Alerts = new SqliteAlertStore(database.Database);
     }
 
     public IStorageSchema Schema { get; }
@@ -39,6 +43,10 @@ internal sealed class SqliteBackend : IStorageBackend
     public IForecastArchive Archive { get; }
 
     public IApiKeyStore Keys { get; }
+
+    public IWebhookStore Webhooks { get; }
+
+    public IAlertStore Alerts { get; }
 
     public static async Task<IStorageBackend> CreateAsync(TimeProvider clock)
     {
@@ -81,6 +89,11 @@ public sealed class SqliteForecastArchiveContractTests : ForecastArchiveContract
 }
 
 public sealed class SqliteApiKeyStoreContractTests : ApiKeyStoreContract
+{
+    protected override Task<IStorageBackend> CreateBackendAsync(TimeProvider clock) => SqliteBackend.CreateAsync(clock);
+}
+
+public sealed class SqliteWebhookAndAlertStoreContractTests : WebhookAndAlertStoreContract
 {
     protected override Task<IStorageBackend> CreateBackendAsync(TimeProvider clock) => SqliteBackend.CreateAsync(clock);
 }

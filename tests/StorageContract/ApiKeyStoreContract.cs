@@ -90,4 +90,42 @@ public abstract class ApiKeyStoreContract : StorageContract
         Assert.Equal(["key-0000000000000001", "key-0000000000000002", "key-0000000000000004"],
             (await Backend.Keys.ListAsync(null, 10)).Select(k => k.Id));
     }
+    [Fact]
+    public async Task TheLastActiveAdminKeyIsKeptWhenAskedAndOthersAreRevoked()
+    {
+        await Backend.Keys.CreateAsync(Key("key-0000000000000001"));
+        await Backend.Keys.CreateAsync(Key("key-0000000000000002"));
+        await Backend.Keys.CreateAsync(Key("key-0000000000000003", "read"));
+
+        Assert.Equal(KeyRevocationOutcome.Revoked, (await Backend.Keys.RevokeAsync("key-0000000000000001", Start, keepAnActiveAdmin: true))!.Outcome);
+        var last = await Backend.Keys.RevokeAsync("key-0000000000000002", Start, keepAnActiveAdmin: true);
+        Assert.Equal((KeyRevocationOutcome.LastActiveAdmin, null), (last!.Outcome, last.Key.RevokedAt));
+        Assert.True(await Backend.Keys.HasActiveAdminAsync());
+        Assert.Equal(KeyRevocationOutcome.Revoked, (await Backend.Keys.RevokeAsync("key-0000000000000003", Start, keepAnActiveAdmin: true))!.Outcome);
+        Assert.Equal(KeyRevocationOutcome.AlreadyRevoked, (await Backend.Keys.RevokeAsync("key-0000000000000001", Start, keepAnActiveAdmin: true))!.Outcome);
+        Assert.Null(await Backend.Keys.RevokeAsync("key-ffffffffffffffff", Start, keepAnActiveAdmin: true));
+    }
+
+    [Fact]
+    public async Task TwoAdminKeysRevokedAtOnceWhileKeepingAnAdminLeaveOneActive()
+    {
+        // Each round: the last two admin keys are revoked at the same moment (as through two nodes); exactly one goes.
+        for (var round = 0; round < 20; round++)
+        {
+            var ids = new[] { $"key-{round:x8}0000000a", $"key-{round:x8}0000000b" };
+            foreach (var id in ids)
+            {
+                await Backend.Keys.CreateAsync(Key(id));
+            }
+
+            var outcomes = await Task.WhenAll(ids.Select(id => Task.Run(() => Backend.Keys.RevokeAsync(id, Start, keepAnActiveAdmin: true))));
+
+            Assert.Equal([KeyRevocationOutcome.Revoked, KeyRevocationOutcome.LastActiveAdmin], outcomes.Select(o => o!.Outcome).Order());
+            var kept = outcomes.Single(o => o!.Outcome == KeyRevocationOutcome.LastActiveAdmin)!.Key.Id;
+            Assert.True((await Backend.Keys.GetAsync(kept))!.IsActive);
+            Assert.False(await Backend.Keys.HasActiveAdminAsync(exceptId: kept));
+            // Without the request to keep one, the last admin key can be revoked (a configured key remains).
+            Assert.True((await Backend.Keys.RevokeAsync(kept, Start))!.Revoked);
+        }
+    }
 }

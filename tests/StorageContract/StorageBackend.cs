@@ -1,12 +1,14 @@
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Modeling;
 using ForecastHub.Core.Quality;
+using ForecastHub.Storage.Alerts;
 using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Keys;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Verification;
+using ForecastHub.Storage.Webhooks;
 using Microsoft.Extensions.Time.Testing;
 
 namespace ForecastHub.Storage.Contract;
@@ -31,6 +33,10 @@ public interface IStorageBackend : IAsyncDisposable
     IForecastArchive Archive { get; }
 
     IApiKeyStore Keys { get; }
+
+    IWebhookStore Webhooks { get; }
+
+    IAlertStore Alerts { get; }
 }
 
 /// <summary>The base of every contract: a backend per test, built on a fake clock the test moves.</summary>

@@ -1,3 +1,4 @@
+using ForecastHub.Api.Cluster;
 using ForecastHub.Storage.Sites;
 using Microsoft.Extensions.Options;
 
@@ -6,12 +7,15 @@ namespace ForecastHub.Api.Alerts;
 /// <summary>
 /// Runs alert evaluations: for each site queued by new data or a refit (a site already waiting is
 /// not queued twice), and for every site on a sweep every <see cref="AlertOptions.SweepMinutes"/>
-/// (and once at start), so an alert leaves even when nothing else happens.
+/// (and once at start), so an alert leaves even when nothing else happens. With several nodes each
+/// node's sweep claims a site for half a sweep period before evaluating it, so a site is swept by
+/// one node per period; a node's own claim never stops it, so a lone node sweeps every site each time.
 /// </summary>
 public sealed partial class AlertWorker(
     AlertEvaluator evaluator,
     AlertQueue queue,
     ISiteStore sites,
+    WorkLeaseRunner leases,
     IOptions<AlertOptions> options,
     TimeProvider clock,
     ILogger<AlertWorker> logger) : BackgroundService
@@ -70,7 +74,10 @@ public sealed partial class AlertWorker(
                 var page = await sites.ListAsync(after, PageSize, cancellationToken);
                 foreach (var site in page)
                 {
-                    queued += await EvaluateAsync(site, cancellationToken);
+                    if (await ClaimSweepAsync(site.Id, cancellationToken))
+                    {
+                        queued += await EvaluateAsync(site, cancellationToken);
+                    }
                 }
 
                 if (page.Count < PageSize)
@@ -105,6 +112,26 @@ public sealed partial class AlertWorker(
         {
             LogSiteFailed(logger, error, site.Id);
             return 0;
+        }
+    }
+
+    // Half a period: the next sweep of whichever node gets there first finds the claim run out.
+    private async Task<bool> ClaimSweepAsync(string siteId, CancellationToken cancellationToken)
+    {
+        try
+        {
+            return await leases.ClaimAsync("alert-sweep", siteId, TimeSpan.FromMinutes(options.Value.SweepMinutes) / 2, cancellationToken);
+        }
+        catch (OperationCanceledException) when (cancellationToken.IsCancellationRequested)
+        {
+            throw;
+        }
+#pragma warning disable CA1031 // Storage trouble with one site's claim must not stop the sweep; the site is evaluated anyway.
+        catch (Exception error)
+#pragma warning restore CA1031
+        {
+            LogSiteFailed(logger, error, siteId);
+            return true;
         }
     }
 

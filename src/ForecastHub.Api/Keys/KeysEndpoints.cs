@@ -116,22 +116,20 @@ public static partial class KeysEndpoints
         {
             return NoSuchKey(keyId);
         }
-        // Without a configured key, the last active admin key revoking itself would lock everyone out.
-        if (context.User.HasClaim(ApiKeyScopes.KeyIdClaim, keyId) && string.IsNullOrEmpty(auth.Value.AdminKey)
-            && !await keys.HasActiveAdminAsync(keyId, cancellationToken).ConfigureAwait(false))
-        {
-            return ApiProblems.Conflict($"Key '{keyId}' is the last active admin key and cannot revoke itself; create another admin key first.");
-        }
-        var revocation = await keys.RevokeAsync(keyId, clock.GetUtcNow(), cancellationToken).ConfigureAwait(false);
+        // Without a configured key, revoking the last active admin key (itself, or another in a race between nodes) would lock everyone out.
+        var keepAnActiveAdmin = string.IsNullOrEmpty(auth.Value.AdminKey);
+        var revocation = await keys.RevokeAsync(keyId, clock.GetUtcNow(), keepAnActiveAdmin, cancellationToken).ConfigureAwait(false);
         cache.Evict(keyId);
-        if (revocation is null)
+        return revocation?.Outcome switch
         {
-            return NoSuchKey(keyId);
-        }
-        return revocation.Revoked
-            ? TypedResults.NoContent()
-            : ApiProblems.Conflict(string.Create(System.Globalization.CultureInfo.InvariantCulture,
-                $"Key '{keyId}' was already revoked at {revocation.Key.RevokedAt:yyyy-MM-dd'T'HH:mm:ss'Z'}."));
+            null => NoSuchKey(keyId),
+            KeyRevocationOutcome.Revoked => TypedResults.NoContent(),
+            KeyRevocationOutcome.LastActiveAdmin => ApiProblems.Conflict(context.User.HasClaim(ApiKeyScopes.KeyIdClaim, keyId)
+                ? $"Key '{keyId}' is the last active admin key and cannot revoke itself; create another admin key first."
+                : $"Key '{keyId}' is the last active admin key and cannot be revoked; create another admin key first."),
+            _ => ApiProblems.Conflict(string.Create(System.Globalization.CultureInfo.InvariantCulture,
+                $"Key '{keyId}' was already revoked at {revocation.Key.RevokedAt:yyyy-MM-dd'T'HH:mm:ss'Z'}.")),
+        };
     }
 
     private static ProblemHttpResult NoSuchKey(string keyId) =>

@@ -7,8 +7,8 @@ namespace ForecastHub.Storage.Postgres.Keys;
 
 public sealed class PostgresApiKeyStore(PostgresDatabase database) : IApiKeyStore
 {
-    // Any fixed 64-bit number shared by every node; it names the first-admin lock (the migration lock uses another).
-    private const long FirstAdminLockId = 0x466F_7265_4875_6202;
+    // Any fixed 64-bit number shared by every node; it names the lock on the set of admin keys (the first one, the last one); the migration lock uses another.
+    private const long AdminKeysLockId = 0x466F_7265_4875_6202;
 
     private const string Columns = "id, secret_sha256, scope, site_ids, label, created_at_ms, revoked_at_ms";
 
@@ -24,7 +24,7 @@ public sealed class PostgresApiKeyStore(PostgresDatabase database) : IApiKeyStor
         return database.WriteAsync(async (connection, transaction) =>
         {
             // Nodes starting together queue on this lock until the first commits; the next then sees its key.
-            await using (var take = connection.Command(transaction, "SELECT pg_advisory_xact_lock($1);").With(FirstAdminLockId))
+            await using (var take = connection.Command(transaction, "SELECT pg_advisory_xact_lock($1);").With(AdminKeysLockId))
             {
                 await take.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
             }
@@ -81,31 +81,49 @@ public sealed class PostgresApiKeyStore(PostgresDatabase database) : IApiKeyStor
             return keys;
         }, cancellationToken);
 
-    public Task<KeyRevocation?> RevokeAsync(string id, DateTimeOffset at, CancellationToken cancellationToken = default) =>
-        database.WriteAsync(async (connection, transaction) =>
+    public Task<KeyRevocation?> RevokeAsync(string id, DateTimeOffset at, bool keepAnActiveAdmin = false, CancellationToken cancellationToken = default) =>
+        database.WriteAsync<KeyRevocation?>(async (connection, transaction) =>
         {
-            var revoked = false;
+            if (keepAnActiveAdmin)
+            {
+                // Two nodes each revoking one of the last two admin keys queue here, so the second sees the first's revocation.
+                await using var take = connection.Command(transaction, "SELECT pg_advisory_xact_lock($1);").With(AdminKeysLockId);
+                await take.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+            }
+            if (await SelectOneAsync(connection, transaction, "id", id, cancellationToken).ConfigureAwait(false) is not { } before)
+            {
+                return null;
+            }
+            if (before.RevokedAt is not null)
+            {
+                return new KeyRevocation(before, KeyRevocationOutcome.AlreadyRevoked);
+            }
+            if (keepAnActiveAdmin && before.Scope == "admin" && !await OtherActiveAdminAsync(connection, transaction, id, cancellationToken).ConfigureAwait(false))
+            {
+                return new KeyRevocation(before, KeyRevocationOutcome.LastActiveAdmin);
+            }
             await using (var revoke = connection.Command(transaction, "UPDATE api_keys SET revoked_at_ms = $2 WHERE id = $1 AND revoked_at_ms IS NULL;")
                        .With(id).With(at.ToUnixTimeMilliseconds()))
             {
-                if (await revoke.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false) == 1)
+                if (await revoke.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false) != 1)
                 {
-                    revoked = true;
-                    await new ChangeNotice(ChangeKind.Key, id).SendAsync(connection, transaction, cancellationToken).ConfigureAwait(false);
+                    // Revoked by another node between the read and the update.
+                    return new KeyRevocation((await SelectOneAsync(connection, transaction, "id", id, cancellationToken).ConfigureAwait(false))!, KeyRevocationOutcome.AlreadyRevoked);
                 }
             }
-            return await SelectOneAsync(connection, transaction, "id", id, cancellationToken).ConfigureAwait(false) is { } key
-                ? new KeyRevocation(key, revoked)
-                : null;
+            await new ChangeNotice(ChangeKind.Key, id).SendAsync(connection, transaction, cancellationToken).ConfigureAwait(false);
+            return new KeyRevocation((await SelectOneAsync(connection, transaction, "id", id, cancellationToken).ConfigureAwait(false))!, KeyRevocationOutcome.Revoked);
         }, cancellationToken);
 
     public Task<bool> HasActiveAdminAsync(string? exceptId = null, CancellationToken cancellationToken = default) =>
-        database.QueryAsync(async connection =>
-        {
-            await using var exists = connection.Command(null,
-                "SELECT EXISTS (SELECT 1 FROM api_keys WHERE scope = 'admin' AND revoked_at_ms IS NULL AND id <> $1);").With(exceptId ?? "");
-            return (bool)(await exists.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false))!;
-        }, cancellationToken);
+        database.QueryAsync(connection => OtherActiveAdminAsync(connection, null, exceptId, cancellationToken), cancellationToken);
+
+    private static async Task<bool> OtherActiveAdminAsync(NpgsqlConnection connection, NpgsqlTransaction? transaction, string? exceptId, CancellationToken cancellationToken)
+    {
+        await using var exists = connection.Command(transaction,
+            "SELECT EXISTS (SELECT 1 FROM api_keys WHERE scope = 'admin' AND revoked_at_ms IS NULL AND id <> $1);").With(exceptId ?? "");
+        return (bool)(await exists.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false))!;
+    }
 
     private static async Task<ApiKeyRecord?> SelectOneAsync(NpgsqlConnection connection, NpgsqlTransaction? transaction, string column, object value,
         CancellationToken cancellationToken)

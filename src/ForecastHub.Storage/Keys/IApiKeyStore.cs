@@ -20,13 +20,26 @@ public interface IApiKeyStore
     Task<IReadOnlyList<ApiKeyRecord>> ListAsync(string? afterId, int limit, CancellationToken cancellationToken = default);
 
     /// <summary>Marks the key revoked at <paramref name="at"/>; answers the stored key (already
-    /// revoked keys keep their first revocation time) and whether this call revoked it, or null
-    /// when it does not exist.</summary>
-    Task<KeyRevocation?> RevokeAsync(string id, DateTimeOffset at, CancellationToken cancellationToken = default);
+    /// revoked keys keep their first revocation time) and what this call did, or null when it does
+    /// not exist. With <paramref name="keepAnActiveAdmin"/>, an active admin key is left alone when no
+    /// other active admin key would remain; the check and the revocation are one step across nodes.</summary>
+    Task<KeyRevocation?> RevokeAsync(string id, DateTimeOffset at, bool keepAnActiveAdmin = false, CancellationToken cancellationToken = default);
 
     /// <summary>Whether any admin key other than <paramref name="exceptId"/> is still active.</summary>
     Task<bool> HasActiveAdminAsync(string? exceptId = null, CancellationToken cancellationToken = default);
 }
 
-/// <summary>The key after a revocation; <c>Revoked</c> is false when it had been revoked before.</summary>
-public sealed record KeyRevocation(ApiKeyRecord Key, bool Revoked);
+/// <summary>The key after a revocation, and what the revocation did.</summary>
+public sealed record KeyRevocation(ApiKeyRecord Key, KeyRevocationOutcome Outcome)
+{
+    public bool Revoked => Outcome == KeyRevocationOutcome.Revoked;
+}
+
+public enum KeyRevocationOutcome
+{
+    Revoked,
+    AlreadyRevoked,
+
+    /// <summary>Left active: it is the last active admin key.</summary>
+    LastActiveAdmin,
+}

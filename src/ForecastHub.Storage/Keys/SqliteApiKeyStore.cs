@@ -61,27 +61,41 @@ public sealed class SqliteApiKeyStore(SqliteDatabase database) : IApiKeyStore
             return keys;
         }));
 
-    public Task<KeyRevocation?> RevokeAsync(string id, DateTimeOffset at, CancellationToken cancellationToken = default) =>
+    public Task<KeyRevocation?> RevokeAsync(string id, DateTimeOffset at, bool keepAnActiveAdmin = false, CancellationToken cancellationToken = default) =>
         database.WriteAsync((connection, transaction) =>
         {
-            int changed;
+            // One writer at a time: the check below and the update see the same keys.
+            if (SelectOne(connection, transaction, "id", id) is not { } before)
+            {
+                return null;
+            }
+            if (before.RevokedAt is not null)
+            {
+                return new KeyRevocation(before, KeyRevocationOutcome.AlreadyRevoked);
+            }
+            if (keepAnActiveAdmin && before.Scope == "admin" && !OtherActiveAdmin(connection, transaction, id))
+            {
+                return new KeyRevocation(before, KeyRevocationOutcome.LastActiveAdmin);
+            }
             using (var revoke = connection.Command(transaction, "UPDATE api_keys SET revoked_at_ms = $at WHERE id = $id AND revoked_at_ms IS NULL;")
                        .With("$id", id)
                        .With("$at", at.ToUnixTimeMilliseconds()))
             {
-                changed = revoke.ExecuteNonQuery();
+                revoke.ExecuteNonQuery();
             }
-            return SelectOne(connection, transaction, "id", id) is { } key ? new KeyRevocation(key, changed == 1) : null;
+            return new KeyRevocation(SelectOne(connection, transaction, "id", id)!, KeyRevocationOutcome.Revoked);
         }, cancellationToken);
 
     public Task<bool> HasActiveAdminAsync(string? exceptId = null, CancellationToken cancellationToken = default) =>
-        Task.FromResult(database.Read((connection, transaction) =>
-        {
-            using var count = connection.Command(transaction,
-                "SELECT EXISTS (SELECT 1 FROM api_keys WHERE scope = 'admin' AND revoked_at_ms IS NULL AND id <> $except);")
-                .With("$except", exceptId ?? "");
-            return Convert.ToInt64(count.ExecuteScalar(), System.Globalization.CultureInfo.InvariantCulture) == 1;
-        }));
+        Task.FromResult(database.Read((connection, transaction) => OtherActiveAdmin(connection, transaction, exceptId)));
+
+    private static bool OtherActiveAdmin(SqliteConnection connection, SqliteTransaction transaction, string? exceptId)
+    {
+        using var exists = connection.Command(transaction,
+            "SELECT EXISTS (SELECT 1 FROM api_keys WHERE scope = 'admin' AND revoked_at_ms IS NULL AND id <> $except);")
+            .With("$except", exceptId ?? "");
+        return Convert.ToInt64(exists.ExecuteScalar(), System.Globalization.CultureInfo.InvariantCulture) == 1;
+    }
 
     private static ApiKeyRecord? SelectOne(SqliteConnection connection, SqliteTransaction transaction, string column, object value)
     {

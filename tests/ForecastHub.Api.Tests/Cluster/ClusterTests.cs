@@ -192,28 +192,20 @@ public sealed class ClusterTests
     }
 
     [Fact]
-    public async Task AFitHeldByAKilledNodeIsDoneByAnotherOnceTheLeaseRunsOut()
+    public async Task AFitHeldByADeadNodeIsDoneByAnotherOnceTheLeaseRunsOut()
     {
         var db = await PostgresServer.Shared.CreateDatabaseAsync();
         try
         {
-            // A site whose fit takes a while: two years of hourly readings, a high order limit.
-            await SeedAsync(db, ["slow"], days: 730, maxOrder: 48);
+            await SeedAsync(db, ["slow"], days: 60, maxOrder: 8);
             string[] settings = ["--Cluster:LeaseDuration=00:00:03", "--Refit:SweepInterval=00:00:01"];
 
-            var a = await ServiceProcess.StartOnPostgresAsync(db, ["--Cluster:NodeName=a", .. settings]);
-            DateTime leaseExpiry;
-            try
-            {
-                // A's start sweep takes the site's refit lease; A dies with it.
-                leaseExpiry = await WaitForLeaseAsync(db, "a");
-                await a.KillAsync();
-            }
-            finally
-            {
-                await a.DisposeAsync();
-            }
-            Assert.Equal(0, await ScalarAsync<long>(db, "SELECT count(*) FROM site_models;"));
+            // A node killed in the middle of the site's fit leaves its lease row behind, as planted here (killing a
+            // real node at that moment is a race with a fit that may finish first).
+            var leaseExpiry = await ScalarAsync<DateTime>(db, """
+                INSERT INTO work_leases (kind, subject, holder, expires_at)
+                VALUES ('refit', 'slow', 'a', clock_timestamp() + interval '4 seconds') RETURNING expires_at;
+                """);
 
             await using var b = await ServiceProcess.StartOnPostgresAsync(db, ["--Cluster:NodeName=b", .. settings]);
             using var viaB = b.CreateAdminClient();
@@ -230,7 +222,7 @@ public sealed class ClusterTests
     }
 
     [Fact]
-    public async Task TwoNodesSweepingTogetherRaiseAndSendEachRiskOnce()
+    public async Task TwoNodesSweepingTogetherEvaluateEachSiteOnceAndSendEachRiskOnce()
     {
         var db = await PostgresServer.Shared.CreateDatabaseAsync();
         await using var receiver = await Webhooks.WebhookReceiver.StartAsync();
@@ -243,6 +235,11 @@ public sealed class ClusterTests
                 await WaitUntilAsync(async () => await ScalarAsync<long>(db, "SELECT count(*) FROM site_models;") == siteIds.Count
                     && await ScalarAsync<long>(db, "SELECT count(*) FROM work_leases WHERE kind = 'refit';") == 0);
             }
+
+            // The fitter's start-up sweep claimed the sites it reached for half a period; the thresholds below
+            // are written past the API (which would queue an evaluation), so those claims are given up here.
+            Assert.True(await ScalarAsync<long>(db, "SELECT count(*) FROM work_leases WHERE kind = 'alert-sweep' AND holder = 'fitter';") > 0);
+            await ScalarAsync<long>(db, "WITH gone AS (DELETE FROM work_leases WHERE kind = 'alert-sweep' RETURNING 1) SELECT count(*) FROM gone;");
 
             // Above -40 C every sample path crosses, in both windows; both nodes find that in their start-up sweep at the same time.
             await using (var database = new PostgresDatabase(db))
@@ -277,6 +274,9 @@ public sealed class ClusterTests
                 }
                 Assert.Equal(expected, received.Count);
                 Assert.Equal(expected, received.Select(r => r.Id).Distinct().Count());
+
+                // Each site was swept by one of the two nodes: one claim per site, held by a or b.
+                Assert.Equal(siteIds.Count, await ScalarAsync<long>(db, "SELECT count(*) FROM work_leases WHERE kind = 'alert-sweep' AND holder IN ('a', 'b');"));
             }
             finally
             {
@@ -311,25 +311,6 @@ public sealed class ClusterTests
                 new ForecastHub.Core.Modeling.ModelSettings { MaxOrder = maxOrder, FitWindowDays = days }, now, now)));
             await readings.IngestAsync(id, hourly, ConflictPolicy.Reject, now);
         }
-    }
-
-    private static async Task<DateTime> WaitForLeaseAsync(string connectionString, string holder)
-    {
-        await using var connection = new NpgsqlConnection(connectionString);
-        await connection.OpenAsync();
-        var deadline = Stopwatch.StartNew();
-        while (deadline.Elapsed < Patience)
-        {
-            await using var select = new NpgsqlCommand("SELECT expires_at FROM work_leases WHERE kind = 'refit' AND holder = $1;", connection);
-            select.Parameters.Add(new NpgsqlParameter { Value = holder });
-            if (await select.ExecuteScalarAsync() is DateTime expiry)
-            {
-                return expiry;
-            }
-            // Polling another process's database row; there is no clock to advance here.
-            await Task.Delay(5);
-        }
-        throw new TimeoutException($"{holder} never took a refit lease.");
     }
 
     private static async Task<JsonElement> WaitForModelAsync(HttpClient client, long settingsVersion)

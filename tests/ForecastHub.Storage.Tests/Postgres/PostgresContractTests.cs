@@ -1,3 +1,7 @@
+using ForecastHub.Storage.Alerts;
+using ForecastHub.Storage.Webhooks;
+using ForecastHub.Storage.Postgres.Alerts;
+using ForecastHub.Storage.Postgres.Webhooks;
 using ForecastHub.Storage.Contract;
 using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Keys;
@@ -32,6 +36,8 @@ internal sealed class PostgresBackend : IStorageBackend
         Models = new PostgresModelStore(db);
         Archive = new PostgresForecastArchive(db);
         Keys = new PostgresApiKeyStore(db);
+        Webhooks = new PostgresWebhookStore(db);
+        Alerts = new PostgresAlertStore(db);
     }
 
     public IStorageSchema Schema { get; }
@@ -47,6 +53,10 @@ internal sealed class PostgresBackend : IStorageBackend
     public IForecastArchive Archive { get; }
 
     public IApiKeyStore Keys { get; }
+
+    public IWebhookStore Webhooks { get; }
+
+    public IAlertStore Alerts { get; }
 
     public static async Task<IStorageBackend> CreateAsync(TimeProvider clock)
     {
@@ -86,6 +96,11 @@ public sealed class PostgresForecastArchiveContractTests : ForecastArchiveContra
 }
 
 public sealed class PostgresApiKeyStoreContractTests : ApiKeyStoreContract
+{
+    protected override Task<IStorageBackend> CreateBackendAsync(TimeProvider clock) => PostgresBackend.CreateAsync(clock);
+}
+
+public sealed class PostgresWebhookAndAlertStoreContractTests : WebhookAndAlertStoreContract
 {
     protected override Task<IStorageBackend> CreateBackendAsync(TimeProvider clock) => PostgresBackend.CreateAsync(clock);
 }
