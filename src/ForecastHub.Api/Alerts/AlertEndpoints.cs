@@ -31,6 +31,8 @@ public static class AlertEndpoints
         return group;
     }
 
+    /// <param name="after">Where the page starts: the cursor from the previous page's <c>next</c> link; absent for the first page.</param>
+    /// <param name="limit">Most items on this page.</param>
     public static async Task<Results<Ok<AlertList>, ProblemHttpResult>> List(
         IAlertStore alerts, [FromQuery] string? after, [FromQuery, QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = MaxPageSize, Default = DefaultPageSize)] string? limit, CancellationToken cancellationToken)
     {

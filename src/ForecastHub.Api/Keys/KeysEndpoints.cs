@@ -81,6 +81,8 @@ public static partial class KeysEndpoints
             new CreatedKeyResponse(record.Id, secret, record.Scope, record.SiteIds, record.Label, record.CreatedAt));
     }
 
+    /// <param name="after">Where the page starts: the cursor from the previous page's <c>next</c> link; absent for the first page.</param>
+    /// <param name="limit">Most items on this page.</param>
     public static async Task<Results<Ok<KeyList>, ProblemHttpResult>> List(
         IApiKeyStore keys, [FromQuery] string? after, [FromQuery, QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = MaxPageSize, Default = DefaultPageSize)] string? limit, CancellationToken cancellationToken)
     {

@@ -92,7 +92,7 @@ public static class IsoTime
     /// <summary>
     /// Fast path for the common shape <c>YYYY-MM-DDTHH:MM:SS[.f{1,9}](Z|+HH:MM|-HH:MM)</c> read straight
     /// from UTF-8 (years 0002-9998): the instant in UTC milliseconds, truncated like
-    /// <see cref="TryParse"/>. False for anything else, valid or not: the caller then runs the full
+    /// <see cref="TryParse(ReadOnlySpan{char}, out DateTimeOffset, out string)"/>. False for anything else, valid or not: the caller then runs the full
     /// parser, which owns every rejection and its message.
     /// </summary>
     public static bool TryParseCommonUtf8(ReadOnlySpan<byte> s, out long utcMs)

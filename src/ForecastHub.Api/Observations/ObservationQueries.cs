@@ -14,9 +14,13 @@ using Microsoft.AspNetCore.WebUtilities;
 
 namespace ForecastHub.Api.Observations;
 
-/// <summary>Query of <c>GET .../observations</c>: <c>from</c> (inclusive) and <c>to</c> (exclusive)
-/// ISO 8601 instants, <c>resolution=raw|grid</c>, <c>limit</c> (1..10000, default 1000),
-/// <c>cursor</c> (from a <c>next</c> link) and <c>format=json|csv</c> (or <c>Accept: text/csv</c>).</summary>
+/// <summary>Query of <c>GET .../observations</c>.</summary>
+/// <param name="From">Start of the time range, inclusive: an ISO 8601 instant with an offset; absent: from the first reading.</param>
+/// <param name="To">End of the time range, exclusive: an ISO 8601 instant with an offset; absent: to the last reading.</param>
+/// <param name="Resolution">raw: the stored readings; grid: the site's regular grid (hourly means or daily values, short gaps interpolated).</param>
+/// <param name="Limit">Most readings or grid steps on this page.</param>
+/// <param name="Cursor">Where the page starts: taken from the previous page's <c>next</c> link.</param>
+/// <param name="Format">json or csv; <c>Accept: text/csv</c> also asks for CSV.</param>
 public sealed record ObservationQuery(
     [FromQuery(Name = "from"), QueryValue(QueryValueKind.DateTime)] string? From,
     [FromQuery(Name = "to"), QueryValue(QueryValueKind.DateTime)] string? To,

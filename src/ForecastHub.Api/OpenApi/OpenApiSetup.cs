@@ -33,9 +33,14 @@ public static class OpenApiSetup
                 Description = "An API key: scope admin (everything), ingest (posting observations, to all or to listed sites) " +
                     "or read (every read). Reads need no key when the service runs with Auth:AllowAnonymousRead=true.",
             });
+            // Descriptions of parameters, bodies, answers and their fields from the code's XML docs.
+            options.IncludeXmlComments(typeof(OpenApiSetup).Assembly);
             options.OperationFilter<ProblemResponsesFilter>();
             options.OperationFilter<QueryValuesFilter>();
+            options.OperationFilter<CsvRequestBodyFilter>();
+            options.OperationFilter<PathParametersFilter>();
             options.DocumentFilter<MetricsDocumentFilter>();
+            options.DocumentFilter<ProblemTypesDocumentFilter>();
             var defaultSchemaId = options.SchemaGeneratorOptions.SchemaIdSelector;
             options.SchemaGeneratorOptions.SchemaIdSelector = type => SchemaId(type, defaultSchemaId);
             options.SupportNonNullableReferenceTypes();

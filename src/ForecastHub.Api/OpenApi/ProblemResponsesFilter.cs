@@ -90,8 +90,13 @@ public sealed class ProblemResponsesFilter : IOperationFilter
     private static void Add(OpenApiOperation operation, OperationFilterContext context, int status, string description)
     {
         var code = status.ToString(System.Globalization.CultureInfo.InvariantCulture);
-        if (operation.Responses!.ContainsKey(code))
+        if (operation.Responses!.TryGetValue(code, out var existing))
         {
+            // One status, several causes (a bad query parameter or a bad body): the description names each.
+            if (existing is OpenApiResponse { Description: { } said } shared && !said.Contains(description, StringComparison.Ordinal))
+            {
+                shared.Description = $"{said} Or: {description}";
+            }
             return;
         }
         operation.Responses[code] = new OpenApiResponse

@@ -63,6 +63,8 @@ public static class SitesEndpoints
         return TypedResults.Created($"/api/v1/sites/{site.Id}", SiteResponse.From(site));
     }
 
+    /// <param name="after">Where the page starts: the cursor from the previous page's <c>next</c> link; absent for the first page.</param>
+    /// <param name="limit">Most items on this page.</param>
     public static async Task<Results<Ok<SiteList>, ProblemHttpResult>> List(
         ISiteStore sites, ModelHealthService health, [FromQuery] string? after, [FromQuery, QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = MaxPageSize, Default = DefaultPageSize)] string? limit, CancellationToken cancellationToken)
     {

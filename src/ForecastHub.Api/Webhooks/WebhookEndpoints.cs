@@ -78,6 +78,8 @@ public static partial class WebhookEndpoints
             new CreatedWebhookResponse(record.Id, record.Url, record.SiteIds, record.Events, record.Secret, record.CreatedAt));
     }
 
+    /// <param name="after">Where the page starts: the cursor from the previous page's <c>next</c> link; absent for the first page.</param>
+    /// <param name="limit">Most items on this page.</param>
     public static async Task<Results<Ok<WebhookList>, ProblemHttpResult>> List(
         IWebhookStore webhooks, [FromQuery] string? after, [FromQuery, QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = MaxPageSize, Default = DefaultPageSize)] string? limit, CancellationToken cancellationToken)
     {
@@ -100,6 +102,8 @@ public static partial class WebhookEndpoints
     public static async Task<Results<NoContent, ProblemHttpResult>> Delete(string webhookId, IWebhookStore webhooks, CancellationToken cancellationToken) =>
         await webhooks.DeleteAsync(webhookId, cancellationToken).ConfigureAwait(false) ? TypedResults.NoContent() : NoSuchWebhook(webhookId);
 
+    /// <param name="before">Where the page starts (deliveries come newest first): the cursor from the previous page's <c>next</c> link.</param>
+    /// <param name="limit">Most items on this page.</param>
     public static async Task<Results<Ok<DeliveryList>, ProblemHttpResult>> ListDeliveries(
         string webhookId, IWebhookStore webhooks, [FromQuery] string? before, [FromQuery, QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = MaxPageSize, Default = DefaultPageSize)] string? limit, CancellationToken cancellationToken)
     {

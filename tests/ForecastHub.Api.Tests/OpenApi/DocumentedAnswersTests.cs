@@ -76,6 +76,15 @@ public sealed class DocumentedAnswersTests
                 undocumented.Add($"{call.Method} {call.Path} as {call.As} answered {status} as '{mediaType}', which the document lists " +
                     $"as [{string.Join(", ", content?.Select(c => c.Key) ?? [])}]");
             }
+            else if (mediaType == "application/problem+json")
+            {
+                var type = JsonNode.Parse(await response.Content.ReadAsStringAsync())?["type"]?.GetValue<string>();
+                var documented = (string?)content!["application/problem+json"]?["example"]?["type"];
+                if (documented is null || type != documented || answer["description"]?.GetValue<string>().Contains(documented, StringComparison.Ordinal) != true)
+                {
+                    undocumented.Add($"{call.Method} {call.Path} as {call.As} answered {status} with problem type '{type}'; the document names '{documented}'");
+                }
+            }
         }
 
         Assert.True(undocumented.Count == 0, string.Join("\n", undocumented) + "\nAll answers:\n" + string.Join("\n", seen));

@@ -49,6 +49,10 @@ public sealed class OpenApiContractTests
             Assert.False(string.IsNullOrEmpty(id), $"{name} has no name: add .WithName(...)");
             Assert.True(ids.Add(id!), $"{name} repeats the operation name {id}");
             Assert.False(string.IsNullOrEmpty((string?)operation["summary"]), $"{name} has no summary: add .WithSummary(...)");
+            foreach (var parameter in operation["parameters"]?.AsArray() ?? [])
+            {
+                Assert.False(string.IsNullOrEmpty((string?)parameter!["description"]), $"{name}: parameter '{parameter["name"]}' has no description: add a <param> XML doc");
+            }
             var responses = operation["responses"]!.AsObject();
             Assert.Contains(responses, r => r.Key.StartsWith('2'));
             foreach (var (code, response) in responses.Where(r => r.Key[0] is '4' or '5'))
@@ -101,6 +105,16 @@ public sealed class OpenApiContractTests
         }
         var limit = parameters.Single(p => p.Name == "GET /api/v1/sites/{siteId}/observations" && (string?)p.Parameter["name"] == "limit").Parameter["schema"]!;
         Assert.Equal(("integer", 1, 10_000, 1_000), ((string?)limit["type"], (int)limit["minimum"]!, (int)limit["maximum"]!, (int)limit["default"]!));
+    }
+
+    [Fact]
+    public async Task ContractTypesCarryTheirXmlDocs()
+    {
+        var document = JsonNode.Parse(await ServedDocument())!;
+
+        var page = document["components"]!["schemas"]!["ObservationPage"]!;
+
+        Assert.StartsWith("One page of raw readings", (string?)page["description"], StringComparison.Ordinal);
     }
 
     [Fact]
