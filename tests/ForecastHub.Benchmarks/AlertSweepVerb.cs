@@ -87,8 +87,16 @@ internal sealed class AlertSweepVerb : IBenchmarkVerb
             var wall = measured.Select(m => m.Wall).Order().ToList();
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
                 $"warm sweep (forecasts cached), {MeasuredSweeps} runs: CPU median {cpu[MeasuredSweeps / 2]:0.000} s (min {cpu[0]:0.000}, max {cpu[^1]:0.000}), wall median {wall[MeasuredSweeps / 2]:0.000} s"));
-            // The target is judged on the cold sweep: in service, new readings reach every site between sweeps.
-            var met = cold.Cpu <= TargetCpuSeconds;
+            // New readings at every site between sweeps, in a process whose code is already compiled: what a
+            // running server pays each sweep. The first cold sweep above also pays the JIT of every path it runs.
+            provider.GetRequiredService<SiteVersions>().AllChanged();
+            var steady = await SweepAsync(worker);
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"cold sweep again (every site's data new, code compiled): {steady.Cpu:0.000} s CPU, {steady.Wall:0.000} s wall"));
+            await StagesAsync(provider, output);
+
+            // The target is judged on the cold sweeps (the first one included): in service, new readings reach every site between sweeps.
+            var met = Math.Max(cold.Cpu, steady.Cpu) <= TargetCpuSeconds;
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
                 $"target <= {TargetCpuSeconds} s CPU per sweep of {sites} sites with 2 thresholds each (cold): {(met ? "met" : "NOT met")}"));
             output.WriteLine($"load average: {File.ReadAllText("/proc/loadavg").Trim()}");
@@ -114,6 +122,57 @@ internal sealed class AlertSweepVerb : IBenchmarkVerb
         wall.Stop();
         process.Refresh();
         return ((process.TotalProcessorTime - cpuBefore).TotalSeconds, wall.Elapsed.TotalSeconds);
+    }
+
+    /// <summary>Where a cold sweep's time goes: each step of a site's evaluation timed over every site, in process CPU per site.</summary>
+    private static async Task StagesAsync(ServiceProvider provider, TextWriter output)
+    {
+        var store = provider.GetRequiredService<ISiteStore>();
+        var forecasts = provider.GetRequiredService<ForecastService>();
+        var models = provider.GetRequiredService<ModelService>();
+        var health = provider.GetRequiredService<ModelHealthService>();
+        var sites = await store.ListAsync(null, BenchmarkOptions.FromEnvironment().Sites);
+        var (query, _, _) = ForecastQuery.Parse(false, null, null, null, null);
+        var now = DateTimeOffset.UtcNow;
+        var served = new List<(SiteRecord Site, ServingModel Model, ForecastHub.Core.Grid.TimeGrid Grid)>();
+        var grids = await CpuPerSiteAsync(sites.Count, async () =>
+        {
+            foreach (var site in sites)
+            {
+                if (await forecasts.RecentGridAsync(site, now, CancellationToken.None) is { } grid && await models.GetAsync(site, CancellationToken.None) is { } model)
+                {
+                    served.Add((site, model, grid));
+                }
+            }
+        });
+        var core = await CpuPerSiteAsync(served.Count, () =>
+        {
+            foreach (var (site, model, grid) in served)
+            {
+                ForecastMapping.Forecast(model.Model, grid, query!.Steps, query.Levels, query.Below, query.Above, seed: 1, site.Risk, SiteGridLoader.AlignDown(site, now));
+            }
+
+            return Task.CompletedTask;
+        });
+        var assessments = await CpuPerSiteAsync(sites.Count, async () =>
+        {
+            foreach (var site in sites)
+            {
+                await health.EvaluateAsync(site, CancellationToken.None);
+            }
+        });
+        output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+            $"stages, CPU per site: recent grid read and model {grids * 1000:0.000} ms; forecast with next-day summary and risk (core and mapping) {core * 1000:0.000} ms; health assessment {assessments * 1000:0.000} ms (a cold evaluation runs it twice: the alert's and the forecast's)"));
+    }
+
+    private static async Task<double> CpuPerSiteAsync(int count, Func<Task> action)
+    {
+        var process = Process.GetCurrentProcess();
+        process.Refresh();
+        var before = process.TotalProcessorTime;
+        await action();
+        process.Refresh();
+        return (process.TotalProcessorTime - before).TotalSeconds / Math.Max(1, count);
     }
 
     /// <summary>The server's storage, model, webhook and alert registrations on one SQLite file; hosted services are not started.</summary>

@@ -29,6 +29,11 @@ public static class Calibration
 
     private static readonly double[] Scores = Probabilities.Select(p => Normal.InvCDF(0, 1, p)).ToArray();
 
+    // Cells narrower than the closest pair of table scores, so a lookup walks at most one step.
+    private const int SegmentCells = 128;
+    private static readonly double CellsPerUnitScore = SegmentCells / (Scores[^2] - Scores[1]);
+    private static readonly byte[] CellSegments = BuildCellSegments();
+
     public static int Horizons(GridCadence cadence) => cadence == GridCadence.Hourly ? 48 : 7;
 
     /// <summary>The interval at a level for horizon h: mean + sd x quantile of the standardised errors.</summary>
@@ -41,29 +46,62 @@ public static class Calibration
     }
 
     /// <summary>Quantile of the standardised error at probability p: linear in the normal score between table points, extrapolated beyond them.</summary>
-    public static double Quantile(IReadOnlyList<double> row, double p) => QuantileAtScore(row, Normal.InvCDF(0, 1, p));
+    public static double Quantile(ReadOnlySpan<double> row, double p) => QuantileAtScore(row, Normal.InvCDF(0, 1, p));
 
     /// <summary>The standardised error at normal score z (the quantile at probability Phi(z)); piecewise linear in z.</summary>
-    public static double QuantileAtScore(IReadOnlyList<double> row, double z)
+    public static double QuantileAtScore(ReadOnlySpan<double> row, double z)
     {
-        ArgumentNullException.ThrowIfNull(row);
-        var i = 1;
+        var i = Segment(z);
+        var w = (z - Scores[i - 1]) / (Scores[i] - Scores[i - 1]);
+        return row[i - 1] + w * (row[i] - row[i - 1]);
+    }
+
+    /// <summary>
+    /// The segment [Scores[i - 1], Scores[i]] that z falls in: the smallest i in 1..n-2 with Scores[i] >= z, else n - 1
+    /// (NaN gives 1). A table of cells over the score axis gives a start at most a step or two away, then a walk settles it.
+    /// </summary>
+    private static int Segment(double z)
+    {
+        var cell = (z - Scores[1]) * CellsPerUnitScore;
+        var i = !(cell >= 0) ? 1 : cell < SegmentCells ? CellSegments[(int)cell] : Scores.Length - 1;
+        while (i > 1 && Scores[i - 1] >= z)
+        {
+            i--;
+        }
+
         while (i < Scores.Length - 1 && Scores[i] < z)
         {
             i++;
         }
 
-        var w = (z - Scores[i - 1]) / (Scores[i] - Scores[i - 1]);
-        return row[i - 1] + w * (row[i] - row[i - 1]);
+        return i;
+    }
+
+    /// <summary>Per cell of the score axis from Scores[1] to Scores[n - 2], the segment of the cell's lower edge.</summary>
+    private static byte[] BuildCellSegments()
+    {
+        var cells = new byte[SegmentCells];
+        for (var c = 0; c < SegmentCells; c++)
+        {
+            var edge = Scores[1] + (c / CellsPerUnitScore);
+            var i = 1;
+            while (i < Scores.Length - 1 && Scores[i] < edge)
+            {
+                i++;
+            }
+
+            cells[c] = (byte)i;
+        }
+
+        return cells;
     }
 
     /// <summary>
     /// The inverse of <see cref="QuantileAtScore"/>: the smallest normal score z with Q(z) >= x, so P(error &lt; x) = Phi(z).
     /// A flat end segment that x lies beyond gives -infinity or +infinity.
     /// </summary>
-    public static double ScoreOf(IReadOnlyList<double> row, double x)
+    public static double ScoreOf(ReadOnlySpan<double> row, double x)
     {
-        ArgumentNullException.ThrowIfNull(row);
         var i = 1;
         while (i < Scores.Length - 1 && row[i] < x)
         {

@@ -139,8 +139,11 @@ public static class SiteForecaster
             };
         }
 
-        var nextDay = plan is { } p ? Summarise(model, table, p, mean, g, levels, thresholds, paths, seed) : null;
-        var risks = risk is null || paths == 0 ? [] : AssessRisk(model, table, risk, zone, times, mean, sd, g, levels, paths, seed);
+        var windows = risk is null || paths == 0 || risk.Thresholds.Count == 0 ? [] : RiskWindows.Plan(model.Cadence, zone, risk.Night, risk.Now, times);
+        var simulated = Math.Max(plan?.Last ?? 0, windows.Count == 0 ? 0 : windows.Max(w => w.LastHorizon));
+        using var sample = simulated > 0 ? SamplePaths.Simulate(ar, g, simulated, paths, seed) : null;
+        var nextDay = plan is { } p ? Summarise(table, p, sample!, mean, levels, thresholds, seed) : null;
+        var risks = windows.Count == 0 ? [] : AssessRisk(model, table, risk!, windows, times, mean, sd, sample!, levels);
         return new SiteForecast(recent.Times[last], missing, table is null ? IntervalMethod.Gaussian : IntervalMethod.Calibrated, result, nextDay, notes)
         {
             Risk = risks,
@@ -150,18 +153,11 @@ public static class SiteForecaster
     private static StepProbability[] StepProbabilities(PredictiveDistribution distribution, IReadOnlyList<RiskThreshold> thresholds) =>
         [.. thresholds.Select(t => new StepProbability(t.Id, t.ValueC, t.Direction, distribution.Probability(t.Direction, t.ValueC)))];
 
-    private static IReadOnlyList<WindowRisk> AssessRisk(SiteModel model, CalibrationTable? table, RiskRequest risk, TimeZoneInfo zone,
-        DateTimeOffset[] times, double[] mean, double[] sd, double[] g, IReadOnlyList<double> levels, int paths, int seed)
+    private static IReadOnlyList<WindowRisk> AssessRisk(SiteModel model, CalibrationTable? table, RiskRequest risk, IReadOnlyList<WindowPlan> windows,
+        DateTimeOffset[] times, double[] mean, double[] sd, SamplePaths sample, IReadOnlyList<double> levels)
     {
-        var windows = RiskWindows.Plan(model.Cadence, zone, risk.Night, risk.Now, times);
-        if (windows.Count == 0 || risk.Thresholds.Count == 0)
-        {
-            return [];
-        }
-
         var horizons = windows.Max(w => w.LastHorizon);
         var distributions = Enumerable.Range(0, horizons).Select(k => PredictiveDistribution.Of(mean[k], sd[k], table, k + 1)).ToArray();
-        var sample = SamplePaths.Simulate(model.Ar, g, sd, horizons, paths, seed);
         var stepHours = model.Cadence == GridCadence.Hourly ? 1.0 : 0.0;
         return RiskWindows.Assess(distributions, times, stepHours, sample, windows, risk.Thresholds, levels);
     }
@@ -180,7 +176,7 @@ public static class SiteForecaster
         return new NextDayPlan(date, from, to, first, end - 1);
     }
 
-    private static NextDaySummary Summarise(SiteModel model, CalibrationTable? table, NextDayPlan plan, double[] mean, double[] g, IReadOnlyList<double> levels, IReadOnlyList<Threshold> thresholds, int paths, int seed)
+    private static NextDaySummary Summarise(CalibrationTable? table, NextDayPlan plan, SamplePaths sample, double[] mean, IReadOnlyList<double> levels, IReadOnlyList<Threshold> thresholds, int seed)
     {
         // Widen the simulated innovations by the calibration's 80% spread ratio over the day's horizons.
         var inflation = 1.0;
@@ -191,19 +187,12 @@ public static class SiteForecaster
                 .Average(h => (Calibration.Interval(table, h, 0, 1, 0.8).Upper - Calibration.Interval(table, h, 0, 1, 0.8).Lower) / (2 * z80));
         }
 
-        var (min, max, dayMean) = NextDaySimulation.Run(model.Ar, mean, g, inflation, plan.First, plan.Last, paths, seed);
+        var paths = sample.Count;
+        var (min, max, dayMean) = NextDaySimulation.Run(sample, mean, inflation, plan.First, plan.Last);
         var probabilities = thresholds.Select(t => new ThresholdProbability(
             t.Value,
             t.Direction,
             t.Direction == ThresholdDirection.Below ? min.Count(v => v < t.Value) / (double)paths : max.Count(v => v > t.Value) / (double)paths)).ToArray();
-        return new NextDaySummary(plan.Date, plan.From, plan.To, Describe(min, levels), Describe(max, levels), Describe(dayMean, levels), probabilities, paths, seed);
-    }
-
-    private static DistributionSummary Describe(double[] values, IReadOnlyList<double> levels)
-    {
-        var sorted = values.Order().ToArray();
-        return new DistributionSummary(
-            values.Average(),
-            levels.Select(l => new PredictionInterval(l, Calibration.SortedQuantile(sorted, (1 - l) / 2), Calibration.SortedQuantile(sorted, (1 + l) / 2))).ToArray());
+        return new NextDaySummary(plan.Date, plan.From, plan.To, DistributionSummary.OfSample(min, levels), DistributionSummary.OfSample(max, levels), DistributionSummary.OfSample(dayMean, levels), probabilities, paths, seed);
     }
 }

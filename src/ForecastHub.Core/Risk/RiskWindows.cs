@@ -83,8 +83,9 @@ public static class RiskWindows
     }
 
     /// <summary>
-    /// Per-step probabilities and window risks from one set of seeded paths (window chance = share of
-    /// paths with at least one step beyond; a one-step window uses its step's exact probability).
+    /// Window risks from one set of seeded paths (window chance = share of paths with at least one step
+    /// beyond; a one-step window uses its step's exact probability). Each step's scores and values are
+    /// computed once, however many windows and thresholds share the step.
     /// </summary>
     internal static IReadOnlyList<WindowRisk> Assess(
         IReadOnlyList<PredictiveDistribution> steps,
@@ -95,65 +96,103 @@ public static class RiskWindows
         IReadOnlyList<RiskThreshold> thresholds,
         IReadOnlyList<double> levels)
     {
-        var risks = new List<WindowRisk>();
         var n = paths.Count;
-        foreach (var plan in windows)
+        var min = new double[windows.Count][];
+        var max = new double[windows.Count][];
+        var firstCross = new int[windows.Count, thresholds.Count][];
+        var beyond = new long[windows.Count, thresholds.Count];
+        for (var w = 0; w < windows.Count; w++)
         {
-            var first = plan.FirstHorizon - 1;
-            var length = plan.LastHorizon - plan.FirstHorizon + 1;
-
-            // The window's values per path, by the copula mapping of each step's score.
-            var min = new double[n];
-            var max = new double[n];
-            Array.Fill(min, double.PositiveInfinity);
-            Array.Fill(max, double.NegativeInfinity);
-            for (var k = first; k < first + length; k++)
+            min[w] = new double[n];
+            max[w] = new double[n];
+            Array.Fill(min[w], double.PositiveInfinity);
+            Array.Fill(max[w], double.NegativeInfinity);
+            for (var t = 0; t < thresholds.Count; t++)
             {
-                var row = paths.Scores.AsSpan(k * paths.Stride, n);
-                var step = steps[k];
-                for (var j = 0; j < n; j++)
-                {
-                    var value = step.ValueAtScore(row[j]);
-                    min[j] = Math.Min(min[j], value);
-                    max[j] = Math.Max(max[j], value);
-                }
+                firstCross[w, t] = new int[n];
+                Array.Fill(firstCross[w, t], -1);
+            }
+        }
+
+        var scores = new double[n];
+        var values = new double[n];
+        var from = windows.Min(p => p.FirstHorizon) - 1;
+        var to = windows.Max(p => p.LastHorizon);
+        for (var k = from; k < to; k++)
+        {
+            var step = steps[k];
+            paths.Scores(k, step.Sd, scores);
+
+            // The step's values per path, by the copula mapping of its scores.
+            for (var j = 0; j < n; j++)
+            {
+                values[j] = step.ValueAtScore(scores[j]);
             }
 
-            foreach (var threshold in thresholds)
+            for (var w = 0; w < windows.Count; w++)
             {
-                var below = threshold.Direction == ThresholdDirection.Below;
-
-                // Crossing compares scores with each step's score of the threshold: exact, since Q is increasing.
-                var limits = new double[length];
-                for (var i = 0; i < length; i++)
+                var first = windows[w].FirstHorizon - 1;
+                if (k < first || k >= windows[w].LastHorizon)
                 {
-                    limits[i] = steps[first + i].ScoreOf(threshold.ValueC);
+                    continue;
                 }
 
-                var firstCross = new int[n];
-                Array.Fill(firstCross, -1);
-                var beyond = 0L;
-
-                // Step by step over each step's row of paths, so memory is read in order.
-                for (var i = 0; i < length; i++)
+                var windowMin = min[w];
+                var windowMax = max[w];
+                for (var j = 0; j < n; j++)
                 {
-                    var row = paths.Scores.AsSpan((first + i) * paths.Stride, n);
-                    var limit = limits[i];
+                    windowMin[j] = Math.Min(windowMin[j], values[j]);
+                    windowMax[j] = Math.Max(windowMax[j], values[j]);
+                }
+
+                for (var t = 0; t < thresholds.Count; t++)
+                {
+                    // Crossing compares scores with the step's score of the threshold: exact, since Q is increasing.
+                    var below = thresholds[t].Direction == ThresholdDirection.Below;
+                    var limit = step.ScoreOf(thresholds[t].ValueC);
+                    var crosses = firstCross[w, t];
+                    var count = 0L;
                     for (var j = 0; j < n; j++)
                     {
-                        if (below ? row[j] < limit : row[j] > limit)
+                        if (below ? scores[j] < limit : scores[j] > limit)
                         {
-                            beyond++;
-                            if (firstCross[j] < 0)
+                            count++;
+                            if (crosses[j] < 0)
                             {
-                                firstCross[j] = i;
+                                crosses[j] = k - first;
                             }
                         }
                     }
+
+                    beyond[w, t] += count;
+                }
+            }
+        }
+
+        var risks = new List<WindowRisk>();
+        for (var w = 0; w < windows.Count; w++)
+        {
+            var plan = windows[w];
+            var first = plan.FirstHorizon - 1;
+            var length = plan.LastHorizon - plan.FirstHorizon + 1;
+            DistributionSummary? lowest = null;
+            DistributionSummary? highest = null;
+            for (var t = 0; t < thresholds.Count; t++)
+            {
+                var threshold = thresholds[t];
+                var below = threshold.Direction == ThresholdDirection.Below;
+
+                // How many paths first cross at each step of the window; the crossing paths' quantiles read off it.
+                var crossingAt = new int[length];
+                foreach (var c in firstCross[w, t])
+                {
+                    if (c >= 0)
+                    {
+                        crossingAt[c]++;
+                    }
                 }
 
-                var crossing = firstCross.Count(c => c >= 0);
-
+                var crossing = crossingAt.Sum();
                 var probability = length == 1 ? steps[first].Probability(threshold.Direction, threshold.ValueC) : crossing / (double)n;
                 CrossingTimes? firstCrossing = null;
                 if (length == 1 && probability > 0)
@@ -162,12 +201,12 @@ public static class RiskWindows
                 }
                 else if (crossing > 0)
                 {
-                    var sorted = firstCross.Where(c => c >= 0).Order().ToArray();
-                    firstCrossing = new CrossingTimes(times[first + TypeOne(sorted, 0.5)], times[first + TypeOne(sorted, 0.1)], times[first + TypeOne(sorted, 0.9)]);
+                    firstCrossing = new CrossingTimes(times[first + TypeOne(crossingAt, crossing, 0.5)], times[first + TypeOne(crossingAt, crossing, 0.1)], times[first + TypeOne(crossingAt, crossing, 0.9)]);
                 }
 
-                double? hours = stepHours > 0 ? beyond * stepHours / n : null;
-                risks.Add(new WindowRisk(threshold, plan.Window, probability, firstCrossing, hours, Describe(below ? min : max, levels)));
+                double? hours = stepHours > 0 ? beyond[w, t] * stepHours / n : null;
+                var extreme = below ? lowest ??= DistributionSummary.OfSample(min[w], levels) : highest ??= DistributionSummary.OfSample(max[w], levels);
+                risks.Add(new WindowRisk(threshold, plan.Window, probability, firstCrossing, hours, extreme));
             }
         }
 
@@ -190,8 +229,20 @@ public static class RiskWindows
         return first < 0 ? null : new WindowPlan(window, first + 1, last + 1);
     }
 
-    // R quantile type 1 (inverse of the empirical CDF) of sorted values: always one of them.
-    private static int TypeOne(int[] sorted, double p) => sorted[Math.Max(0, (int)Math.Ceiling(p * sorted.Length) - 1)];
+    // R quantile type 1 (inverse of the empirical CDF) of values given as counts per value 0, 1, ...: always one of them.
+    private static int TypeOne(int[] countOf, int total, double p)
+    {
+        var rank = Math.Max(0, (int)Math.Ceiling(p * total) - 1);
+        var value = 0;
+        var atOrBelow = countOf[0];
+        while (atOrBelow <= rank)
+        {
+            value++;
+            atOrBelow += countOf[value];
+        }
+
+        return value;
+    }
 
     /// <summary>The local clock time on a date as an instant: a time skipped by a DST jump moves forward to the first valid one; a repeated one takes the earlier instant.</summary>
     private static DateTimeOffset LocalInstant(TimeZoneInfo zone, DateOnly date, TimeOnly time)
@@ -204,13 +255,5 @@ public static class RiskWindows
 
         var offset = zone.IsAmbiguousTime(local) ? zone.GetAmbiguousTimeOffsets(local).Max() : zone.GetUtcOffset(local);
         return new DateTimeOffset(local, offset);
-    }
-
-    private static DistributionSummary Describe(double[] values, IReadOnlyList<double> levels)
-    {
-        var sorted = values.Order().ToArray();
-        return new DistributionSummary(
-            values.Average(),
-            [.. levels.Select(l => new PredictionInterval(l, Calibration.SortedQuantile(sorted, (1 - l) / 2), Calibration.SortedQuantile(sorted, (1 + l) / 2)))]);
     }
 }
