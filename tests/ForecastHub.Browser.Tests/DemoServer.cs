@@ -16,12 +16,13 @@ internal sealed class DemoServer : IAsyncDisposable
 
     private static readonly TimeSpan StartTimeout = TimeSpan.FromSeconds(90);
     private readonly Process process;
-    private readonly StringBuilder output = new();
+    private readonly StringBuilder output;
     private readonly string folder;
 
-    private DemoServer(Process process, Uri baseAddress, string folder)
+    private DemoServer(Process process, StringBuilder output, Uri baseAddress, string folder)
     {
         this.process = process;
+        this.output = output;
         this.folder = folder;
         BaseAddress = baseAddress;
         Client = new HttpClient { BaseAddress = baseAddress, Timeout = TimeSpan.FromSeconds(30) };
@@ -36,10 +37,7 @@ internal sealed class DemoServer : IAsyncDisposable
     {
         get
         {
-            lock (output)
-            {
-                return output.ToString();
-            }
+            return Text(output);
         }
     }
 
@@ -47,7 +45,6 @@ internal sealed class DemoServer : IAsyncDisposable
     {
         var folder = Path.Combine(Path.GetTempPath(), "forecasthub-browser-" + Guid.NewGuid().ToString("N"));
         Directory.CreateDirectory(folder);
-        var port = ChildProcesses.FreeLoopbackPort();
         var start = new ProcessStartInfo("dotnet")
         {
             WorkingDirectory = folder,
@@ -57,16 +54,31 @@ internal sealed class DemoServer : IAsyncDisposable
         };
         start.ArgumentList.Add(RepoPaths.ApiAssembly);
         start.ArgumentList.Add("--demo");
-        start.ArgumentList.Add($"--urls=http://127.0.0.1:{port}");
+        // Port 0: the server binds a port the system gives it and says which one, so no other process can take it first.
+        start.ArgumentList.Add("--urls=http://127.0.0.1:0");
         start.ArgumentList.Add($"--Storage:Path={Path.Combine(folder, "demo.db")}");
         start.ArgumentList.Add($"--Auth:AdminKey={AdminKey}");
         var process = Process.Start(start) ?? throw new InvalidOperationException("dotnet did not start");
-        var server = new DemoServer(process, new Uri($"http://127.0.0.1:{port}/"), folder);
-        process.OutputDataReceived += (_, e) => server.Append(e.Data);
-        process.ErrorDataReceived += (_, e) => server.Append(e.Data);
+        var printed = new StringBuilder();
+        var listening = ChildProcesses.WatchListeningAddress(process);
+        process.OutputDataReceived += (_, e) => Append(printed, e.Data);
+        process.ErrorDataReceived += (_, e) => Append(printed, e.Data);
         process.BeginOutputReadLine();
         process.BeginErrorReadLine();
-        await server.WaitUntilReadyAsync();
+        Uri address;
+        try
+        {
+            address = await listening.WaitAsync(StartTimeout);
+        }
+        catch (Exception error) when (error is TimeoutException or InvalidOperationException)
+        {
+            await ChildProcesses.KillAsync(process);
+            process.Dispose();
+            throw new InvalidOperationException($"the demo server did not say where it listens within {StartTimeout}: {Text(printed)}", error);
+        }
+
+        var server = new DemoServer(process, printed, address, folder);
+        await server.AssertReadyAsync();
         return server;
     }
 
@@ -92,41 +104,33 @@ internal sealed class DemoServer : IAsyncDisposable
         }
     }
 
-    private async Task WaitUntilReadyAsync()
+    /// <summary>Storage, migrations and the demo scenario are loaded before the host listens, so the first answer once it listens is ready.</summary>
+    private async Task AssertReadyAsync()
     {
-        var deadline = DateTime.UtcNow + StartTimeout;
-        while (DateTime.UtcNow < deadline)
+        using var response = await Client.GetAsync(new Uri("health/ready", UriKind.Relative));
+        if (!response.IsSuccessStatusCode)
         {
-            if (process.HasExited)
-            {
-                throw new InvalidOperationException($"the server stopped with code {process.ExitCode}: {Output}");
-            }
-            try
-            {
-                using var response = await Client.GetAsync(new Uri("health/ready", UriKind.Relative));
-                if (response.IsSuccessStatusCode)
-                {
-                    return;
-                }
-            }
-            catch (HttpRequestException)
-            {
-                // Not listening yet.
-            }
-            await Task.Delay(200);
+            throw new InvalidOperationException($"the demo server listens but is not ready ({(int)response.StatusCode}): {Output}");
         }
-        throw new TimeoutException($"the server was not ready after {StartTimeout}: {Output}");
     }
 
-    private void Append(string? line)
+    private static void Append(StringBuilder printed, string? line)
     {
         if (line is null)
         {
             return;
         }
-        lock (output)
+        lock (printed)
         {
-            output.AppendLine(line);
+            printed.AppendLine(line);
+        }
+    }
+
+    private static string Text(StringBuilder printed)
+    {
+        lock (printed)
+        {
+            return printed.ToString();
         }
     }
 

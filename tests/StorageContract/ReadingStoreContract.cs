@@ -29,6 +29,21 @@ public abstract class ReadingStoreContract : StorageContract
     }
 
     [Fact]
+    public async Task AnIngestCarryingTheKeyOfADeletedSiteStoresNothingInTheSiteCreatedAgain()
+    {
+        var old = await CreateSiteAsync();
+        Assert.True(await Backend.Sites.DeleteAsync("site-a"));
+        var renewed = await CreateSiteAsync();
+
+        Assert.Null(await Backend.Readings.IngestAsync("site-a", Hourly(Start, 1, 2), ConflictPolicy.Reject, Start, old.Key));
+        Assert.Empty(await AllAsync());
+
+        var stored = await Backend.Readings.IngestAsync("site-a", Hourly(Start, 1, 2), ConflictPolicy.Reject, Start, renewed.Key);
+        Assert.Equal(2, stored!.Outcomes.Count(o => o.Kind == ReadingOutcomeKind.Accepted));
+        Assert.Equal([1.0, 2], (await AllAsync()).Select(r => r.ValueC));
+    }
+
+    [Fact]
     public async Task TheSameValueAgainIsADuplicateAndChangesNothing()
     {
         await CreateSiteAsync();

@@ -9,9 +9,9 @@ namespace ForecastHub.Api.Alerts;
 public sealed class AlertingReadingStore(IReadingStore inner, AlertQueue queue) : IReadingStore
 {
     public async Task<IngestResult?> IngestAsync(string siteId, IReadOnlyList<IncomingReading> readings, ConflictPolicy policy,
-        DateTimeOffset receivedAt, CancellationToken cancellationToken = default)
+        DateTimeOffset receivedAt, long? siteKey = null, CancellationToken cancellationToken = default)
     {
-        var result = await inner.IngestAsync(siteId, readings, policy, receivedAt, cancellationToken);
+        var result = await inner.IngestAsync(siteId, readings, policy, receivedAt, siteKey, cancellationToken);
         if (result is not null && result.Outcomes.Any(o => o.Kind is ReadingOutcomeKind.Accepted or ReadingOutcomeKind.Replaced))
         {
             queue.Enqueue(siteId);

@@ -39,7 +39,7 @@ public sealed class DemoLoader(ISiteStore sites, IReadingStore readings, TimePro
                 var incoming = batch
                     .Select((r, i) => new IncomingReading(i, r.Time.ToUnixTimeMilliseconds(), r.ValueC, r.ValueC, "C"))
                     .ToList();
-                await readings.IngestAsync(site.Id, incoming, ConflictPolicy.Replace, now, cancellationToken).ConfigureAwait(false);
+                await readings.IngestAsync(site.Id, incoming, ConflictPolicy.Replace, now, cancellationToken: cancellationToken).ConfigureAwait(false);
                 total += incoming.Count;
             }
         }

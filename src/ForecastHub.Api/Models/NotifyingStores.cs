@@ -12,9 +12,9 @@ namespace ForecastHub.Api.Models;
 public sealed class NotifyingReadingStore(IReadingStore inner, SiteVersions versions, RefitQueue queue, ServiceMetrics metrics) : IReadingStore
 {
     public async Task<IngestResult?> IngestAsync(string siteId, IReadOnlyList<IncomingReading> readings, ConflictPolicy policy,
-        DateTimeOffset receivedAt, CancellationToken cancellationToken = default)
+        DateTimeOffset receivedAt, long? siteKey = null, CancellationToken cancellationToken = default)
     {
-        var result = await inner.IngestAsync(siteId, readings, policy, receivedAt, cancellationToken);
+        var result = await inner.IngestAsync(siteId, readings, policy, receivedAt, siteKey, cancellationToken);
         if (result is null)
         {
             return null;

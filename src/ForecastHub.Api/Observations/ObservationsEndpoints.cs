@@ -109,10 +109,11 @@ public static class ObservationsEndpoints
         }
         metrics.Readings.Inc(batch!.Rejected.Count, "rejected");
         var policy = onConflict == "replace" ? ConflictPolicy.Replace : ConflictPolicy.Reject;
-        var result = await readings.IngestAsync(siteId, batch.Valid, policy, clock.GetUtcNow(), cancellationToken).ConfigureAwait(false);
+        // The write carries the key the batch was checked against: a site deleted (and perhaps created again) since gets nothing.
+        var result = await readings.IngestAsync(siteId, batch.Valid, policy, clock.GetUtcNow(), site.Key, cancellationToken).ConfigureAwait(false);
         if (result is null)
         {
-            return SitesEndpoints.NoSuchSite(siteId);
+            return ApiProblems.NotFound($"Site '{siteId}' was deleted while this request was being stored; nothing was stored. A site created again under the id is a new site: send the readings again if they belong to it.");
         }
         // A key that may not read the series learns only that a different value is stored.
         var mayRead = caller.HasClaim(ApiKeyScopes.ScopeClaim, ApiKeyScopes.Admin)

@@ -17,13 +17,13 @@ public sealed class PostgresReadingStore(PostgresDatabase database) : IReadingSt
     private const string ReadingColumns = "time_ms, value_c, original_value, original_unit, flags";
 
     public Task<IngestResult?> IngestAsync(string siteId, IReadOnlyList<IncomingReading> readings, ConflictPolicy policy,
-        DateTimeOffset receivedAt, CancellationToken cancellationToken = default)
+        DateTimeOffset receivedAt, long? siteKey = null, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(readings);
         return database.WriteAsync<IngestResult?>(async (connection, transaction) =>
         {
             var site = await LockSiteAsync(connection, transaction, siteId, cancellationToken).ConfigureAwait(false);
-            if (site is null)
+            if (site is null || (siteKey is { } expected && site.Value.Key != expected))
             {
                 return null;
             }
@@ -31,12 +31,12 @@ public sealed class PostgresReadingStore(PostgresDatabase database) : IReadingSt
             {
                 return new IngestResult([]);
             }
-            var (siteKey, limits) = site.Value;
-            var stored = await LoadNeighbourhoodAsync(connection, transaction, siteKey, readings, limits.FlatlineHours, cancellationToken).ConfigureAwait(false);
+            var (key, limits) = site.Value;
+            var stored = await LoadNeighbourhoodAsync(connection, transaction, key, readings, limits.FlatlineHours, cancellationToken).ConfigureAwait(false);
             var plan = IngestPlanner.Plan(stored, readings, policy, limits);
             var receivedMs = receivedAt.ToUnixTimeMilliseconds();
-            await InsertAsync(connection, siteKey, plan.Inserts, receivedMs, cancellationToken).ConfigureAwait(false);
-            await UpdateAsync(connection, transaction, siteKey, plan.Updates, receivedMs, cancellationToken).ConfigureAwait(false);
+            await InsertAsync(connection, key, plan.Inserts, receivedMs, cancellationToken).ConfigureAwait(false);
+            await UpdateAsync(connection, transaction, key, plan.Updates, receivedMs, cancellationToken).ConfigureAwait(false);
             if (plan.Inserts.Count > 0 || plan.Updates.Count > 0)
             {
                 await new ChangeNotice(ChangeKind.Data, siteId).SendAsync(connection, transaction, cancellationToken).ConfigureAwait(false);

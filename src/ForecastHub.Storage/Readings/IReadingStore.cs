@@ -4,10 +4,11 @@ namespace ForecastHub.Storage.Readings;
 public interface IReadingStore
 {
     /// <summary>Stores what is new in one transaction and sets QC flags on the new readings and their
-    /// stored neighbours. Null when the site does not exist. When this returns, the readings are
-    /// durable.</summary>
+    /// stored neighbours. Null when the site does not exist, or when <paramref name="siteKey"/> is given and the
+    /// site with the id now has another internal key (deleted and created again since the caller read it): nothing
+    /// is stored then. When this returns, the readings are durable.</summary>
     Task<IngestResult?> IngestAsync(string siteId, IReadOnlyList<IncomingReading> readings, ConflictPolicy policy,
-        DateTimeOffset receivedAt, CancellationToken cancellationToken = default);
+        DateTimeOffset receivedAt, long? siteKey = null, CancellationToken cancellationToken = default);
 
     /// <summary>Readings in [<paramref name="fromMs"/>, <paramref name="toMs"/>) in time order,
     /// starting after <paramref name="afterMs"/> (exclusive), at most <paramref name="limit"/>.

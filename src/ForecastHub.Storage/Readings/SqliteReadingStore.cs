@@ -10,25 +10,25 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
     private const string ReadingColumns = "time_ms, value_c, original_value, original_unit, flags";
 
     public Task<IngestResult?> IngestAsync(string siteId, IReadOnlyList<IncomingReading> readings, ConflictPolicy policy,
-        DateTimeOffset receivedAt, CancellationToken cancellationToken = default)
+        DateTimeOffset receivedAt, long? siteKey = null, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(readings);
         return database.WriteAsync<IngestResult?>((connection, transaction) =>
         {
             var site = FindSite(connection, transaction, siteId);
-            if (site is null)
+            if (site is null || (siteKey is { } expected && site.Value.Key != expected))
             {
                 return null;
             }
-            var (siteKey, limits) = site.Value;
+            var (key, limits) = site.Value;
             if (readings.Count == 0)
             {
                 return new IngestResult([]);
             }
-            var stored = LoadNeighbourhood(connection, transaction, siteKey, readings, limits.FlatlineHours);
+            var stored = LoadNeighbourhood(connection, transaction, key, readings, limits.FlatlineHours);
             var plan = IngestPlanner.Plan(stored, readings, policy, limits);
-            Insert(connection, siteKey, plan.Inserts, receivedAt.ToUnixTimeMilliseconds());
-            Update(connection, transaction, siteKey, plan.Updates, receivedAt.ToUnixTimeMilliseconds());
+            Insert(connection, key, plan.Inserts, receivedAt.ToUnixTimeMilliseconds());
+            Update(connection, transaction, key, plan.Updates, receivedAt.ToUnixTimeMilliseconds());
             return new IngestResult(plan.Outcomes);
         }, cancellationToken);
     }

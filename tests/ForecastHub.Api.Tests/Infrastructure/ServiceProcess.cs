@@ -7,7 +7,7 @@ using ForecastHub.TestData;
 namespace ForecastHub.Api.Tests.Infrastructure;
 
 /// <summary>The built ForecastHub.Api running as a child process on 127.0.0.1 with a free port, on
-/// a given SQLite file or PostgreSQL database: real Kestrel, real process death.</summary>
+/// a given SQLite file or PostgreSQL database: real Kestrel on a port the system gives it, real process death.</summary>
 public sealed class ServiceProcess : IAsyncDisposable
 {
     private readonly Process _process;
@@ -33,8 +33,6 @@ public sealed class ServiceProcess : IAsyncDisposable
 
     private static async Task<ServiceProcess> StartAsync(string workingDirectory, IReadOnlyList<string> settings, TimeSpan? readyWithin)
     {
-        var port = ChildProcesses.FreeLoopbackPort();
-        var baseAddress = new Uri($"http://127.0.0.1:{port}/");
         var dll = Path.Combine(AppContext.BaseDirectory, "ForecastHub.Api.dll");
         var start = new ProcessStartInfo("dotnet")
         {
@@ -45,8 +43,10 @@ public sealed class ServiceProcess : IAsyncDisposable
         };
         foreach (var arg in new[]
                  {
-                     dll, "--urls", baseAddress.ToString().TrimEnd('/'),
+                     // Port 0: the child binds a port the system gives it and says which one, so no other process can take it first.
+                     dll, "--urls", "http://127.0.0.1:0",
                      $"--Auth:AdminKey={ApiFactory.AdminKey}", "--Serilog:MinimumLevel:Default=Warning",
+                     "--Serilog:MinimumLevel:Override:Microsoft.Hosting.Lifetime=Information",
                      // These tests push requests as fast as they can; the per-key limit has its own tests.
                      "--RateLimiting:Enabled=false",
                  }.Concat(settings))
@@ -55,13 +55,27 @@ public sealed class ServiceProcess : IAsyncDisposable
         }
         start.Environment["ASPNETCORE_ENVIRONMENT"] = "Production";
         var process = Process.Start(start)!;
+        var listening = ChildProcesses.WatchListeningAddress(process);
         // Drain the pipes so a chatty child never blocks on a full buffer.
-        process.OutputDataReceived += (_, _) => { };
         process.ErrorDataReceived += (_, _) => { };
         process.BeginOutputReadLine();
         process.BeginErrorReadLine();
+        var within = readyWithin ?? TimeSpan.FromSeconds(120);
+        Uri baseAddress;
+        try
+        {
+            baseAddress = await listening.WaitAsync(within);
+        }
+        catch (Exception) when (!listening.IsCompletedSuccessfully)
+        {
+            await ChildProcesses.KillAsync(process);
+            var code = process.ExitCode;
+            process.Dispose();
+            throw new InvalidOperationException($"The service (exit code {code}) did not say where it listens within {within.TotalSeconds.ToString(CultureInfo.InvariantCulture)} s.");
+        }
+
         var service = new ServiceProcess(process, baseAddress);
-        await service.WaitUntilReady(readyWithin ?? TimeSpan.FromSeconds(60));
+        await service.AssertReady();
         return service;
     }
 
@@ -113,36 +127,14 @@ public sealed class ServiceProcess : IAsyncDisposable
         _process.Dispose();
     }
 
-    private async Task WaitUntilReady(TimeSpan within)
+    /// <summary>Storage and migrations are done before the host listens, so the first answer once it listens is ready.</summary>
+    private async Task AssertReady()
     {
-        using var client = new HttpClient { BaseAddress = BaseAddress, Timeout = TimeSpan.FromSeconds(5) };
-        var deadline = Stopwatch.StartNew();
-        while (deadline.Elapsed < within)
+        using var client = new HttpClient { BaseAddress = BaseAddress, Timeout = TimeSpan.FromSeconds(60) };
+        using var ready = await client.GetAsync(new Uri("health/ready", UriKind.Relative));
+        if (ready.StatusCode != HttpStatusCode.OK)
         {
-            if (_process.HasExited)
-            {
-                throw new InvalidOperationException($"The service exited with code {_process.ExitCode} before it was ready.");
-            }
-            try
-            {
-                using var ready = await client.GetAsync(new Uri("health/ready", UriKind.Relative));
-                if (ready.StatusCode == HttpStatusCode.OK)
-                {
-                    return;
-                }
-            }
-            catch (HttpRequestException)
-            {
-                // Not listening yet.
-            }
-            catch (TaskCanceledException)
-            {
-                // One slow answer on a busy machine; keep polling until the overall deadline.
-            }
-            // Polling a real child process; there is no clock to advance here.
-            await Task.Delay(50);
+            throw new InvalidOperationException($"The service listens but is not ready: {(int)ready.StatusCode} {await ready.Content.ReadAsStringAsync()}");
         }
-        throw new TimeoutException($"The service was not ready within {within.TotalSeconds.ToString(CultureInfo.InvariantCulture)} s.");
     }
-
 }

@@ -69,7 +69,7 @@ public sealed class CrashDurabilityTests
                         }
                     }
                 })).ToArray();
-                await enoughAcks.WaitAsync(TimeSpan.FromSeconds(60));
+                Assert.True(await enoughAcks.WaitAsync(TimeSpan.FromSeconds(120)), "five batches were not acknowledged within 120 s");
                 // Kill at a varying moment inside a later request.
                 await Task.Delay(13 * round);
                 await service.KillAsync();

@@ -118,7 +118,7 @@ public sealed class StartupRefusalTests
     private static async Task<string> RefusedStartAsync(string path)
     {
         var (exitCode, output, error) = await ServiceProcess.RunToExitAsync(
-            ["--urls", $"http://127.0.0.1:{ForecastHub.TestData.ChildProcesses.FreeLoopbackPort()}", $"--Storage:Path={path}",
+            ["--urls", "http://127.0.0.1:0", $"--Storage:Path={path}",
              $"--Auth:AdminKey={ApiFactory.AdminKey}", "--Serilog:MinimumLevel:Default=Warning"],
             Patience);
 

@@ -120,7 +120,7 @@ public sealed class PostgresOnlyTests
                 await lockTable.ExecuteNonQueryAsync();
             }
             using var cancel = new CancellationTokenSource();
-            var attempt = readings.IngestAsync("site-a", batch, ConflictPolicy.Reject, received.AddHours(1), cancel.Token);
+            var attempt = readings.IngestAsync("site-a", batch, ConflictPolicy.Reject, received.AddHours(1), cancellationToken: cancel.Token);
             using var patience = new CancellationTokenSource(TimeSpan.FromSeconds(30));
             while (await pg.ScalarAsync<long>("SELECT count(*) FROM pg_stat_activity WHERE wait_event_type = 'Lock' AND query LIKE 'COPY readings%';") == 0)
             {
