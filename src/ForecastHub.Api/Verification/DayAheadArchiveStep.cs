@@ -3,6 +3,7 @@ using ForecastHub.Api.Forecasts;
 using ForecastHub.Api.Models;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Modeling;
+using ForecastHub.Core.Risk;
 using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Verification;
 using Microsoft.Extensions.Options;
@@ -16,7 +17,10 @@ public sealed record ArchivedDay(IReadOnlyList<double> Levels, IReadOnlyList<Arc
     public static readonly StoredFormat<ArchivedDay> Format = new("day", version: 2);
 }
 
-public sealed record ArchivedStep(DateTimeOffset Time, double Mean, double Sd, IReadOnlyList<double> Lower, IReadOnlyList<double> Upper);
+/// <summary>One archived step; <c>Probabilities</c> (the chance of the step beyond each site threshold) is null in days
+/// archived before they were kept, which still read as format 2 and are scored without threshold scores.</summary>
+public sealed record ArchivedStep(DateTimeOffset Time, double Mean, double Sd, IReadOnlyList<double> Lower, IReadOnlyList<double> Upper,
+    IReadOnlyList<StepProbability>? Probabilities = null);
 
 /// <summary>
 /// Live verification, run by the sweep for each site: once per local day the forecast for the next
@@ -79,10 +83,12 @@ public sealed class DayAheadArchiveStep(
         }
 
         // The core's forecast itself (no next-day simulation needed): the same path and intervals the forecast endpoint serves.
-        var forecast = SiteForecaster.Forecast(model.Model, recent, steps, Levels, [], seed: 0, paths: 0);
+        // Step probabilities come from each step's predictive distribution, so no sample paths are needed for them either.
+        var risk = new RiskRequest(site.Risk.WithQueryThresholds([], []), site.Risk.Night, now);
+        var forecast = SiteForecaster.Forecast(model.Model, recent, steps, Levels, [], seed: 0, paths: 0, risk: risk);
         var daySteps = forecast.Steps.Where(s => s.Time >= dayStart && s.Time < dayEnd)
             .Select(s => new ArchivedStep(s.Time, s.Mean, s.Sd,
-                [.. s.Intervals.Select(i => i.Lower)], [.. s.Intervals.Select(i => i.Upper)]))
+                [.. s.Intervals.Select(i => i.Lower)], [.. s.Intervals.Select(i => i.Upper)], s.Probabilities))
             .ToList();
         if (daySteps.Count == 0)
         {
@@ -128,7 +134,7 @@ public sealed class DayAheadArchiveStep(
 
             if (observedShare < options.Value.MinObservedShare)
             {
-                score = score with { Points = [] };
+                score = score with { Points = [], Thresholds = [] };
             }
 
             if (!await SaveScoreAsync(site, score, now, cancellationToken))
@@ -177,6 +183,11 @@ public sealed class DayAheadArchiveStep(
             var persistence = byTime.TryGetValue(yesterday, out var p) ? p : double.NaN;
             return new ScoredPoint(s.Time, byTime[s.Time], s.Mean, s.Sd, s.Lower, s.Upper, persistence, climatology[i]);
         }).ToList();
-        return new DayScore(archived.TargetDate, archived.IssuedAt, day.Levels, points);
+        // Each observed step is one case per threshold: its probability, and whether the observed value lay beyond.
+        var thresholds = observedSteps.SelectMany(s => (s.Probabilities ?? []).Select(p => (p, Happened: new RiskThreshold(p.Id, p.Direction, p.Threshold).IsBeyond(byTime[s.Time]))))
+            .GroupBy(c => (c.p.Id, c.p.Threshold, c.p.Direction))
+            .Select(g => new ThresholdDayScore(g.Key.Id, g.Key.Threshold, g.Key.Direction, [.. g.Select(c => new ThresholdCase(c.p.Probability, c.Happened))]))
+            .ToList();
+        return new DayScore(archived.TargetDate, archived.IssuedAt, day.Levels, points, thresholds);
     }
 }

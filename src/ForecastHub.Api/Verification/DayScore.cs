@@ -1,4 +1,6 @@
 using ForecastHub.Api.Models;
+using ForecastHub.Core.Modeling;
+using ForecastHub.Core.Risk;
 using ForecastHub.Core.Verification;
 using ForecastHub.Storage.Verification;
 
@@ -15,11 +17,19 @@ public sealed record ScoredPoint(
     double Persistence,
     double Climatology);
 
+/// <summary>One scored step of a threshold: the forecast chance of the step beyond it, and whether the observed value was.</summary>
+public sealed record ThresholdCase(double Probability, bool Happened);
+
+/// <summary>The cases of one site threshold over a scored day.</summary>
+public sealed record ThresholdDayScore(string? Id, double Threshold, ThresholdDirection Direction, IReadOnlyList<ThresholdCase> Cases);
+
 /// <summary>
 /// The live score of one archived day-ahead forecast: the forecast/outcome pairs themselves, so
 /// any window of days pools exactly through the core's score accumulator. Levels are fractions.
 /// </summary>
-public sealed record DayScore(DateOnly Date, DateTimeOffset IssuedAt, IReadOnlyList<double> Levels, IReadOnlyList<ScoredPoint> Points)
+/// <remarks><c>Thresholds</c> is null in scores stored before threshold cases were kept (still format 2).</remarks>
+public sealed record DayScore(DateOnly Date, DateTimeOffset IssuedAt, IReadOnlyList<double> Levels, IReadOnlyList<ScoredPoint> Points,
+    IReadOnlyList<ThresholdDayScore>? Thresholds = null)
 {
     /// <summary>The stored form of a day's score; the unversioned JSON of earlier builds counts as format 1.</summary>
     public static readonly StoredFormat<DayScore> Format = new("score", version: 2);
@@ -46,5 +56,33 @@ public sealed record DayScore(DateOnly Date, DateTimeOffset IssuedAt, IReadOnlyL
 
         var scores = accumulator.Result()[0];
         return scores.Count == 0 ? null : scores;
+    }
+
+    /// <summary>Per threshold (in the order first met), the verification of the pooled step cases of <paramref name="days"/>
+    /// through the core's threshold accumulator; the reference base rate is that of the day's local calendar month.</summary>
+    public static List<(RiskThreshold Threshold, ThresholdVerification Scores)> PoolThresholds(IReadOnlyCollection<DayScore> days)
+    {
+        ArgumentNullException.ThrowIfNull(days);
+        var pooled = new Dictionary<RiskThreshold, ThresholdScoreAccumulator>();
+        var order = new List<RiskThreshold>();
+        foreach (var day in days)
+        {
+            foreach (var threshold in day.Thresholds ?? [])
+            {
+                var key = new RiskThreshold(threshold.Id, threshold.Direction, threshold.Threshold);
+                if (!pooled.TryGetValue(key, out var accumulator))
+                {
+                    pooled[key] = accumulator = new ThresholdScoreAccumulator();
+                    order.Add(key);
+                }
+
+                foreach (var c in threshold.Cases)
+                {
+                    accumulator.Add(c.Probability, c.Happened, day.Date.Month);
+                }
+            }
+        }
+
+        return [.. order.Select(t => (t, pooled[t].Result()))];
     }
 }

@@ -134,6 +134,13 @@ public sealed record ScoresResponse(
 public sealed record IntervalScoresResponse(double Level, double? Coverage, double? MeanWidth, double? IntervalScore, double? Pinball);
 
 /// <summary>Live scores over the last <c>Days</c> scored days (up to <see cref="VerificationService.MaxLiveDays"/>), pooled and per day.</summary>
-public sealed record LiveScoresResponse(int Days, ScoresResponse? Pooled, IReadOnlyList<LiveDayResponse> Daily);
+public sealed record LiveScoresResponse(int Days, ScoresResponse? Pooled, IReadOnlyList<LiveDayResponse> Daily)
+{
+    /// <summary>Per site threshold, the verification of the archived step probabilities (window <c>step</c>: the event is the step's observed value beyond it).</summary>
+    public IReadOnlyList<ThresholdScoresResponse> Thresholds { get; init; } = [];
+
+    /// <summary>The window name of live threshold scores: each archived step is one case.</summary>
+    public const string StepWindow = "step";
+}
 
 public sealed record LiveDayResponse(DateOnly Date, DateTimeOffset IssuedAt, int Points, double? Mae, double? Bias);

@@ -78,7 +78,10 @@ public sealed class VerificationService(
             var one = DayScore.Pool([d]);
             return new LiveDayResponse(d.Date, d.IssuedAt, d.Points.Count, one?.Mae, one?.Bias);
         }).ToList();
-        var live = new LiveScoresResponse(scored.Count, pooled is null ? null : ScoresResponse.From(pooled, null), daily);
+        var live = new LiveScoresResponse(scored.Count, pooled is null ? null : ScoresResponse.From(pooled, null), daily)
+        {
+            Thresholds = [.. DayScore.PoolThresholds(scored).Select(t => ThresholdScoresResponse.From(t.Threshold, LiveScoresResponse.StepWindow, t.Scores))],
+        };
         return new VerificationResponse(site.Id, now, backtest, live);
     }
 }
