@@ -5093,6 +5093,12 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("daily")]
         public System.Collections.Generic.ICollection<LiveDayResponse> Daily { get; set; } = default!;
 
+        /// <summary>
+        /// Per site threshold, the verification of the archived step probabilities (window `step`: the event is the step's observed value beyond it).
+        /// </summary>
+        [System.Text.Json.Serialization.JsonPropertyName("thresholds")]
+        public System.Collections.Generic.ICollection<ThresholdScoresResponse> Thresholds { get; set; } = default!;
+
     }
 
     [System.CodeDom.Compiler.GeneratedCode("NJsonSchema", "14.8.0.0 (NJsonSchema v11.6.2.0 (Newtonsoft.Json v13.0.0.0))")]
