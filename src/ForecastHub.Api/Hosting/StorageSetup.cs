@@ -59,7 +59,7 @@ public static class StorageSetup
         Add<IAlertStore>(services, sp => new SqliteAlertStore(Sqlite(sp)), sp => new PostgresAlertStore(Postgres(sp)));
         Add<IWorkLeases>(services, sp => new LocalWorkLeases(Clock(sp)), sp => new PostgresWorkLeases(Postgres(sp)));
         Add<IStorageSchema>(services, sp => new SqliteStorageSchema(Sqlite(sp), sp.GetRequiredService<MigrationRunner>()),
-            sp => new PostgresStorageSchema(sp.GetRequiredService<PostgresMigrationRunner>()));
+            sp => new PostgresStorageSchema(sp.GetRequiredService<PostgresDatabase>(), sp.GetRequiredService<PostgresMigrationRunner>()));
         services.AddHostedService<MigrationStartup>();
         return services;
     }
