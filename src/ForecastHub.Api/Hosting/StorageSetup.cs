@@ -3,19 +3,8 @@ using ForecastHub.Storage.Alerts;
 using ForecastHub.Storage.Cluster;
 using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Keys;
-using ForecastHub.Storage.Migrations;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Postgres;
-using ForecastHub.Storage.Postgres.Alerts;
-using ForecastHub.Storage.Postgres.Cluster;
-using ForecastHub.Storage.Postgres.Health;
-using ForecastHub.Storage.Postgres.Keys;
-using ForecastHub.Storage.Postgres.Migrations;
-using ForecastHub.Storage.Postgres.Models;
-using ForecastHub.Storage.Postgres.Readings;
-using ForecastHub.Storage.Postgres.Sites;
-using ForecastHub.Storage.Postgres.Verification;
-using ForecastHub.Storage.Postgres.Webhooks;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Verification;
@@ -29,8 +18,9 @@ public static class StorageSetup
     /// <summary>
     /// The stores of the backend <c>Storage:Provider</c> names (the SQLite file of <c>Storage:Path</c>,
     /// or the PostgreSQL database of <c>Storage:ConnectionString</c>), the work leases, and the
-    /// migrations that run before the server starts listening. Each store is chosen when first
-    /// resolved, so the decorators added later wrap whichever backend runs.
+    /// migrations that run before the server starts listening. Each backend registers its own
+    /// stores under its name; each interface is forwarded when first resolved, so the decorators
+    /// added later wrap whichever backend runs.
     /// </summary>
     public static IServiceCollection AddForecastHubStorage(this IServiceCollection services)
     {
@@ -44,37 +34,27 @@ public static class StorageSetup
             .Validate(o => !o.IsPostgres || !string.IsNullOrWhiteSpace(o.ConnectionString),
                 "Storage:ConnectionString must name the PostgreSQL database when Storage:Provider is 'postgres'.")
             .ValidateOnStart();
-        services.AddSingleton(sp => new SqliteDatabase(Options(sp)));
-        services.AddSingleton(sp => new MigrationRunner(sp.GetRequiredService<SqliteDatabase>()));
-        services.AddSingleton(sp => new PostgresDatabase(Options(sp).ConnectionString!));
-        services.AddSingleton(sp => new PostgresMigrationRunner(sp.GetRequiredService<PostgresDatabase>()));
-
-        Add<ISiteStore>(services, sp => new SqliteSiteStore(Sqlite(sp), Clock(sp)), sp => new PostgresSiteStore(Postgres(sp), Clock(sp)));
-        Add<IReadingStore>(services, sp => new SqliteReadingStore(Sqlite(sp)), sp => new PostgresReadingStore(Postgres(sp)));
-        Add<IApiKeyStore>(services, sp => new SqliteApiKeyStore(Sqlite(sp)), sp => new PostgresApiKeyStore(Postgres(sp)));
-        Add<IModelStore>(services, sp => new SqliteModelStore(Sqlite(sp)), sp => new PostgresModelStore(Postgres(sp)));
-        Add<IForecastArchive>(services, sp => new SqliteForecastArchive(Sqlite(sp)), sp => new PostgresForecastArchive(Postgres(sp)));
-        Add<IReadingSummaryStore>(services, sp => new SqliteReadingSummaryStore(Sqlite(sp)), sp => new PostgresReadingSummaryStore(Postgres(sp)));
-        Add<IWebhookStore>(services, sp => new SqliteWebhookStore(Sqlite(sp)), sp => new PostgresWebhookStore(Postgres(sp)));
-        Add<IAlertStore>(services, sp => new SqliteAlertStore(Sqlite(sp)), sp => new PostgresAlertStore(Postgres(sp)));
-        Add<IWorkLeases>(services, sp => new LocalWorkLeases(Clock(sp)), sp => new PostgresWorkLeases(Postgres(sp)));
-        Add<IStorageSchema>(services, sp => new SqliteStorageSchema(Sqlite(sp), sp.GetRequiredService<MigrationRunner>()),
-            sp => new PostgresStorageSchema(sp.GetRequiredService<PostgresDatabase>(), sp.GetRequiredService<PostgresMigrationRunner>()));
+        services.AddSqliteStorage(Options).AddPostgresStorage(Options);
+        Forward<ISiteStore>(services);
+        Forward<IReadingStore>(services);
+        Forward<IApiKeyStore>(services);
+        Forward<IModelStore>(services);
+        Forward<IForecastArchive>(services);
+        Forward<IReadingSummaryStore>(services);
+        Forward<IWebhookStore>(services);
+        Forward<IAlertStore>(services);
+        Forward<IWorkLeases>(services);
+        Forward<IStorageSchema>(services);
         services.AddHostedService<MigrationStartup>();
         return services;
     }
 
     private static StorageOptions Options(IServiceProvider sp) => sp.GetRequiredService<IOptions<StorageOptions>>().Value;
 
-    private static SqliteDatabase Sqlite(IServiceProvider sp) => sp.GetRequiredService<SqliteDatabase>();
-
-    private static PostgresDatabase Postgres(IServiceProvider sp) => sp.GetRequiredService<PostgresDatabase>();
-
-    private static TimeProvider Clock(IServiceProvider sp) => sp.GetRequiredService<TimeProvider>();
-
-    private static void Add<T>(IServiceCollection services, Func<IServiceProvider, T> sqlite, Func<IServiceProvider, T> postgres)
+    // The interface resolves to the store of the backend Storage:Provider names.
+    private static void Forward<T>(IServiceCollection services)
         where T : class =>
-        services.AddSingleton(sp => Options(sp).IsPostgres ? postgres(sp) : sqlite(sp));
+        services.AddSingleton(sp => sp.GetRequiredKeyedService<T>(Options(sp).Provider));
 
     private static void TryAddSingletonTimeProvider(this IServiceCollection services)
     {

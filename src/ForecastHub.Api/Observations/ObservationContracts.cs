@@ -61,11 +61,11 @@ public sealed record IngestQuery
     /// <summary>CSV: the unit column, by header name or 1-based position (default: a column named 'unit', if any).</summary>
     [FromQuery(Name = "unitColumn")] public string? UnitColumn { get; init; }
 
-    /// <summary>CSV: the field separator, ',' (default), ';' or 'tab'.</summary>
-    [FromQuery(Name = "separator"), QueryValue(QueryValueKind.Choice, Values = [",", ";", "tab"], Default = ",")] public string? Separator { get; init; }
+    /// <summary>CSV: the field separator: comma (the default; ',' also works), semicolon (';') or tab.</summary>
+    [FromQuery(Name = "separator"), QueryValue(QueryValueKind.Choice, Values = ["comma", "semicolon", "tab"], Default = "comma")] public string? Separator { get; init; }
 
-    /// <summary>CSV: the decimal mark, '.' (default) or ','.</summary>
-    [FromQuery(Name = "decimal"), QueryValue(QueryValueKind.Choice, Values = [".", ","], Default = ".")] public string? DecimalMark { get; init; }
+    /// <summary>CSV: the decimal mark: point (the default; '.' also works) or comma (',').</summary>
+    [FromQuery(Name = "decimal"), QueryValue(QueryValueKind.Choice, Values = ["point", "comma"], Default = "point")] public string? DecimalMark { get; init; }
 
     /// <summary>true: times without an offset are wall-clock times of the site's zone (see the README for repeated hours).</summary>
     [FromQuery(Name = "localTimes")] public bool? LocalTimes { get; init; }
