@@ -17,12 +17,15 @@ public sealed class VerificationService(
     IForecastArchive archive,
     TimeProvider clock)
 {
-    /// <summary>The service's hourly backtest stays at 60 days (its cost is paid on a dashboard view); the CLI backtests a year.</summary>
-    public const int HourlyBacktestDays = 60;
+    /// <summary>The hourly backtest covers up to a year of the fit window (so a frost season is in it), as far back as the data reach.</summary>
+    public const int HourlyBacktestDays = 365;
     public const int DailyBacktestDays = 730;
     public const int RefitEveryDays = 7;
 
+    /// <summary>Hourly refits at most every 7 days, and no more than <see cref="MaxHourlyRefits"/> in all: the
+    /// interval widens with the span (31 days for a year), which bounds the cost to that many fits plus one forecast a day.</summary>
     public const int HourlyRefitEveryDays = 7;
+    public const int MaxHourlyRefits = 12;
     public const int MaxLiveDays = 90;
 
     private readonly ConcurrentDictionary<string, (long SiteKey, DateTimeOffset FittedAt, string RiskKey, BacktestResponse? Backtest)> backtests = new(StringComparer.Ordinal);
@@ -45,11 +48,14 @@ public sealed class VerificationService(
         }
         else
         {
-            var days = site.IsDaily ? DailyBacktestDays : HourlyBacktestDays;
+            var maxDays = site.IsDaily ? DailyBacktestDays : Math.Min(HourlyBacktestDays, site.Model.FitWindowDays);
             var end = model.Stored.DataEnd;
-            var readings = await grids.ReadAsync(site, end.AddDays(-(days + site.Model.FitWindowDays)),
+            var readings = await grids.ReadAsync(site, end.AddDays(-(maxDays + site.Model.FitWindowDays)),
                 SiteGridLoader.NextStep(site, SiteGridLoader.AlignDown(site, end)), cancellationToken);
-            var refitEvery = site.IsDaily ? RefitEveryDays : HourlyRefitEveryDays;
+
+            // Only the days the data reach back to are tested, so a young site keeps weekly refits.
+            var days = readings is { Count: > 0 } ? Math.Clamp((int)Math.Ceiling((end - readings.Min(r => r.Time)).TotalDays), 1, maxDays) : maxDays;
+            var refitEvery = site.IsDaily ? RefitEveryDays : Math.Max(HourlyRefitEveryDays, (int)Math.Ceiling(days / (double)MaxHourlyRefits));
             var thresholds = site.Risk.WithQueryThresholds([], []);
             backtest = readings is null ? null : BacktestResponse.Of(Backtest.Run(readings, site.GridOptions, site.Model, new BacktestOptions
             {

@@ -192,7 +192,7 @@ public sealed class ClusterTests
     }
 
     [Fact]
-    public async Task AFitHeldByADeadNodeIsDoneByAnotherOnceTheLeaseRunsOut()
+    public async Task AFitHeldByAKilledNodeIsDoneByAnotherOnceTheLeaseRunsOut()
     {
         var db = await PostgresServer.Shared.CreateDatabaseAsync();
         try
@@ -200,12 +200,32 @@ public sealed class ClusterTests
             await SeedAsync(db, ["slow"], days: 60, maxOrder: 8);
             string[] settings = ["--Cluster:LeaseDuration=00:00:03", "--Refit:SweepInterval=00:00:01"];
 
-            // A node killed in the middle of the site's fit leaves its lease row behind, as planted here (killing a
-            // real node at that moment is a race with a fit that may finish first).
-            var leaseExpiry = await ScalarAsync<DateTime>(db, """
-                INSERT INTO work_leases (kind, subject, holder, expires_at)
-                VALUES ('refit', 'slow', 'a', clock_timestamp() + interval '4 seconds') RETURNING expires_at;
-                """);
+            // While this transaction holds the table, models can be read but not written: A's fit cannot finish before it is killed.
+            await using var blocker = new NpgsqlConnection(db);
+            await blocker.OpenAsync();
+            await using (var hold = await blocker.BeginTransactionAsync())
+            {
+                await using (var lockModels = new NpgsqlCommand("LOCK TABLE site_models IN EXCLUSIVE MODE;", blocker, hold))
+                {
+                    await lockModels.ExecuteNonQueryAsync();
+                }
+
+                var a = await ServiceProcess.StartOnPostgresAsync(db, ["--Cluster:NodeName=a", .. settings]);
+                try
+                {
+                    // A's start sweep takes the site's refit lease; A dies with it, mid-fit.
+                    await WaitUntilAsync(async () => await ScalarAsync<long>(db,
+                        "SELECT count(*) FROM work_leases WHERE kind = 'refit' AND subject = 'slow' AND holder = 'a';") == 1);
+                    await a.KillAsync();
+                }
+                finally
+                {
+                    await a.DisposeAsync();
+                }
+                await hold.RollbackAsync();
+            }
+            Assert.Equal(0, await ScalarAsync<long>(db, "SELECT count(*) FROM site_models;"));
+            var leaseExpiry = await ScalarAsync<DateTime>(db, "SELECT expires_at FROM work_leases WHERE kind = 'refit' AND subject = 'slow' AND holder = 'a';");
 
             await using var b = await ServiceProcess.StartOnPostgresAsync(db, ["--Cluster:NodeName=b", .. settings]);
             using var viaB = b.CreateAdminClient();

@@ -42,6 +42,7 @@ public sealed class VerificationTests
         var backtest = first.GetProperty("backtest");
         var origins = backtest.GetProperty("origins").GetInt32();
         Assert.InRange(origins, 20, 30);
+        Assert.Equal(VerificationService.HourlyRefitEveryDays, backtest.GetProperty("refitEveryDays").GetInt32());
         var horizons = backtest.GetProperty("horizons").EnumerateArray().ToList();
         Assert.Equal(Enumerable.Range(1, 24), horizons.Select(h => h.GetProperty("horizon").GetInt32()));
         Assert.All(horizons, h => Assert.InRange(h.GetProperty("count").GetInt32(), 1, origins));
@@ -57,6 +58,25 @@ public sealed class VerificationTests
         Assert.True(levels[1].GetProperty("meanWidth").GetDouble() > levels[0].GetProperty("meanWidth").GetDouble());
         Assert.Equal(0, first.GetProperty("live").GetProperty("days").GetInt32());
         Assert.Equal(backtest.GetRawText(), again.GetProperty("backtest").GetRawText());
+    }
+
+    [Fact]
+    public async Task HourlyBacktestCoversTheWholeHistoryUpToAYearWithAtMostTwelveRefits()
+    {
+        await using var factory = new ApiFactory();
+        using var client = factory.CreateAdminClient();
+        await client.CreateHourlySiteAsync("season");
+        await factory.IngestAsync("season", ModelScenario.History(factory, days: 150));
+        await client.RefitAsync("season");
+
+        var backtest = (await client.GetJsonAsync("/api/v1/sites/season/verification")).GetProperty("backtest");
+
+        // 150 days of data: origins over all of them but the first fit's minimum (well past the old 60 days),
+        // refits every ceil(150 / 12) = 13 days, so at most 12 fits.
+        Assert.Equal(13, backtest.GetProperty("refitEveryDays").GetInt32());
+        Assert.InRange(backtest.GetProperty("origins").GetInt32(), 100, 150);
+        var span = backtest.GetProperty("to").GetDateTimeOffset() - backtest.GetProperty("from").GetDateTimeOffset();
+        Assert.InRange(span.TotalDays, 100, 151);
     }
 
     [Fact]
