@@ -24,6 +24,9 @@ public sealed class PostgresDatabase : IAsyncDisposable, IDisposable
         dataSource = NpgsqlDataSource.Create(ConnectionString);
     }
 
+    /// <summary>Storage trouble the server reported since start (a full disk until a write succeeds; damage until a restart).</summary>
+    public StorageHealth Health { get; } = new();
+
     /// <summary>The connection string as used, with the durability option added.</summary>
     public string ConnectionString { get; }
 
@@ -34,30 +37,55 @@ public sealed class PostgresDatabase : IAsyncDisposable, IDisposable
     public async Task<T> WriteAsync<T>(Func<NpgsqlConnection, NpgsqlTransaction, Task<T>> work, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(work);
-        await using var connection = await OpenAsync(cancellationToken).ConfigureAwait(false);
-        await using var transaction = await connection.BeginTransactionAsync(cancellationToken).ConfigureAwait(false);
-        var result = await work(connection, transaction).ConfigureAwait(false);
-        await transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
-        return result;
+        try
+        {
+            await using var connection = await OpenAsync(cancellationToken).ConfigureAwait(false);
+            await using var transaction = await connection.BeginTransactionAsync(cancellationToken).ConfigureAwait(false);
+            var result = await work(connection, transaction).ConfigureAwait(false);
+            await transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
+            Health.WriteSucceeded();
+            return result;
+        }
+        catch (PostgresException error)
+        {
+            PostgresErrors.Observe(Health, error);
+            throw;
+        }
     }
 
     /// <summary>Runs <paramref name="read"/> in one REPEATABLE READ, READ ONLY transaction, so it sees one snapshot.</summary>
     public async Task<T> ReadAsync<T>(Func<NpgsqlConnection, NpgsqlTransaction, Task<T>> read, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(read);
-        await using var connection = await OpenAsync(cancellationToken).ConfigureAwait(false);
-        await using var transaction = await connection.BeginTransactionAsync(System.Data.IsolationLevel.RepeatableRead, cancellationToken).ConfigureAwait(false);
-        var result = await read(connection, transaction).ConfigureAwait(false);
-        await transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
-        return result;
+        try
+        {
+            await using var connection = await OpenAsync(cancellationToken).ConfigureAwait(false);
+            await using var transaction = await connection.BeginTransactionAsync(System.Data.IsolationLevel.RepeatableRead, cancellationToken).ConfigureAwait(false);
+            var result = await read(connection, transaction).ConfigureAwait(false);
+            await transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
+            return result;
+        }
+        catch (PostgresException error)
+        {
+            PostgresErrors.Observe(Health, error);
+            throw;
+        }
     }
 
     /// <summary>Runs <paramref name="read"/> on a pooled connection without a transaction (one statement needs none).</summary>
     public async Task<T> QueryAsync<T>(Func<NpgsqlConnection, Task<T>> read, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(read);
-        await using var connection = await OpenAsync(cancellationToken).ConfigureAwait(false);
-        return await read(connection).ConfigureAwait(false);
+        try
+        {
+            await using var connection = await OpenAsync(cancellationToken).ConfigureAwait(false);
+            return await read(connection).ConfigureAwait(false);
+        }
+        catch (PostgresException error)
+        {
+            PostgresErrors.Observe(Health, error);
+            throw;
+        }
     }
 
     public ValueTask DisposeAsync() => dataSource.DisposeAsync();

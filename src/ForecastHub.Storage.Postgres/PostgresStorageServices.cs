@@ -42,7 +42,7 @@ public static class PostgresStorageServices
         services.AddKeyedSingleton<IWebhookStore>(Key, (sp, _) => new PostgresWebhookStore(Database(sp)));
         services.AddKeyedSingleton<IAlertStore>(Key, (sp, _) => new PostgresAlertStore(Database(sp)));
         services.AddKeyedSingleton<IWorkLeases>(Key, (sp, _) => new PostgresWorkLeases(Database(sp)));
-        services.AddKeyedSingleton<IStorageSchema>(Key, (sp, _) => new PostgresStorageSchema(sp.GetRequiredService<PostgresMigrationRunner>()));
+        services.AddKeyedSingleton<IStorageSchema>(Key, (sp, _) => new PostgresStorageSchema(Database(sp), sp.GetRequiredService<PostgresMigrationRunner>()));
         return services;
     }
 

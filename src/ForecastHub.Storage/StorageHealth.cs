@@ -3,9 +3,9 @@ using Microsoft.Data.Sqlite;
 namespace ForecastHub.Storage;
 
 /// <summary>
-/// The storage trouble SQLite has reported since start, for readiness and for the answer a request
-/// gets. Damage (SQLITE_CORRUPT, SQLITE_NOTADB) stays until a restart, whose start-up check then
-/// refuses the file; a full disk (SQLITE_FULL) lasts until a write succeeds again.
+/// The storage trouble the database has reported since start, for readiness and for the answer a request
+/// gets. Damage (SQLite: SQLITE_CORRUPT, SQLITE_NOTADB; PostgreSQL: see <c>PostgresErrors</c>) stays until a
+/// restart, whose start-up check then refuses a damaged SQLite file; a full disk lasts until a write succeeds again.
 /// </summary>
 public sealed class StorageHealth
 {
@@ -31,13 +31,22 @@ public sealed class StorageHealth
         ArgumentNullException.ThrowIfNull(error);
         if (IsDamage(error))
         {
-            damage ??= $"SQLite error {error.SqliteErrorCode}: {error.Message.ReplaceLineEndings(" ")}";
+            MarkDamaged($"SQLite error {error.SqliteErrorCode}: {error.Message}");
         }
         else if (IsFullDisk(error))
         {
-            full = true;
+            MarkFull();
         }
     }
+
+    /// <summary>Records the first damage the database reported, in its own words.</summary>
+    public void MarkDamaged(string what)
+    {
+        ArgumentNullException.ThrowIfNull(what);
+        damage ??= what.ReplaceLineEndings(" ");
+    }
+
+    public void MarkFull() => full = true;
 
     public void WriteSucceeded() => full = false;
 }

@@ -1,11 +1,15 @@
 using System.Globalization;
 using System.Net;
 using System.Net.Http.Headers;
+using System.Net.Http.Json;
 using System.Text.RegularExpressions;
+using ForecastHub.Api.Forecasts;
 using ForecastHub.Api.Tests.Infrastructure;
 using ForecastHub.Api.Tests.Models;
 using Microsoft.AspNetCore.Http;
+using ForecastHub.Storage.Sites;
 using Microsoft.AspNetCore.TestHost;
+using Microsoft.Extensions.DependencyInjection;
 
 namespace ForecastHub.Api.Tests.Metrics;
 
@@ -31,6 +35,36 @@ public sealed class MetricsExportTests
         Assert.Equal(0, Sample(text, "forecasthub_site_series_omitted"));
         Assert.Contains("forecasthub_readings_total{outcome=\"accepted\"} 48\n", text, StringComparison.Ordinal);
         Assert.Contains("service_name=\"forecasthub\"", text, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public async Task NightRiskPerThresholdIsTheLatestEvaluatedRiskAndAScrapeNeverComputesOne()
+    {
+        await using var factory = new ApiFactory();
+        using var client = factory.CreateAdminClient();
+        using (var created = await client.PostAsJsonAsync(new Uri("/api/v1/sites", UriKind.Relative), new
+        {
+            id = "frosty", name = "Frosty", timeZone = "Europe/Berlin", cadence = "hourly",
+            thresholds = new object[] { new { id = "frost", direction = "below", valueC = 0.5 }, new { id = "heat", direction = "above", valueC = 30.0 } },
+        }))
+        {
+            Assert.Equal(HttpStatusCode.Created, created.StatusCode);
+        }
+        await factory.IngestAsync("frosty", ModelScenario.History(factory, days: 8));
+        await client.RefitAsync("frosty");
+
+        var beforeEvaluation = await ScrapeAsync(client);
+        var sites = factory.Services.GetRequiredService<ISiteStore>();
+        var (risk, _) = await factory.Services.GetRequiredService<SiteRiskService>().EvaluateAsync((await sites.GetAsync("frosty"))!, CancellationToken.None);
+        var afterEvaluation = await ScrapeAsync(client);
+
+        Assert.DoesNotMatch(@"(?m)^forecasthub_site_risk_night_probability\{", beforeEvaluation);
+        var night = risk!.Risk.Where(r => r.Window.Name == "night").ToList();
+        Assert.Equal(2, night.Count);
+        foreach (var r in night)
+        {
+            Assert.Equal(r.Probability, Sample(afterEvaluation, $"forecasthub_site_risk_night_probability{{direction=\"{r.Direction}\",site=\"frosty\",threshold=\"{r.Id}\"}}"), 12);
+        }
     }
 
     [Fact]

@@ -29,7 +29,7 @@ internal sealed class PostgresBackend : IStorageBackend
     {
         this.database = database;
         var db = database.Database;
-        Schema = new PostgresStorageSchema(new PostgresMigrationRunner(db));
+        Schema = new PostgresStorageSchema(db, new PostgresMigrationRunner(db));
         Sites = new PostgresSiteStore(db, clock);
         Readings = new PostgresReadingStore(db);
         Summaries = new PostgresReadingSummaryStore(db);
