@@ -2,22 +2,13 @@ using ForecastHub.Storage.Alerts;
 using ForecastHub.Storage.Cluster;
 using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Keys;
-using ForecastHub.Storage.Migrations;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Postgres;
-using ForecastHub.Storage.Postgres.Alerts;
-using ForecastHub.Storage.Postgres.Cluster;
-using ForecastHub.Storage.Postgres.Health;
-using ForecastHub.Storage.Postgres.Keys;
-using ForecastHub.Storage.Postgres.Models;
-using ForecastHub.Storage.Postgres.Readings;
-using ForecastHub.Storage.Postgres.Sites;
-using ForecastHub.Storage.Postgres.Verification;
-using ForecastHub.Storage.Postgres.Webhooks;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
 using ForecastHub.Storage.Verification;
 using ForecastHub.Storage.Webhooks;
+using Microsoft.Extensions.DependencyInjection;
 
 namespace ForecastHub.Storage.Tests.Postgres;
 
@@ -71,15 +62,12 @@ public sealed class Backend : IAsyncDisposable
 
     public static async Task<Backend> CreateAsync(string name, TimeProvider? clock = null)
     {
-        clock ??= TimeProvider.System;
-        if (name == "sqlite")
+        // The stores come from the backend's own registration, as in the service.
+        var services = new ServiceCollection().AddSingleton(clock ?? TimeProvider.System);
+        if (name == StorageOptions.Sqlite)
         {
             var file = new TestDatabase();
-            await new MigrationRunner(file.Database).ApplyAsync();
-            var db = file.Database;
-            return new Backend(name, new SqliteSiteStore(db, clock), new SqliteReadingStore(db), new SqliteApiKeyStore(db),
-                new SqliteModelStore(db), new SqliteForecastArchive(db), new SqliteReadingSummaryStore(db), new LocalWorkLeases(clock),
-                new SqliteWebhookStore(db), new SqliteAlertStore(db), null,
+            return await FromAsync(name, services.AddSqliteStorage(_ => new StorageOptions { Path = file.Path }).BuildServiceProvider(), null,
                 () =>
                 {
                     file.Dispose();
@@ -87,11 +75,24 @@ public sealed class Backend : IAsyncDisposable
                 });
         }
 
-        var pg = await PostgresTestDatabase.CreateAsync();
-        var database = pg.Database;
-        return new Backend(name, new PostgresSiteStore(database, clock), new PostgresReadingStore(database), new PostgresApiKeyStore(database),
-            new PostgresModelStore(database), new PostgresForecastArchive(database), new PostgresReadingSummaryStore(database),
-            new PostgresWorkLeases(database), new PostgresWebhookStore(database), new PostgresAlertStore(database), database, pg.DisposeAsync);
+        var pg = await PostgresTestDatabase.CreateAsync(migrated: false);
+        var options = new StorageOptions { Provider = StorageOptions.Postgres, ConnectionString = pg.ConnectionString };
+        return await FromAsync(name, services.AddPostgresStorage(_ => options).BuildServiceProvider(), pg.Database, pg.DisposeAsync);
+    }
+
+    private static async Task<Backend> FromAsync(string name, ServiceProvider services, PostgresDatabase? postgres, Func<ValueTask> disposeDatabase)
+    {
+        T Get<T>()
+            where T : notnull => services.GetRequiredKeyedService<T>(name);
+        await Get<IStorageSchema>().MigrateAsync();
+        return new Backend(name, Get<ISiteStore>(), Get<IReadingStore>(), Get<IApiKeyStore>(), Get<IModelStore>(), Get<IForecastArchive>(),
+            Get<IReadingSummaryStore>(), Get<IWorkLeases>(), Get<IWebhookStore>(), Get<IAlertStore>(), postgres,
+            async () =>
+            {
+                // The provider closes the connections it opened before the database goes.
+                await services.DisposeAsync();
+                await disposeDatabase();
+            });
     }
 
     public ValueTask DisposeAsync() => dispose();
