@@ -1,5 +1,7 @@
 using ForecastHub.Api.Http;
 using ForecastHub.Api.Auth;
+using ForecastHub.Api.Observations;
+using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Sites;
@@ -23,9 +25,17 @@ public static class ModelEndpoints
         return group;
     }
 
+    /// <param name="unit">Temperature unit of the model's terms that are temperatures: C (default), F or K.</param>
     public static async Task<Results<Ok<ModelResponse>, ProblemHttpResult>> GetModel(
-        string siteId, ISiteStore sites, ModelService models, IModelStore store, CancellationToken cancellationToken)
+        string siteId,
+        [QueryValue(QueryValueKind.Choice, Values = [TemperatureUnits.Celsius, TemperatureUnits.Fahrenheit, TemperatureUnits.Kelvin], Default = TemperatureUnits.Celsius)] string? unit,
+        HttpRequest request, ISiteStore sites, ModelService models, IModelStore store, CancellationToken cancellationToken)
     {
+        if (RefusedQuery(request, unit) is { } refused)
+        {
+            return refused;
+        }
+
         var site = await sites.GetAsync(siteId, cancellationToken);
         if (site is null)
         {
@@ -44,12 +54,21 @@ public static class ModelEndpoints
         }
 
         var attempt = await store.GetLastAttemptAsync(siteId, cancellationToken);
-        return TypedResults.Ok(ModelMapping.Describe(site, model, attempt));
+        return TypedResults.Ok(ModelUnits.InUnit(ModelMapping.Describe(site, model, attempt), unit ?? TemperatureUnits.Celsius));
     }
 
+    /// <param name="unit">Temperature unit of the new model's terms that are temperatures: C (default), F or K.</param>
     public static async Task<Results<Ok<ModelResponse>, ProblemHttpResult>> Refit(
-        string siteId, ISiteStore sites, ModelService models, IModelStore store, CancellationToken cancellationToken)
+        string siteId,
+        [QueryValue(QueryValueKind.Choice, Values = [TemperatureUnits.Celsius, TemperatureUnits.Fahrenheit, TemperatureUnits.Kelvin], Default = TemperatureUnits.Celsius)] string? unit,
+        HttpRequest request, ISiteStore sites, ModelService models, IModelStore store, CancellationToken cancellationToken)
     {
+        // Checked before the fit: a refused request changes nothing.
+        if (RefusedQuery(request, unit) is { } refused)
+        {
+            return refused;
+        }
+
         var site = await sites.GetAsync(siteId, cancellationToken);
         if (site is null)
         {
@@ -70,6 +89,14 @@ public static class ModelEndpoints
         }
 
         var attempt = await store.GetLastAttemptAsync(siteId, cancellationToken);
-        return TypedResults.Ok(ModelMapping.Describe(site, outcome.Model!, attempt));
+        return TypedResults.Ok(ModelUnits.InUnit(ModelMapping.Describe(site, outcome.Model!, attempt), unit ?? TemperatureUnits.Celsius));
+    }
+
+    // The model routes read only 'unit'.
+    private static ProblemHttpResult? RefusedQuery(HttpRequest request, string? unit)
+    {
+        ArgumentNullException.ThrowIfNull(request);
+        return QueryParameters.RejectUnknown(request, "unit")
+            ?? (unit is null || TemperatureUnits.IsKnown(unit) ? null : ApiProblems.BadRequest("unit", TemperatureUnits.UnknownUnitMessage));
     }
 }
