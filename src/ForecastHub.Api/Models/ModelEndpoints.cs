@@ -58,6 +58,11 @@ public static class ModelEndpoints
     }
 
     /// <param name="unit">Temperature unit of the new model's terms that are temperatures: C (default), F or K.</param>
+    /// <response code="409">Nothing was fitted: the site has no stored readings, fewer observed grid points than a fit needs (Health:MinHourlyPoints,
+    /// default 168, or Health:MinDailyPoints, default 60; the detail gives both counts), or it was deleted or its settings changed while the fit ran.
+    /// The serving model, if any, is unchanged.</response>
+    /// <response code="422">The fit failed on the site's data (for example every grid value is the same); the detail gives the error. The failure is
+    /// recorded as the last attempt and the previous model, if any, keeps serving.</response>
     public static async Task<Results<Ok<ModelResponse>, ProblemHttpResult>> Refit(
         string siteId,
         [QueryValue(QueryValueKind.Choice, Values = [TemperatureUnits.Celsius, TemperatureUnits.Fahrenheit, TemperatureUnits.Kelvin], Default = TemperatureUnits.Celsius)] string? unit,

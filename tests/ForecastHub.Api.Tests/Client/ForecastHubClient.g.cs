@@ -413,7 +413,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("No forecast yet: the site has no fitted model (it is warming up with fewer observed grid points than a fit needs, its fit failed, or its stored model is of another build and is being refitted), or it has no stored readings to start from. The detail names the health state and its reasons. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -590,7 +590,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("No forecast yet: the site has no fitted model (it is warming up with fewer observed grid points than a fit needs, its fit failed, or its stored model is of another build and is being refitted), or it has no stored readings to start from. The detail names the health state and its reasons. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -1172,7 +1172,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("The new key\'s random id met a key created at the same moment; nothing was stored: send the request again. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 413)
@@ -1612,7 +1612,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("The key cannot be revoked: it is the configured admin key (Auth:AdminKey), it was already revoked (the detail says when), or it is the last active admin key while no Auth:AdminKey is configured (create another admin key first). Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -1939,7 +1939,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("Nothing was fitted: the site has no stored readings, fewer observed grid points than a fit needs (Health:MinHourlyPoints, default 168, or Health:MinDailyPoints, default 60; the detail gives both counts), or it was deleted or its settings changed while the fit ran. The serving model, if any, is unchanged. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 422)
@@ -1949,7 +1949,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Unprocessable Content. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("The fit failed on the site\'s data (for example every grid value is the same); the detail gives the error. The failure is recorded as the last attempt and the previous model, if any, keeps serving. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -2183,7 +2183,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Unprocessable Content. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("Nothing was stored. Either every reading was rejected (it failed validation, or a different value is stored for its time): the problem carries the counts and `rejected`, each row\'s index, line, time and reason. Or the batch looks sent in another unit than it says (read as C it is implausible for the site, read as F or K it is not): it is refused whole and the problem names the field `unit`. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -2515,7 +2515,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("A site with this id already exists (deleted sites free their id); change it with PATCH. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 413)
@@ -3271,7 +3271,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("Nothing to verify yet: the site has no fitted model (it is warming up, its fit failed, or its stored model is being refitted). Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -3418,7 +3418,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("There are already 100 webhooks (delete one first), or the new webhook\'s random id met one created at the same moment (send the request again). Nothing was stored. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 413)
