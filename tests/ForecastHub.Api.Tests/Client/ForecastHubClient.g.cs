@@ -413,7 +413,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("No forecast yet: the site has no fitted model (it is warming up with fewer observed grid points than a fit needs, its fit failed, or its stored model is of another build and is being refitted), or it has no stored readings to start from. The detail names the health state and its reasons. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -590,7 +590,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("No forecast yet: the site has no fitted model (it is warming up with fewer observed grid points than a fit needs, its fit failed, or its stored model is of another build and is being refitted), or it has no stored readings to start from. The detail names the health state and its reasons. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -1172,7 +1172,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("The new key\'s random id met a key created at the same moment; nothing was stored: send the request again. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 413)
@@ -1612,7 +1612,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("The key cannot be revoked: it is the configured admin key (Auth:AdminKey), it was already revoked (the detail says when), or it is the last active admin key while no Auth:AdminKey is configured (create another admin key first). Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -1651,11 +1651,12 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// Needs a read or admin key (no key when anonymous reads are on).
         /// </remarks>
         /// <param name="siteId">The site's id, as given when it was created (lower-case letters, digits and hyphens).</param>
+        /// <param name="unit">Temperature unit of the model's terms that are temperatures: C (default), F or K.</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual System.Threading.Tasks.Task<ModelsModelResponse> GetModelAsync(string siteId)
+        public virtual System.Threading.Tasks.Task<ModelsModelResponse> GetModelAsync(string siteId, Unit3? unit)
         {
-            return GetModelAsync(siteId, System.Threading.CancellationToken.None);
+            return GetModelAsync(siteId, unit, System.Threading.CancellationToken.None);
         }
 
         /// <param name="cancellationToken">A cancellation token that can be used by other objects or threads to receive notice of cancellation.</param>
@@ -1666,9 +1667,10 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// Needs a read or admin key (no key when anonymous reads are on).
         /// </remarks>
         /// <param name="siteId">The site's id, as given when it was created (lower-case letters, digits and hyphens).</param>
+        /// <param name="unit">Temperature unit of the model's terms that are temperatures: C (default), F or K.</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual async System.Threading.Tasks.Task<ModelsModelResponse> GetModelAsync(string siteId, System.Threading.CancellationToken cancellationToken)
+        public virtual async System.Threading.Tasks.Task<ModelsModelResponse> GetModelAsync(string siteId, Unit3? unit, System.Threading.CancellationToken cancellationToken)
         {
             if (siteId == null)
                 throw new System.ArgumentNullException("siteId");
@@ -1688,6 +1690,12 @@ namespace ForecastHub.Api.Tests.Client.Generated
                     urlBuilder_.Append("api/v1/sites/");
                     urlBuilder_.Append(System.Uri.EscapeDataString(ConvertToString(siteId, System.Globalization.CultureInfo.InvariantCulture)));
                     urlBuilder_.Append("/model");
+                    urlBuilder_.Append('?');
+                    if (unit != null)
+                    {
+                        urlBuilder_.Append(System.Uri.EscapeDataString("unit")).Append('=').Append(System.Uri.EscapeDataString(ConvertToString(unit, System.Globalization.CultureInfo.InvariantCulture))).Append('&');
+                    }
+                    urlBuilder_.Length--;
 
                     PrepareRequest(client_, request_, urlBuilder_);
 
@@ -1728,6 +1736,16 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             throw new ForecastHubApiException("Not modified: the If-None-Match ETag still matches; no body.", status_, responseText_, headers_, null);
                         }
                         else
+                        if (status_ == 400)
+                        {
+                            var objectResponse_ = await ReadObjectResponseAsync<ProblemDetails>(response_, headers_, cancellationToken).ConfigureAwait(false);
+                            if (objectResponse_.Object == null)
+                            {
+                                throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
+                            }
+                            throw new ForecastHubApiException<ProblemDetails>("A query parameter is invalid; the problem names it. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.1", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                        }
+                        else
                         if (status_ == 401)
                         {
                             var objectResponse_ = await ReadObjectResponseAsync<ProblemDetails>(response_, headers_, cancellationToken).ConfigureAwait(false);
@@ -1794,11 +1812,12 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// Needs an admin key.
         /// </remarks>
         /// <param name="siteId">The site's id, as given when it was created (lower-case letters, digits and hyphens).</param>
+        /// <param name="unit">Temperature unit of the new model's terms that are temperatures: C (default), F or K.</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual System.Threading.Tasks.Task<ModelsModelResponse> RefitModelAsync(string siteId)
+        public virtual System.Threading.Tasks.Task<ModelsModelResponse> RefitModelAsync(string siteId, Unit4? unit)
         {
-            return RefitModelAsync(siteId, System.Threading.CancellationToken.None);
+            return RefitModelAsync(siteId, unit, System.Threading.CancellationToken.None);
         }
 
         /// <param name="cancellationToken">A cancellation token that can be used by other objects or threads to receive notice of cancellation.</param>
@@ -1809,9 +1828,10 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// Needs an admin key.
         /// </remarks>
         /// <param name="siteId">The site's id, as given when it was created (lower-case letters, digits and hyphens).</param>
+        /// <param name="unit">Temperature unit of the new model's terms that are temperatures: C (default), F or K.</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual async System.Threading.Tasks.Task<ModelsModelResponse> RefitModelAsync(string siteId, System.Threading.CancellationToken cancellationToken)
+        public virtual async System.Threading.Tasks.Task<ModelsModelResponse> RefitModelAsync(string siteId, Unit4? unit, System.Threading.CancellationToken cancellationToken)
         {
             if (siteId == null)
                 throw new System.ArgumentNullException("siteId");
@@ -1832,6 +1852,12 @@ namespace ForecastHub.Api.Tests.Client.Generated
                     urlBuilder_.Append("api/v1/sites/");
                     urlBuilder_.Append(System.Uri.EscapeDataString(ConvertToString(siteId, System.Globalization.CultureInfo.InvariantCulture)));
                     urlBuilder_.Append("/model/refit");
+                    urlBuilder_.Append('?');
+                    if (unit != null)
+                    {
+                        urlBuilder_.Append(System.Uri.EscapeDataString("unit")).Append('=').Append(System.Uri.EscapeDataString(ConvertToString(unit, System.Globalization.CultureInfo.InvariantCulture))).Append('&');
+                    }
+                    urlBuilder_.Length--;
 
                     PrepareRequest(client_, request_, urlBuilder_);
 
@@ -1864,6 +1890,16 @@ namespace ForecastHub.Api.Tests.Client.Generated
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
                             return objectResponse_.Object;
+                        }
+                        else
+                        if (status_ == 400)
+                        {
+                            var objectResponse_ = await ReadObjectResponseAsync<ProblemDetails>(response_, headers_, cancellationToken).ConfigureAwait(false);
+                            if (objectResponse_.Object == null)
+                            {
+                                throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
+                            }
+                            throw new ForecastHubApiException<ProblemDetails>("A query parameter is invalid; the problem names it. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.1", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 401)
@@ -1903,7 +1939,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("Nothing was fitted: the site has no stored readings, fewer observed grid points than a fit needs (Health:MinHourlyPoints, default 168, or Health:MinDailyPoints, default 60; the detail gives both counts), or it was deleted or its settings changed while the fit ran. The serving model, if any, is unchanged. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 422)
@@ -1913,7 +1949,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Unprocessable Content. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("The fit failed on the site\'s data (for example every grid value is the same); the detail gives the error. The failure is recorded as the last attempt and the previous model, if any, keeps serving. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -1962,7 +1998,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// <param name="localTimes">true: times without an offset are wall-clock times of the site's zone (see the README for repeated hours).</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual System.Threading.Tasks.Task<ObservationsAnswer> PostObservationsAsync(string siteId, Unit3? unit, OnConflict? onConflict, string? timeColumn, string? valueColumn, string? unitColumn, Separator? separator, Decimal? @decimal, bool? localTimes, ObservationsBody body)
+        public virtual System.Threading.Tasks.Task<ObservationsAnswer> PostObservationsAsync(string siteId, Unit5? unit, OnConflict? onConflict, string? timeColumn, string? valueColumn, string? unitColumn, Separator? separator, Decimal? @decimal, bool? localTimes, ObservationsBody body)
         {
             return PostObservationsAsync(siteId, unit, onConflict, timeColumn, valueColumn, unitColumn, separator, @decimal, localTimes, body, System.Threading.CancellationToken.None);
         }
@@ -1985,7 +2021,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// <param name="localTimes">true: times without an offset are wall-clock times of the site's zone (see the README for repeated hours).</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual async System.Threading.Tasks.Task<ObservationsAnswer> PostObservationsAsync(string siteId, Unit3? unit, OnConflict? onConflict, string? timeColumn, string? valueColumn, string? unitColumn, Separator? separator, Decimal? @decimal, bool? localTimes, ObservationsBody body, System.Threading.CancellationToken cancellationToken)
+        public virtual async System.Threading.Tasks.Task<ObservationsAnswer> PostObservationsAsync(string siteId, Unit5? unit, OnConflict? onConflict, string? timeColumn, string? valueColumn, string? unitColumn, Separator? separator, Decimal? @decimal, bool? localTimes, ObservationsBody body, System.Threading.CancellationToken cancellationToken)
         {
             if (siteId == null)
                 throw new System.ArgumentNullException("siteId");
@@ -2147,7 +2183,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Unprocessable Content. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("Nothing was stored. Either every reading was rejected (it failed validation, or a different value is stored for its time): the problem carries the counts and `rejected`, each row\'s index, line, time and reason. Or the batch looks sent in another unit than it says (read as C it is implausible for the site, read as F or K it is not): it is refused whole and the problem names the field `unit`. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -2479,7 +2515,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("A site with this id already exists (deleted sites free their id); change it with PATCH. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 413)
@@ -3235,7 +3271,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("Nothing to verify yet: the site has no fitted model (it is warming up, its fit failed, or its stored model is being refitted). Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -3382,7 +3418,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("There are already 100 webhooks (delete one first), or the new webhook\'s random id met one created at the same moment (send the request again). Nothing was stored. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 413)
@@ -5207,6 +5243,14 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("siteId")]
         public string SiteId { get; set; } = default!;
 
+        /// <summary>
+        /// Unit of the terms that are temperatures (C, F or K): the seasonality's level, its amplitudes and their standard
+        /// <br/>            errors, the AR mean, the innovation variance (squared units), and the residuals' mean and sd. Differences and variances only scale;
+        /// <br/>            coefficients, correlations, test statistics and the information criteria (those of the fit in degrees C) are unchanged.
+        /// </summary>
+        [System.Text.Json.Serialization.JsonPropertyName("unit")]
+        public string Unit { get; set; } = default!;
+
         [System.Text.Json.Serialization.JsonPropertyName("fittedAt")]
         public System.DateTimeOffset FittedAt { get; set; } = default!;
 
@@ -6191,6 +6235,36 @@ namespace ForecastHub.Api.Tests.Client.Generated
 
     [System.CodeDom.Compiler.GeneratedCode("NJsonSchema", "14.8.0.0 (NJsonSchema v11.6.2.0 (Newtonsoft.Json v13.0.0.0))")]
     public enum Unit3
+    {
+
+        [System.Runtime.Serialization.EnumMember(Value = @"C")]
+        C = 0,
+
+        [System.Runtime.Serialization.EnumMember(Value = @"F")]
+        F = 1,
+
+        [System.Runtime.Serialization.EnumMember(Value = @"K")]
+        K = 2,
+
+    }
+
+    [System.CodeDom.Compiler.GeneratedCode("NJsonSchema", "14.8.0.0 (NJsonSchema v11.6.2.0 (Newtonsoft.Json v13.0.0.0))")]
+    public enum Unit4
+    {
+
+        [System.Runtime.Serialization.EnumMember(Value = @"C")]
+        C = 0,
+
+        [System.Runtime.Serialization.EnumMember(Value = @"F")]
+        F = 1,
+
+        [System.Runtime.Serialization.EnumMember(Value = @"K")]
+        K = 2,
+
+    }
+
+    [System.CodeDom.Compiler.GeneratedCode("NJsonSchema", "14.8.0.0 (NJsonSchema v11.6.2.0 (Newtonsoft.Json v13.0.0.0))")]
+    public enum Unit5
     {
 
         [System.Runtime.Serialization.EnumMember(Value = @"C")]
