@@ -160,8 +160,7 @@ public static class ForecastEndpoints
                 .Where(p => double.IsFinite(p.Value)).ToList();
         var chartSteps = forecast.Steps.Select(s => new ChartStep(TimeZoneInfo.ConvertTime(s.Time, zone), s.Mean,
             s.Intervals.ToDictionary(i => (int)Math.Round(i.Level), i => (i.Lower, i.Upper)))).ToList();
-        var title = $"{site.Name}: forecast from {forecast.Origin:yyyy-MM-dd HH:mm} UTC (own history only; official warnings come first)";
-        var svg = ForecastChart.Render(title, axisUnit == TemperatureUnits.Kelvin ? "K" : "°" + axisUnit, points, chartSteps);
+        var svg = ForecastChart.Render(ForecastChart.Title(site.Name, forecast.Origin), axisUnit == TemperatureUnits.Kelvin ? "K" : "°" + axisUnit, points, chartSteps);
         return TypedResults.Content(svg, "image/svg+xml; charset=utf-8");
     }
 }

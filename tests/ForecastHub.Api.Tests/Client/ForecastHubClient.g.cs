@@ -4400,6 +4400,11 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("horizons")]
         public System.Collections.Generic.ICollection<ScoresResponse> Horizons { get; set; } = default!;
 
+        /// <summary>
+        /// Scores as in DESIGN section 4. Bias is mean(forecast - observed); levels are percentages.
+        /// <br/>            A score that is not a finite number (skill against a reference that made no error, say) is null,
+        /// <br/>            and `Notes` says which and why: JSON has no NaN or Infinity.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("pooled")]
         public ScoresResponse Pooled { get; set; } = default!;
 
@@ -4712,14 +4717,20 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("healthState")]
         public string HealthState { get; set; } = default!;
 
+        /// <summary>
+        /// The model used; `intervalMethod` is what the intervals actually came from (gaussian when no calibration exists).
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("model")]
         public ForecastModelUsed Model { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("steps")]
         public System.Collections.Generic.ICollection<ForecastsForecastStep> Steps { get; set; } = default!;
 
+        /// <summary>
+        /// The next local day: quantile summaries of its min, max and mean, and threshold probabilities.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("nextDay")]
-        public ForecastsNextDaySummary NextDay { get; set; } = default!;
+        public ForecastsNextDaySummary? NextDay { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("risk")]
         public System.Collections.Generic.ICollection<RiskResponse> Risk { get; set; } = default!;
@@ -4727,11 +4738,17 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("confidence")]
         public string Confidence { get; set; } = default!;
 
+        /// <summary>
+        /// Why confidence is reduced: `code` is the site's health state (stale, sensor-suspect or drifting).
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("confidenceReason")]
-        public ConfidenceReason ConfidenceReason { get; set; } = default!;
+        public ConfidenceReason? ConfidenceReason { get; set; } = default!;
 
+        /// <summary>
+        /// Present when the newest grid steps before the origin had no data: the forecast starts from the last data and its intervals are wider.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("missingRecentData")]
-        public ForecastDataGap MissingRecentData { get; set; } = default!;
+        public ForecastDataGap? MissingRecentData { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("cautions")]
         public System.Collections.Generic.ICollection<string> Cautions { get; set; } = default!;
@@ -5068,6 +5085,9 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("quality")]
         public QualityResponse Quality { get; set; } = default!;
 
+        /// <summary>
+        /// A site's model settings in their wire words.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("model")]
         public SitesModelResponse Model { get; set; } = default!;
 
@@ -5123,8 +5143,13 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("days")]
         public int Days { get; set; } = default!;
 
+        /// <summary>
+        /// Scores as in DESIGN section 4. Bias is mean(forecast - observed); levels are percentages.
+        /// <br/>            A score that is not a finite number (skill against a reference that made no error, say) is null,
+        /// <br/>            and `Notes` says which and why: JSON has no NaN or Infinity.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("pooled")]
-        public ScoresResponse Pooled { get; set; } = default!;
+        public ScoresResponse? Pooled { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("daily")]
         public System.Collections.Generic.ICollection<LiveDayResponse> Daily { get; set; } = default!;
@@ -5278,9 +5303,15 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("acf")]
         public System.Collections.Generic.ICollection<LagValueResponse> Acf { get; set; } = default!;
 
+        /// <summary>
+        /// Ljung-Box and Jarque-Bera are null when there are too few residuals for them.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("residuals")]
         public ResidualsResponse Residuals { get; set; } = default!;
 
+        /// <summary>
+        /// How the prediction intervals are made: "calibrated" (scaled by rolling-origin errors) or "gaussian".
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("intervals")]
         public IntervalsResponse Intervals { get; set; } = default!;
 
@@ -5288,7 +5319,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
         public System.Collections.Generic.ICollection<string> Notes { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("lastAttempt")]
-        public LastFitAttempt LastAttempt { get; set; } = default!;
+        public LastFitAttempt? LastAttempt { get; set; } = default!;
 
     }
 
@@ -5531,6 +5562,11 @@ namespace ForecastHub.Api.Tests.Client.Generated
     public partial class RaisedAlertResponse
     {
 
+        /// <summary>
+        /// A risk as an event and the alert list carry it: the site, the threshold, the window, the chance
+        /// <br/>of at least one crossing in it, the first crossing, the forecast origin it comes from, the
+        /// <br/>forecast's confidence, and the cautions. `reason` is set on `risk.cleared` only.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("alert")]
         public RiskAlert Alert { get; set; } = default!;
 
@@ -5567,6 +5603,9 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("schemaVersion")]
         public int SchemaVersion { get; set; } = default!;
 
+        /// <summary>
+        /// The MQTT subscription: `off` (no Mqtt:Server), `connecting`, `connected` or `reconnecting`.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("mqtt")]
         public MqttStatus Mqtt { get; set; } = default!;
 
@@ -5622,10 +5661,10 @@ namespace ForecastHub.Api.Tests.Client.Generated
     {
 
         [System.Text.Json.Serialization.JsonPropertyName("ljungBox")]
-        public LjungBoxResponse LjungBox { get; set; } = default!;
+        public LjungBoxResponse? LjungBox { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("jarqueBera")]
-        public JarqueBeraResponse JarqueBera { get; set; } = default!;
+        public JarqueBeraResponse? JarqueBera { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("mean")]
         public double Mean { get; set; } = default!;
@@ -5656,17 +5695,26 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("siteName")]
         public string SiteName { get; set; } = default!;
 
+        /// <summary>
+        /// A site threshold as alerts see it; without `AlertProbability` it never alerts.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("threshold")]
         public AlertThreshold Threshold { get; set; } = default!;
 
+        /// <summary>
+        /// The window an alert is about.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("window")]
         public AlertWindow Window { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("probability")]
         public double Probability { get; set; } = default!;
 
+        /// <summary>
+        /// The time of first crossing over the sample paths that cross: median and 10 % / 90 % quantiles.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("firstCrossing")]
-        public FirstCrossing FirstCrossing { get; set; } = default!;
+        public FirstCrossing? FirstCrossing { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("origin")]
         public System.DateTimeOffset Origin { get; set; } = default!;
@@ -5715,7 +5763,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
         public double Probability { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("firstCrossing")]
-        public CrossingResponse FirstCrossing { get; set; } = default!;
+        public CrossingResponse? FirstCrossing { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("expectedHoursBeyond")]
         public double? ExpectedHoursBeyond { get; set; } = default!;
@@ -5863,16 +5911,19 @@ namespace ForecastHub.Api.Tests.Client.Generated
         public double? ElevationM { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("quality")]
-        public QualityBody Quality { get; set; } = default!;
+        public QualityBody? Quality { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("model")]
-        public ModelBody Model { get; set; } = default!;
+        public ModelBody? Model { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("thresholds")]
         public System.Collections.Generic.ICollection<ThresholdBody>? Thresholds { get; set; } = default!;
 
+        /// <summary>
+        /// The site's night as local clock times "HH:mm"; an end at or before the start runs past midnight.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("night")]
-        public NightBody Night { get; set; } = default!;
+        public NightBody? Night { get; set; } = default!;
 
     }
 
@@ -5943,6 +5994,9 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("quality")]
         public QualityResponse Quality { get; set; } = default!;
 
+        /// <summary>
+        /// A site's model settings in their wire words.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("model")]
         public SitesModelResponse Model { get; set; } = default!;
 
@@ -6125,9 +6179,17 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("evaluatedAt")]
         public System.DateTimeOffset EvaluatedAt { get; set; } = default!;
 
+        /// <summary>
+        /// The backtest: refit every `RefitEveryDays` over the last `Days` of the grid, forecast
+        /// <br/>the next day from each daily origin; scores per horizon (steps ahead). Null when the history is
+        /// <br/>too short for one origin.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("backtest")]
-        public BacktestResponse Backtest { get; set; } = default!;
+        public BacktestResponse? Backtest { get; set; } = default!;
 
+        /// <summary>
+        /// Live scores over the last `Days` scored days (up to ForecastHub.Api.Verification.VerificationService.MaxLiveDays), pooled and per day.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("live")]
         public LiveScoresResponse Live { get; set; } = default!;
 
