@@ -1,4 +1,5 @@
 using Microsoft.Data.Sqlite;
+using SQLitePCL;
 
 namespace ForecastHub.Storage;
 
@@ -8,10 +9,15 @@ namespace ForecastHub.Storage;
 /// failing with "database is locked", and the busy timeout covers other processes on the file.
 /// Connections use <c>synchronous=FULL</c>: in WAL mode each commit is fsynced before it returns,
 /// so an acknowledged write survives a killed process and a power cut.
+/// Group commit: writes that queued while another held the lock run together in the next
+/// transaction, each in its own savepoint, so one fsync serves them all. A write that throws is
+/// rolled back to its savepoint alone; one commit makes all of them durable, or none of them.
 /// </summary>
 public sealed class SqliteDatabase : IDisposable
 {
     private readonly SemaphoreSlim _writeLock = new(1, 1);
+    // Writes waiting for the write lock, in arrival order; whoever holds the lock runs them all.
+    private readonly List<QueuedWrite> _queued = [];
     private readonly int _busyTimeoutMs;
     private readonly string _maxPageCountPragma;
 
@@ -69,33 +75,191 @@ public sealed class SqliteDatabase : IDisposable
     private async Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, bool foreignKeys, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(work);
+        if (!foreignKeys)
+        {
+            return await WriteAloneWithoutForeignKeysAsync(work, cancellationToken).ConfigureAwait(false);
+        }
+        var write = new QueuedWrite<T>(work);
+        lock (_queued)
+        {
+            _queued.Add(write);
+        }
+        try
+        {
+            await _writeLock.WaitAsync(cancellationToken).ConfigureAwait(false);
+        }
+        catch (OperationCanceledException)
+        {
+            lock (_queued)
+            {
+                // Still waiting: withdrawn. Otherwise another writer has taken it, and its outcome stands.
+                if (_queued.Remove(write))
+                {
+                    throw;
+                }
+            }
+            return await write.Done.Task.ConfigureAwait(false);
+        }
+        try
+        {
+            // Run by an earlier holder already: every write still queued has its own caller waiting for the lock.
+            if (!write.Done.Task.IsCompleted)
+            {
+                RunQueued();
+            }
+        }
+        finally
+        {
+            _writeLock.Release();
+        }
+        return await write.Done.Task.ConfigureAwait(false);
+    }
+
+    /// <summary>Writes waiting for the write lock (tests wait on it to build a shared transaction).</summary>
+    internal int QueuedWrites
+    {
+        get
+        {
+            lock (_queued)
+            {
+                return _queued.Count;
+            }
+        }
+    }
+
+    // Under the write lock: every queued write, the caller's own among them, in one transaction.
+    private void RunQueued()
+    {
+        List<QueuedWrite> batch;
+        lock (_queued)
+        {
+            batch = [.. _queued];
+            _queued.Clear();
+        }
+        try
+        {
+            using var connection = Open();
+            using var transaction = connection.BeginTransaction(deferred: false);
+            foreach (var write in batch)
+            {
+                if (batch.Count == 1)
+                {
+                    write.Run(connection, transaction);
+                }
+                else
+                {
+                    RunInSavepoint(write, connection, transaction);
+                }
+            }
+            if (batch.Exists(w => w.Error is null))
+            {
+                transaction.Commit();
+                Health.WriteSucceeded();
+            }
+        }
+        catch (Exception error)
+        {
+            // Opening, BEGIN or COMMIT failed, or SQLite ended the transaction itself: nothing of the batch is stored.
+            foreach (var write in batch)
+            {
+                write.Error ??= error;
+            }
+        }
+        foreach (var write in batch)
+        {
+            if (write.Error is SqliteException sqliteError)
+            {
+                Health.Observe(sqliteError);
+            }
+            write.Complete();
+        }
+    }
+
+    private const string WriteSavepoint = "queued_write";
+
+    // A failed write is undone back to its savepoint, unless SQLite rolled back the whole transaction
+    // (a full disk, an I/O error): then the batch fails, as none of its writes can be committed.
+    private static void RunInSavepoint(QueuedWrite write, SqliteConnection connection, SqliteTransaction transaction)
+    {
+        transaction.Save(WriteSavepoint);
+        write.Run(connection, transaction);
+        if (write.Error is null)
+        {
+            transaction.Release(WriteSavepoint);
+            return;
+        }
+        if (raw.sqlite3_get_autocommit(connection.Handle) != 0)
+        {
+            throw write.Error;
+        }
+        transaction.Rollback(WriteSavepoint);
+        transaction.Release(WriteSavepoint);
+    }
+
+    private abstract class QueuedWrite
+    {
+        /// <summary>What the work threw, or what made its transaction fail.</summary>
+        public Exception? Error { get; set; }
+
+        public abstract void Run(SqliteConnection connection, SqliteTransaction transaction);
+
+        /// <summary>Hands the outcome to the waiting caller, after the commit (or its failure).</summary>
+        public abstract void Complete();
+    }
+
+    private sealed class QueuedWrite<T>(Func<SqliteConnection, SqliteTransaction, T> work) : QueuedWrite
+    {
+        private T? _result;
+
+        // Continuations run on the thread pool, not on the writer that holds the lock.
+        public TaskCompletionSource<T> Done { get; } = new(TaskCreationOptions.RunContinuationsAsynchronously);
+
+        public override void Run(SqliteConnection connection, SqliteTransaction transaction)
+        {
+            try
+            {
+                _result = work(connection, transaction);
+            }
+            catch (Exception error)
+            {
+                Error = error;
+            }
+        }
+
+        public override void Complete()
+        {
+            if (Error is null)
+            {
+                Done.SetResult(_result!);
+            }
+            else
+            {
+                Done.SetException(Error);
+            }
+        }
+    }
+
+    // Alone in its transaction: the pragma is a no-op inside a transaction, so it is set before BEGIN
+    // and set back before the connection returns to the pool.
+    private async Task<T> WriteAloneWithoutForeignKeysAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken)
+    {
         await _writeLock.WaitAsync(cancellationToken).ConfigureAwait(false);
         try
         {
             using var connection = Open();
-            // The pragma is a no-op inside a transaction, so it is set before BEGIN and set back before the connection returns to the pool.
-            if (!foreignKeys)
-            {
-                SetForeignKeys(connection, on: false);
-            }
+            SetForeignKeys(connection, on: false);
             try
             {
                 using var transaction = connection.BeginTransaction(deferred: false);
                 var result = work(connection, transaction);
-                if (!foreignKeys)
-                {
-                    CheckForeignKeys(connection, transaction);
-                }
+                CheckForeignKeys(connection, transaction);
                 transaction.Commit();
                 Health.WriteSucceeded();
                 return result;
             }
             finally
             {
-                if (!foreignKeys)
-                {
-                    SetForeignKeys(connection, on: true);
-                }
+                SetForeignKeys(connection, on: true);
             }
         }
         catch (SqliteException error)
