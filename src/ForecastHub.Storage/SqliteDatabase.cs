@@ -1,4 +1,6 @@
+using System.Runtime.CompilerServices;
 using Microsoft.Data.Sqlite;
+using SQLitePCL;
 
 namespace ForecastHub.Storage;
 
@@ -12,24 +14,25 @@ namespace ForecastHub.Storage;
 public sealed class SqliteDatabase : IDisposable
 {
     private readonly SemaphoreSlim _writeLock = new(1, 1);
-    private readonly int _busyTimeoutMs;
-    private readonly string _maxPageCountPragma;
+    // Native connections already given the per-connection pragmas: a pooled connection keeps them, so each is set up once.
+    private readonly ConditionalWeakTable<sqlite3, object> _prepared = new();
+    private readonly string _setUpPragmas;
+    private volatile bool _folderExists;
 
     public SqliteDatabase(StorageOptions options)
     {
         ArgumentNullException.ThrowIfNull(options);
         FilePath = System.IO.Path.GetFullPath(options.Path);
-        _busyTimeoutMs = options.BusyTimeoutMs;
         ConnectionString = new SqliteConnectionStringBuilder
         {
             DataSource = FilePath,
             Mode = SqliteOpenMode.ReadWriteCreate,
             Cache = SqliteCacheMode.Private,
             Pooling = true,
-            ForeignKeys = true,
             DefaultTimeout = Math.Max(1, options.BusyTimeoutMs / 1000),
         }.ToString();
-        _maxPageCountPragma = options.MaxSizeMb is { } mb ? $" PRAGMA max_page_count = {mb * 1024L * 1024L / 4096};" : "";
+        var maxPageCount = options.MaxSizeMb is { } mb ? $" PRAGMA max_page_count = {mb * 1024L * 1024L / 4096};" : "";
+        _setUpPragmas = $"PRAGMA foreign_keys = ON; PRAGMA busy_timeout = {options.BusyTimeoutMs}; PRAGMA synchronous = FULL;{maxPageCount}";
     }
 
     public string FilePath { get; }
@@ -39,44 +42,62 @@ public sealed class SqliteDatabase : IDisposable
 
     public string ConnectionString { get; }
 
-    /// <summary>A pooled connection for reading; dispose it after the unit of work.</summary>
+    /// <summary>A pooled connection (foreign keys on, the busy timeout, synchronous=FULL); dispose it after the unit of work.</summary>
     public SqliteConnection Open()
     {
-        var folder = System.IO.Path.GetDirectoryName(FilePath);
-        if (!string.IsNullOrEmpty(folder))
+        if (!_folderExists)
         {
-            Directory.CreateDirectory(folder);
+            var folder = System.IO.Path.GetDirectoryName(FilePath);
+            if (!string.IsNullOrEmpty(folder))
+            {
+                Directory.CreateDirectory(folder);
+            }
+            _folderExists = true;
         }
         var connection = new SqliteConnection(ConnectionString);
         connection.Open();
-        using var pragma = connection.CreateCommand();
-        pragma.CommandText = $"PRAGMA busy_timeout = {_busyTimeoutMs}; PRAGMA synchronous = FULL;{_maxPageCountPragma}";
-        pragma.ExecuteNonQuery();
+        var handle = connection.Handle!;
+        if (!_prepared.TryGetValue(handle, out _))
+        {
+            Pragma(connection, _setUpPragmas);
+            _prepared.TryAdd(handle, handle);
+        }
         return connection;
     }
 
     /// <summary>Runs <paramref name="work"/> as the only writer, in one IMMEDIATE transaction that
     /// commits when it returns and rolls back when it throws.</summary>
     public Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
-        WriteAsync(work, foreignKeys: true, cancellationToken);
+        WriteAsync(work, foreignKeys: true, waitForDisk: true, cancellationToken);
 
     /// <summary>As <see cref="WriteAsync{T}(Func{SqliteConnection, SqliteTransaction, T}, CancellationToken)"/>, with foreign
     /// keys off for the transaction, for a migration that rebuilds a parent table (dropping it must not
     /// cascade to its children). Every foreign key is checked before the commit; a dangling one rolls it back.</summary>
     public Task<T> WriteWithoutForeignKeysAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
-        WriteAsync(work, foreignKeys: false, cancellationToken);
+        WriteAsync(work, foreignKeys: false, waitForDisk: true, cancellationToken);
 
-    private async Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, bool foreignKeys, CancellationToken cancellationToken)
+    /// <summary>
+    /// As <see cref="WriteAsync{T}(Func{SqliteConnection, SqliteTransaction, T}, CancellationToken)"/> for a write that a
+    /// crash may lose without harm because the next evaluation makes it again: committed with <c>synchronous=NORMAL</c>,
+    /// so the commit does not wait for the disk. The file stays consistent, and the next durable commit makes it durable too.
+    /// </summary>
+    public Task<T> WriteRecomputableAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
+        WriteAsync(work, foreignKeys: true, waitForDisk: false, cancellationToken);
+
+    private async Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, bool foreignKeys, bool waitForDisk, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(work);
         await _writeLock.WaitAsync(cancellationToken).ConfigureAwait(false);
         try
         {
             using var connection = Open();
-            // The pragma is a no-op inside a transaction, so it is set before BEGIN and set back before the connection returns to the pool.
-            if (!foreignKeys)
+            // These pragmas are set outside the transaction and set back before the connection returns to the pool;
+            // it is forgotten as set up first, so its next use sets them again even if the reset fails.
+            var changed = !foreignKeys || !waitForDisk;
+            if (changed)
             {
-                SetForeignKeys(connection, on: false);
+                _prepared.Remove(connection.Handle!);
+                Pragma(connection, $"PRAGMA foreign_keys = {(foreignKeys ? "ON" : "OFF")}; PRAGMA synchronous = {(waitForDisk ? "FULL" : "NORMAL")};");
             }
             try
             {
@@ -92,9 +113,10 @@ public sealed class SqliteDatabase : IDisposable
             }
             finally
             {
-                if (!foreignKeys)
+                if (changed)
                 {
-                    SetForeignKeys(connection, on: true);
+                    Pragma(connection, _setUpPragmas);
+                    _prepared.TryAdd(connection.Handle!, connection.Handle!);
                 }
             }
         }
@@ -121,10 +143,10 @@ public sealed class SqliteDatabase : IDisposable
 
     private const int SqliteConstraint = 19;
 
-    private static void SetForeignKeys(SqliteConnection connection, bool on)
+    private static void Pragma(SqliteConnection connection, string pragmas)
     {
         using var pragma = connection.CreateCommand();
-        pragma.CommandText = $"PRAGMA foreign_keys = {(on ? "ON" : "OFF")};";
+        pragma.CommandText = pragmas;
         pragma.ExecuteNonQuery();
     }
 
