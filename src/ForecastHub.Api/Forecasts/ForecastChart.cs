@@ -24,6 +24,10 @@ public static class ForecastChart
     private const double Top = 36;
     private const double Bottom = 56;
 
+    /// <summary>The chart's title: the site, the forecast's origin, and the caution in short.</summary>
+    public static string Title(string siteName, DateTimeOffset origin) =>
+        Invariant($"{siteName}: forecast from {origin.UtcDateTime:yyyy-MM-dd HH:mm} UTC (own history only; official warnings come first)");
+
     public static string Render(string title, string unitLabel, IReadOnlyList<ChartPoint> history, IReadOnlyList<ChartStep> forecast)
     {
         ArgumentNullException.ThrowIfNull(history);

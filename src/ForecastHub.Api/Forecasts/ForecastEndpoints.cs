@@ -33,6 +33,8 @@ public static class ForecastEndpoints
     /// <param name="above">Thresholds, in the answer's unit, for the chance that the next local day's maximum exceeds each.</param>
     /// <param name="unit">Temperature unit of the answer and of the thresholds: C (default), F or K.</param>
     /// <param name="format">json (default) or csv; <c>Accept: text/csv</c> also asks for CSV.</param>
+    /// <response code="409">No forecast yet: the site has no fitted model (it is warming up with fewer observed grid points than a fit needs, its fit failed,
+    /// or its stored model is of another build and is being refitted), or it has no stored readings to start from. The detail names the health state and its reasons.</response>
     public static async Task<Results<SerializedOk<ForecastResponse>, Ok<ForecastResponse>, ContentHttpResult, ProblemHttpResult>> GetForecast(
         string siteId,
         [QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = ForecastQuery.MaxHourlySteps)] string? steps,
@@ -108,6 +110,8 @@ public static class ForecastEndpoints
 
     /// <param name="steps">Grid steps ahead: 1-240 hourly (default 48), 1-14 daily (default 3).</param>
     /// <param name="unit">Temperature unit of the axis: C (default), F or K.</param>
+    /// <response code="409">No forecast yet: the site has no fitted model (it is warming up with fewer observed grid points than a fit needs, its fit failed,
+    /// or its stored model is of another build and is being refitted), or it has no stored readings to start from. The detail names the health state and its reasons.</response>
     public static async Task<Results<ContentHttpResult, ProblemHttpResult>> GetForecastChart(
         string siteId, [QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = ForecastQuery.MaxHourlySteps)] string? steps,
         [QueryValue(QueryValueKind.Choice, Values = [TemperatureUnits.Celsius, TemperatureUnits.Fahrenheit, TemperatureUnits.Kelvin], Default = TemperatureUnits.Celsius)] string? unit, HttpRequest request, ISiteStore sites, ForecastService forecasts, SiteGridLoader grids,
@@ -156,8 +160,7 @@ public static class ForecastEndpoints
                 .Where(p => double.IsFinite(p.Value)).ToList();
         var chartSteps = forecast.Steps.Select(s => new ChartStep(TimeZoneInfo.ConvertTime(s.Time, zone), s.Mean,
             s.Intervals.ToDictionary(i => (int)Math.Round(i.Level), i => (i.Lower, i.Upper)))).ToList();
-        var title = $"{site.Name}: forecast from {forecast.Origin:yyyy-MM-dd HH:mm} UTC (own history only; official warnings come first)";
-        var svg = ForecastChart.Render(title, axisUnit == TemperatureUnits.Kelvin ? "K" : "°" + axisUnit, points, chartSteps);
+        var svg = ForecastChart.Render(ForecastChart.Title(site.Name, forecast.Origin), axisUnit == TemperatureUnits.Kelvin ? "K" : "°" + axisUnit, points, chartSteps);
         return TypedResults.Content(svg, "image/svg+xml; charset=utf-8");
     }
 }

@@ -42,6 +42,7 @@ public static partial class KeysEndpoints
         return group;
     }
 
+    /// <response code="409">The new key's random id met a key created at the same moment; nothing was stored: send the request again.</response>
     public static async Task<Results<Created<CreatedKeyResponse>, ValidationProblem, ProblemHttpResult>> Create(
         HttpRequest request, HttpResponse response, IApiKeyStore keys, ISiteStore sites, TimeProvider clock, CancellationToken cancellationToken)
     {
@@ -103,6 +104,8 @@ public static partial class KeysEndpoints
         return key is null ? NoSuchKey(keyId) : TypedResults.Ok(KeyResponse.From(key));
     }
 
+    /// <response code="409">The key cannot be revoked: it is the configured admin key (Auth:AdminKey), it was already revoked (the detail says
+    /// when), or it is the last active admin key while no Auth:AdminKey is configured (create another admin key first).</response>
     public static async Task<Results<NoContent, ProblemHttpResult>> Revoke(
         string keyId, HttpContext context, IApiKeyStore keys, ApiKeyCache cache, IOptions<AuthOptions> auth, TimeProvider clock,
         CancellationToken cancellationToken)

@@ -1,5 +1,7 @@
 using ForecastHub.Api.Http;
 using ForecastHub.Api.Auth;
+using ForecastHub.Api.Observations;
+using ForecastHub.Api.OpenApi;
 using ForecastHub.Api.Problems;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Sites;
@@ -23,9 +25,17 @@ public static class ModelEndpoints
         return group;
     }
 
+    /// <param name="unit">Temperature unit of the model's terms that are temperatures: C (default), F or K.</param>
     public static async Task<Results<Ok<ModelResponse>, ProblemHttpResult>> GetModel(
-        string siteId, ISiteStore sites, ModelService models, IModelStore store, CancellationToken cancellationToken)
+        string siteId,
+        [QueryValue(QueryValueKind.Choice, Values = [TemperatureUnits.Celsius, TemperatureUnits.Fahrenheit, TemperatureUnits.Kelvin], Default = TemperatureUnits.Celsius)] string? unit,
+        HttpRequest request, ISiteStore sites, ModelService models, IModelStore store, CancellationToken cancellationToken)
     {
+        if (RefusedQuery(request, unit) is { } refused)
+        {
+            return refused;
+        }
+
         var site = await sites.GetAsync(siteId, cancellationToken);
         if (site is null)
         {
@@ -44,12 +54,26 @@ public static class ModelEndpoints
         }
 
         var attempt = await store.GetLastAttemptAsync(siteId, cancellationToken);
-        return TypedResults.Ok(ModelMapping.Describe(site, model, attempt));
+        return TypedResults.Ok(ModelUnits.InUnit(ModelMapping.Describe(site, model, attempt), unit ?? TemperatureUnits.Celsius));
     }
 
+    /// <param name="unit">Temperature unit of the new model's terms that are temperatures: C (default), F or K.</param>
+    /// <response code="409">Nothing was fitted: the site has no stored readings, fewer observed grid points than a fit needs (Health:MinHourlyPoints,
+    /// default 168, or Health:MinDailyPoints, default 60; the detail gives both counts), or it was deleted or its settings changed while the fit ran.
+    /// The serving model, if any, is unchanged.</response>
+    /// <response code="422">The fit failed on the site's data (for example every grid value is the same); the detail gives the error. The failure is
+    /// recorded as the last attempt and the previous model, if any, keeps serving.</response>
     public static async Task<Results<Ok<ModelResponse>, ProblemHttpResult>> Refit(
-        string siteId, ISiteStore sites, ModelService models, IModelStore store, CancellationToken cancellationToken)
+        string siteId,
+        [QueryValue(QueryValueKind.Choice, Values = [TemperatureUnits.Celsius, TemperatureUnits.Fahrenheit, TemperatureUnits.Kelvin], Default = TemperatureUnits.Celsius)] string? unit,
+        HttpRequest request, ISiteStore sites, ModelService models, IModelStore store, CancellationToken cancellationToken)
     {
+        // Checked before the fit: a refused request changes nothing.
+        if (RefusedQuery(request, unit) is { } refused)
+        {
+            return refused;
+        }
+
         var site = await sites.GetAsync(siteId, cancellationToken);
         if (site is null)
         {
@@ -70,6 +94,14 @@ public static class ModelEndpoints
         }
 
         var attempt = await store.GetLastAttemptAsync(siteId, cancellationToken);
-        return TypedResults.Ok(ModelMapping.Describe(site, outcome.Model!, attempt));
+        return TypedResults.Ok(ModelUnits.InUnit(ModelMapping.Describe(site, outcome.Model!, attempt), unit ?? TemperatureUnits.Celsius));
+    }
+
+    // The model routes read only 'unit'.
+    private static ProblemHttpResult? RefusedQuery(HttpRequest request, string? unit)
+    {
+        ArgumentNullException.ThrowIfNull(request);
+        return QueryParameters.RejectUnknown(request, "unit")
+            ?? (unit is null || TemperatureUnits.IsKnown(unit) ? null : ApiProblems.BadRequest("unit", TemperatureUnits.UnknownUnitMessage));
     }
 }

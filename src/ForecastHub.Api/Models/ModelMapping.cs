@@ -6,7 +6,7 @@ using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Api.Models;
 
-/// <summary>A fitted model mapped to the field names of <c>GET .../model</c> (DESIGN section 5).</summary>
+/// <summary>A fitted model mapped to the field names of <c>GET .../model</c> (DESIGN section 5), in degrees C.</summary>
 public static class ModelMapping
 {
     public static ModelResponse Describe(SiteRecord site, ServingModel serving, FitAttempt? attempt)
@@ -19,6 +19,7 @@ public static class ModelMapping
         var diagnostics = m.Diagnostics;
         return new ModelResponse(
             site.Id,
+            Observations.TemperatureUnits.Celsius,
             serving.Stored.FittedAt,
             serving.Stored.FitDurationMs,
             serving.Stored.SettingsVersion,

@@ -1,8 +1,12 @@
 namespace ForecastHub.Api.Models;
 
 /// <summary>GET .../model: the fitted model and its diagnostics with the field names of DESIGN section 5.</summary>
+/// <param name="Unit">Unit of the terms that are temperatures (C, F or K): the seasonality's level, its amplitudes and their standard
+/// errors, the AR mean, the innovation variance (squared units), and the residuals' mean and sd. Differences and variances only scale;
+/// coefficients, correlations, test statistics and the information criteria (those of the fit in degrees C) are unchanged.</param>
 public sealed record ModelResponse(
     string SiteId,
+    string Unit,
     DateTimeOffset FittedAt,
     double FitDurationMs,
     long SettingsVersion,

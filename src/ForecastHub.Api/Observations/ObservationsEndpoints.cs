@@ -39,6 +39,9 @@ public static class ObservationsEndpoints
         return group;
     }
 
+    /// <response code="422">Nothing was stored. Either every reading was rejected (it failed validation, or a different value is stored for its
+    /// time): the problem carries the counts and <c>rejected</c>, each row's index, line, time and reason. Or the batch looks sent in another unit than it says (read as C it is implausible for the site, read as F or K it
+    /// is not): it is refused whole and the problem names the field <c>unit</c>.</response>
     public static async Task<Results<Ok<ObservationsAnswer>, ProblemHttpResult>> Post(
         string siteId, HttpRequest request, [AsParameters] IngestQuery query,
         IReadingStore readings, ISiteStore sites, ServiceMetrics metrics, TimeProvider clock, CancellationToken cancellationToken)

@@ -29,6 +29,9 @@ public static class TemperatureUnits
     /// <summary>A temperature difference (a standard deviation, an interval width) in <paramref name="unit"/>.</summary>
     public static double SpreadFromCelsius(double value, string unit) => unit == Fahrenheit ? value * 9 / 5 : value;
 
+    /// <summary>A variance of temperatures (squared degrees) in <paramref name="unit"/>: the scale applies twice.</summary>
+    public static double VarianceFromCelsius(double value, string unit) => unit == Fahrenheit ? value * 81 / 25 : value;
+
     /// <summary>The unit as exports spell it ('°C', 'degF', 'c') in the contract's form; other text unchanged (and refused later).</summary>
     public static string Normalise(string unit)
     {

@@ -10,6 +10,16 @@ namespace ForecastHub.Api.OpenApi;
 /// the API explorer does not see.</summary>
 public sealed class MetricsDocumentFilter : IDocumentFilter
 {
+    /// <summary>A few series of a scrape of the demo's low orchard (values invented); a test checks each family against a real scrape.</summary>
+    public const string Example =
+        "# TYPE forecasthub_readings_total counter\n" +
+        "forecasthub_readings_total{outcome=\"accepted\"} 18240\n" +
+        "forecasthub_readings_total{outcome=\"flagged\"} 12\n" +
+        "# TYPE forecasthub_site_health gauge\n" +
+        "forecasthub_site_health{site=\"" + ApiExamples.SiteId + "\",state=\"ok\"} 1\n" +
+        "# TYPE forecasthub_site_reading_age_seconds gauge\n" +
+        "forecasthub_site_reading_age_seconds{site=\"" + ApiExamples.SiteId + "\"} 420\n";
+
     public void Apply(OpenApiDocument swaggerDoc, DocumentFilterContext context)
     {
         ArgumentNullException.ThrowIfNull(swaggerDoc);
@@ -40,7 +50,11 @@ public sealed class MetricsDocumentFilter : IDocumentFilter
                             Description = "OK",
                             Content = new Dictionary<string, OpenApiMediaType>
                             {
-                                ["text/plain"] = new() { Schema = new OpenApiSchema { Type = JsonSchemaType.String } },
+                                ["text/plain"] = new()
+                                {
+                                    Schema = new OpenApiSchema { Type = JsonSchemaType.String },
+                                    Example = System.Text.Json.Nodes.JsonValue.Create(Example),
+                                },
                             },
                         },
                         ["401"] = Problem("No key, a malformed Authorization header, or an unknown or revoked key."),

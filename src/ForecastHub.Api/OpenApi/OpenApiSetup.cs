@@ -39,11 +39,14 @@ public static class OpenApiSetup
             options.OperationFilter<QueryValuesFilter>();
             options.OperationFilter<CsvRequestBodyFilter>();
             options.OperationFilter<PathParametersFilter>();
+            options.OperationFilter<SuccessExamplesFilter>();
             options.DocumentFilter<MetricsDocumentFilter>();
             options.DocumentFilter<ProblemTypesDocumentFilter>();
             var defaultSchemaId = options.SchemaGeneratorOptions.SchemaIdSelector;
             options.SchemaGeneratorOptions.SchemaIdSelector = type => SchemaId(type, defaultSchemaId);
             options.SupportNonNullableReferenceTypes();
+            // A nullable object field (confidenceReason, nextDay, lastAttempt) as allOf [$ref] beside nullable: true: OpenAPI 3.0 ignores siblings of a bare $ref.
+            options.UseAllOfToExtendReferenceSchemas();
         });
         return services;
     }

@@ -9,7 +9,7 @@ namespace ForecastHub.Api.OpenApi;
 /// <summary>Names the problem <c>type</c> of every documented error status (from <see cref="ProblemTypes"/>,
 /// the table the answers use) in the response description and in an example body. Runs after every
 /// other filter, so statuses added by any of them are covered.</summary>
-public sealed class ProblemTypesDocumentFilter : IDocumentFilter
+public sealed partial class ProblemTypesDocumentFilter : IDocumentFilter
 {
     public void Apply(OpenApiDocument swaggerDoc, DocumentFilterContext context)
     {
@@ -27,7 +27,8 @@ public sealed class ProblemTypesDocumentFilter : IDocumentFilter
             {
                 continue;
             }
-            var reason = string.IsNullOrEmpty(response.Description) ? ReasonPhrase(status) : response.Description.TrimEnd('.');
+            // An XML <response> doc wrapped over several source lines reads as one paragraph.
+            var reason = string.IsNullOrEmpty(response.Description) ? ReasonPhrase(status) : LineBreaks().Replace(response.Description, " ").TrimEnd('.');
             response.Description = $"{reason}. Problem type: {type}";
             problem!.Example = new JsonObject
             {
@@ -37,6 +38,9 @@ public sealed class ProblemTypesDocumentFilter : IDocumentFilter
             };
         }
     }
+
+    [System.Text.RegularExpressions.GeneratedRegex(@"\s*\n\s*")]
+    private static partial System.Text.RegularExpressions.Regex LineBreaks();
 
     private static string ReasonPhrase(int status) => Microsoft.AspNetCore.WebUtilities.ReasonPhrases.GetReasonPhrase(status);
 }

@@ -22,23 +22,44 @@ public static class RequestBody
         {
             return null;
         }
-        var buffer = new MemoryStream();
-        var chunk = new byte[81920];
         try
         {
-            int read;
-            while ((read = await request.Body.ReadAsync(chunk, cancellationToken).ConfigureAwait(false)) > 0)
-            {
-                if (buffer.Length + read > maxBytes)
-                {
-                    return null;
-                }
-                buffer.Write(chunk, 0, read);
-            }
+            return request.ContentLength is { } length
+                ? await ReadExactlyAsync(request.Body, (int)length, cancellationToken).ConfigureAwait(false)
+                : await ReadToEndAsync(request.Body, maxBytes, cancellationToken).ConfigureAwait(false);
         }
         catch (BadHttpRequestException e) when (e.StatusCode == StatusCodes.Status413PayloadTooLarge)
         {
             return null;
+        }
+    }
+
+    // A declared length is read straight into an array of that size: no growing buffer, no copy
+    // (a 10,000-reading body is about 450 KB). The server ends the request if fewer bytes arrive.
+    private static async Task<byte[]> ReadExactlyAsync(Stream body, int length, CancellationToken cancellationToken)
+    {
+        var bytes = new byte[length];
+        var filled = 0;
+        int read;
+        while (filled < length && (read = await body.ReadAsync(bytes.AsMemory(filled), cancellationToken).ConfigureAwait(false)) > 0)
+        {
+            filled += read;
+        }
+        return filled == length ? bytes : bytes[..filled];
+    }
+
+    private static async Task<byte[]?> ReadToEndAsync(Stream body, int maxBytes, CancellationToken cancellationToken)
+    {
+        var buffer = new MemoryStream();
+        var chunk = new byte[81920];
+        int read;
+        while ((read = await body.ReadAsync(chunk, cancellationToken).ConfigureAwait(false)) > 0)
+        {
+            if (buffer.Length + read > maxBytes)
+            {
+                return null;
+            }
+            buffer.Write(chunk, 0, read);
         }
         return buffer.ToArray();
     }

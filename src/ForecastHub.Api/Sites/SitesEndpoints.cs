@@ -42,6 +42,7 @@ public static class SitesEndpoints
         return group;
     }
 
+    /// <response code="409">A site with this id already exists (deleted sites free their id); change it with PATCH.</response>
     public static async Task<Results<Created<SiteResponse>, ValidationProblem, ProblemHttpResult>> Create(
         HttpRequest request, ISiteStore sites, TimeProvider clock, CancellationToken cancellationToken)
     {

@@ -18,6 +18,7 @@ public static class VerificationEndpoints
         return group;
     }
 
+    /// <response code="409">Nothing to verify yet: the site has no fitted model (it is warming up, its fit failed, or its stored model is being refitted).</response>
     public static async Task<Results<Ok<VerificationResponse>, ProblemHttpResult>> GetVerification(
         string siteId, ISiteStore sites, VerificationService verification, CancellationToken cancellationToken)
     {

@@ -40,6 +40,8 @@ public static partial class WebhookEndpoints
         return group;
     }
 
+    /// <response code="409">There are already 100 webhooks (delete one first), or the new webhook's random id met one created at the same moment
+    /// (send the request again). Nothing was stored.</response>
     public static async Task<Results<Created<CreatedWebhookResponse>, ValidationProblem, ProblemHttpResult>> Create(
         HttpRequest request, HttpResponse response, IWebhookStore webhooks, IOptions<WebhookOptions> options, TimeProvider clock,
         CancellationToken cancellationToken)

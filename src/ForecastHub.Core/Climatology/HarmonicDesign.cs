@@ -14,11 +14,14 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
 {
     public const double YearDays = 365.25;
 
+    /// <summary>The intercept: the mean temperature; every other term is an amplitude (a temperature difference).</summary>
+    public const string LevelTerm = "level";
+
     public int Columns => 1 + 2 * AnnualHarmonics + 2 * DiurnalHarmonics;
 
     public IReadOnlyList<string> TermNames()
     {
-        var names = new List<string> { "level" };
+        var names = new List<string> { LevelTerm };
         for (var k = 1; k <= AnnualHarmonics; k++)
         {
             names.Add($"annual-cos-{k}");

@@ -413,7 +413,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("No forecast yet: the site has no fitted model (it is warming up with fewer observed grid points than a fit needs, its fit failed, or its stored model is of another build and is being refitted), or it has no stored readings to start from. The detail names the health state and its reasons. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -590,7 +590,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("No forecast yet: the site has no fitted model (it is warming up with fewer observed grid points than a fit needs, its fit failed, or its stored model is of another build and is being refitted), or it has no stored readings to start from. The detail names the health state and its reasons. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -1172,7 +1172,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("The new key\'s random id met a key created at the same moment; nothing was stored: send the request again. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 413)
@@ -1612,7 +1612,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("The key cannot be revoked: it is the configured admin key (Auth:AdminKey), it was already revoked (the detail says when), or it is the last active admin key while no Auth:AdminKey is configured (create another admin key first). Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -1651,11 +1651,12 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// Needs a read or admin key (no key when anonymous reads are on).
         /// </remarks>
         /// <param name="siteId">The site's id, as given when it was created (lower-case letters, digits and hyphens).</param>
+        /// <param name="unit">Temperature unit of the model's terms that are temperatures: C (default), F or K.</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual System.Threading.Tasks.Task<ModelsModelResponse> GetModelAsync(string siteId)
+        public virtual System.Threading.Tasks.Task<ModelsModelResponse> GetModelAsync(string siteId, Unit3? unit)
         {
-            return GetModelAsync(siteId, System.Threading.CancellationToken.None);
+            return GetModelAsync(siteId, unit, System.Threading.CancellationToken.None);
         }
 
         /// <param name="cancellationToken">A cancellation token that can be used by other objects or threads to receive notice of cancellation.</param>
@@ -1666,9 +1667,10 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// Needs a read or admin key (no key when anonymous reads are on).
         /// </remarks>
         /// <param name="siteId">The site's id, as given when it was created (lower-case letters, digits and hyphens).</param>
+        /// <param name="unit">Temperature unit of the model's terms that are temperatures: C (default), F or K.</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual async System.Threading.Tasks.Task<ModelsModelResponse> GetModelAsync(string siteId, System.Threading.CancellationToken cancellationToken)
+        public virtual async System.Threading.Tasks.Task<ModelsModelResponse> GetModelAsync(string siteId, Unit3? unit, System.Threading.CancellationToken cancellationToken)
         {
             if (siteId == null)
                 throw new System.ArgumentNullException("siteId");
@@ -1688,6 +1690,12 @@ namespace ForecastHub.Api.Tests.Client.Generated
                     urlBuilder_.Append("api/v1/sites/");
                     urlBuilder_.Append(System.Uri.EscapeDataString(ConvertToString(siteId, System.Globalization.CultureInfo.InvariantCulture)));
                     urlBuilder_.Append("/model");
+                    urlBuilder_.Append('?');
+                    if (unit != null)
+                    {
+                        urlBuilder_.Append(System.Uri.EscapeDataString("unit")).Append('=').Append(System.Uri.EscapeDataString(ConvertToString(unit, System.Globalization.CultureInfo.InvariantCulture))).Append('&');
+                    }
+                    urlBuilder_.Length--;
 
                     PrepareRequest(client_, request_, urlBuilder_);
 
@@ -1728,6 +1736,16 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             throw new ForecastHubApiException("Not modified: the If-None-Match ETag still matches; no body.", status_, responseText_, headers_, null);
                         }
                         else
+                        if (status_ == 400)
+                        {
+                            var objectResponse_ = await ReadObjectResponseAsync<ProblemDetails>(response_, headers_, cancellationToken).ConfigureAwait(false);
+                            if (objectResponse_.Object == null)
+                            {
+                                throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
+                            }
+                            throw new ForecastHubApiException<ProblemDetails>("A query parameter is invalid; the problem names it. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.1", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                        }
+                        else
                         if (status_ == 401)
                         {
                             var objectResponse_ = await ReadObjectResponseAsync<ProblemDetails>(response_, headers_, cancellationToken).ConfigureAwait(false);
@@ -1794,11 +1812,12 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// Needs an admin key.
         /// </remarks>
         /// <param name="siteId">The site's id, as given when it was created (lower-case letters, digits and hyphens).</param>
+        /// <param name="unit">Temperature unit of the new model's terms that are temperatures: C (default), F or K.</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual System.Threading.Tasks.Task<ModelsModelResponse> RefitModelAsync(string siteId)
+        public virtual System.Threading.Tasks.Task<ModelsModelResponse> RefitModelAsync(string siteId, Unit4? unit)
         {
-            return RefitModelAsync(siteId, System.Threading.CancellationToken.None);
+            return RefitModelAsync(siteId, unit, System.Threading.CancellationToken.None);
         }
 
         /// <param name="cancellationToken">A cancellation token that can be used by other objects or threads to receive notice of cancellation.</param>
@@ -1809,9 +1828,10 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// Needs an admin key.
         /// </remarks>
         /// <param name="siteId">The site's id, as given when it was created (lower-case letters, digits and hyphens).</param>
+        /// <param name="unit">Temperature unit of the new model's terms that are temperatures: C (default), F or K.</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual async System.Threading.Tasks.Task<ModelsModelResponse> RefitModelAsync(string siteId, System.Threading.CancellationToken cancellationToken)
+        public virtual async System.Threading.Tasks.Task<ModelsModelResponse> RefitModelAsync(string siteId, Unit4? unit, System.Threading.CancellationToken cancellationToken)
         {
             if (siteId == null)
                 throw new System.ArgumentNullException("siteId");
@@ -1832,6 +1852,12 @@ namespace ForecastHub.Api.Tests.Client.Generated
                     urlBuilder_.Append("api/v1/sites/");
                     urlBuilder_.Append(System.Uri.EscapeDataString(ConvertToString(siteId, System.Globalization.CultureInfo.InvariantCulture)));
                     urlBuilder_.Append("/model/refit");
+                    urlBuilder_.Append('?');
+                    if (unit != null)
+                    {
+                        urlBuilder_.Append(System.Uri.EscapeDataString("unit")).Append('=').Append(System.Uri.EscapeDataString(ConvertToString(unit, System.Globalization.CultureInfo.InvariantCulture))).Append('&');
+                    }
+                    urlBuilder_.Length--;
 
                     PrepareRequest(client_, request_, urlBuilder_);
 
@@ -1864,6 +1890,16 @@ namespace ForecastHub.Api.Tests.Client.Generated
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
                             return objectResponse_.Object;
+                        }
+                        else
+                        if (status_ == 400)
+                        {
+                            var objectResponse_ = await ReadObjectResponseAsync<ProblemDetails>(response_, headers_, cancellationToken).ConfigureAwait(false);
+                            if (objectResponse_.Object == null)
+                            {
+                                throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
+                            }
+                            throw new ForecastHubApiException<ProblemDetails>("A query parameter is invalid; the problem names it. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.1", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 401)
@@ -1903,7 +1939,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("Nothing was fitted: the site has no stored readings, fewer observed grid points than a fit needs (Health:MinHourlyPoints, default 168, or Health:MinDailyPoints, default 60; the detail gives both counts), or it was deleted or its settings changed while the fit ran. The serving model, if any, is unchanged. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 422)
@@ -1913,7 +1949,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Unprocessable Content. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("The fit failed on the site\'s data (for example every grid value is the same); the detail gives the error. The failure is recorded as the last attempt and the previous model, if any, keeps serving. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -1962,7 +1998,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// <param name="localTimes">true: times without an offset are wall-clock times of the site's zone (see the README for repeated hours).</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual System.Threading.Tasks.Task<ObservationsAnswer> PostObservationsAsync(string siteId, Unit3? unit, OnConflict? onConflict, string? timeColumn, string? valueColumn, string? unitColumn, Separator? separator, Decimal? @decimal, bool? localTimes, ObservationsBody body)
+        public virtual System.Threading.Tasks.Task<ObservationsAnswer> PostObservationsAsync(string siteId, Unit5? unit, OnConflict? onConflict, string? timeColumn, string? valueColumn, string? unitColumn, Separator? separator, Decimal? @decimal, bool? localTimes, ObservationsBody body)
         {
             return PostObservationsAsync(siteId, unit, onConflict, timeColumn, valueColumn, unitColumn, separator, @decimal, localTimes, body, System.Threading.CancellationToken.None);
         }
@@ -1985,7 +2021,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// <param name="localTimes">true: times without an offset are wall-clock times of the site's zone (see the README for repeated hours).</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual async System.Threading.Tasks.Task<ObservationsAnswer> PostObservationsAsync(string siteId, Unit3? unit, OnConflict? onConflict, string? timeColumn, string? valueColumn, string? unitColumn, Separator? separator, Decimal? @decimal, bool? localTimes, ObservationsBody body, System.Threading.CancellationToken cancellationToken)
+        public virtual async System.Threading.Tasks.Task<ObservationsAnswer> PostObservationsAsync(string siteId, Unit5? unit, OnConflict? onConflict, string? timeColumn, string? valueColumn, string? unitColumn, Separator? separator, Decimal? @decimal, bool? localTimes, ObservationsBody body, System.Threading.CancellationToken cancellationToken)
         {
             if (siteId == null)
                 throw new System.ArgumentNullException("siteId");
@@ -2147,7 +2183,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Unprocessable Content. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("Nothing was stored. Either every reading was rejected (it failed validation, or a different value is stored for its time): the problem carries the counts and `rejected`, each row\'s index, line, time and reason. Or the batch looks sent in another unit than it says (read as C it is implausible for the site, read as F or K it is not): it is refused whole and the problem names the field `unit`. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.21", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -2479,7 +2515,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("A site with this id already exists (deleted sites free their id); change it with PATCH. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 413)
@@ -3235,7 +3271,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("Nothing to verify yet: the site has no fitted model (it is warming up, its fit failed, or its stored model is being refitted). Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 429)
@@ -3382,7 +3418,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
                             {
                                 throw new ForecastHubApiException("Response was null which was not expected.", status_, objectResponse_.Text, headers_, null);
                             }
-                            throw new ForecastHubApiException<ProblemDetails>("Conflict. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
+                            throw new ForecastHubApiException<ProblemDetails>("There are already 100 webhooks (delete one first), or the new webhook\'s random id met one created at the same moment (send the request again). Nothing was stored. Problem type: https://tools.ietf.org/html/rfc9110#section-15.5.10", status_, objectResponse_.Text, headers_, objectResponse_.Object, null);
                         }
                         else
                         if (status_ == 413)
@@ -4364,6 +4400,11 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("horizons")]
         public System.Collections.Generic.ICollection<ScoresResponse> Horizons { get; set; } = default!;
 
+        /// <summary>
+        /// Scores as in DESIGN section 4. Bias is mean(forecast - observed); levels are percentages.
+        /// <br/>            A score that is not a finite number (skill against a reference that made no error, say) is null,
+        /// <br/>            and `Notes` says which and why: JSON has no NaN or Infinity.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("pooled")]
         public ScoresResponse Pooled { get; set; } = default!;
 
@@ -4676,14 +4717,20 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("healthState")]
         public string HealthState { get; set; } = default!;
 
+        /// <summary>
+        /// The model used; `intervalMethod` is what the intervals actually came from (gaussian when no calibration exists).
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("model")]
         public ForecastModelUsed Model { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("steps")]
         public System.Collections.Generic.ICollection<ForecastsForecastStep> Steps { get; set; } = default!;
 
+        /// <summary>
+        /// The next local day: quantile summaries of its min, max and mean, and threshold probabilities.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("nextDay")]
-        public ForecastsNextDaySummary NextDay { get; set; } = default!;
+        public ForecastsNextDaySummary? NextDay { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("risk")]
         public System.Collections.Generic.ICollection<RiskResponse> Risk { get; set; } = default!;
@@ -4691,11 +4738,17 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("confidence")]
         public string Confidence { get; set; } = default!;
 
+        /// <summary>
+        /// Why confidence is reduced: `code` is the site's health state (stale, sensor-suspect or drifting).
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("confidenceReason")]
-        public ConfidenceReason ConfidenceReason { get; set; } = default!;
+        public ConfidenceReason? ConfidenceReason { get; set; } = default!;
 
+        /// <summary>
+        /// Present when the newest grid steps before the origin had no data: the forecast starts from the last data and its intervals are wider.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("missingRecentData")]
-        public ForecastDataGap MissingRecentData { get; set; } = default!;
+        public ForecastDataGap? MissingRecentData { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("cautions")]
         public System.Collections.Generic.ICollection<string> Cautions { get; set; } = default!;
@@ -5032,6 +5085,9 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("quality")]
         public QualityResponse Quality { get; set; } = default!;
 
+        /// <summary>
+        /// A site's model settings in their wire words.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("model")]
         public SitesModelResponse Model { get; set; } = default!;
 
@@ -5087,8 +5143,13 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("days")]
         public int Days { get; set; } = default!;
 
+        /// <summary>
+        /// Scores as in DESIGN section 4. Bias is mean(forecast - observed); levels are percentages.
+        /// <br/>            A score that is not a finite number (skill against a reference that made no error, say) is null,
+        /// <br/>            and `Notes` says which and why: JSON has no NaN or Infinity.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("pooled")]
-        public ScoresResponse Pooled { get; set; } = default!;
+        public ScoresResponse? Pooled { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("daily")]
         public System.Collections.Generic.ICollection<LiveDayResponse> Daily { get; set; } = default!;
@@ -5207,6 +5268,14 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("siteId")]
         public string SiteId { get; set; } = default!;
 
+        /// <summary>
+        /// Unit of the terms that are temperatures (C, F or K): the seasonality's level, its amplitudes and their standard
+        /// <br/>            errors, the AR mean, the innovation variance (squared units), and the residuals' mean and sd. Differences and variances only scale;
+        /// <br/>            coefficients, correlations, test statistics and the information criteria (those of the fit in degrees C) are unchanged.
+        /// </summary>
+        [System.Text.Json.Serialization.JsonPropertyName("unit")]
+        public string Unit { get; set; } = default!;
+
         [System.Text.Json.Serialization.JsonPropertyName("fittedAt")]
         public System.DateTimeOffset FittedAt { get; set; } = default!;
 
@@ -5234,9 +5303,15 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("acf")]
         public System.Collections.Generic.ICollection<LagValueResponse> Acf { get; set; } = default!;
 
+        /// <summary>
+        /// Ljung-Box and Jarque-Bera are null when there are too few residuals for them.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("residuals")]
         public ResidualsResponse Residuals { get; set; } = default!;
 
+        /// <summary>
+        /// How the prediction intervals are made: "calibrated" (scaled by rolling-origin errors) or "gaussian".
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("intervals")]
         public IntervalsResponse Intervals { get; set; } = default!;
 
@@ -5244,7 +5319,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
         public System.Collections.Generic.ICollection<string> Notes { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("lastAttempt")]
-        public LastFitAttempt LastAttempt { get; set; } = default!;
+        public LastFitAttempt? LastAttempt { get; set; } = default!;
 
     }
 
@@ -5487,6 +5562,11 @@ namespace ForecastHub.Api.Tests.Client.Generated
     public partial class RaisedAlertResponse
     {
 
+        /// <summary>
+        /// A risk as an event and the alert list carry it: the site, the threshold, the window, the chance
+        /// <br/>of at least one crossing in it, the first crossing, the forecast origin it comes from, the
+        /// <br/>forecast's confidence, and the cautions. `reason` is set on `risk.cleared` only.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("alert")]
         public RiskAlert Alert { get; set; } = default!;
 
@@ -5523,6 +5603,9 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("schemaVersion")]
         public int SchemaVersion { get; set; } = default!;
 
+        /// <summary>
+        /// The MQTT subscription: `off` (no Mqtt:Server), `connecting`, `connected` or `reconnecting`.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("mqtt")]
         public MqttStatus Mqtt { get; set; } = default!;
 
@@ -5578,10 +5661,10 @@ namespace ForecastHub.Api.Tests.Client.Generated
     {
 
         [System.Text.Json.Serialization.JsonPropertyName("ljungBox")]
-        public LjungBoxResponse LjungBox { get; set; } = default!;
+        public LjungBoxResponse? LjungBox { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("jarqueBera")]
-        public JarqueBeraResponse JarqueBera { get; set; } = default!;
+        public JarqueBeraResponse? JarqueBera { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("mean")]
         public double Mean { get; set; } = default!;
@@ -5612,17 +5695,26 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("siteName")]
         public string SiteName { get; set; } = default!;
 
+        /// <summary>
+        /// A site threshold as alerts see it; without `AlertProbability` it never alerts.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("threshold")]
         public AlertThreshold Threshold { get; set; } = default!;
 
+        /// <summary>
+        /// The window an alert is about.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("window")]
         public AlertWindow Window { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("probability")]
         public double Probability { get; set; } = default!;
 
+        /// <summary>
+        /// The time of first crossing over the sample paths that cross: median and 10 % / 90 % quantiles.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("firstCrossing")]
-        public FirstCrossing FirstCrossing { get; set; } = default!;
+        public FirstCrossing? FirstCrossing { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("origin")]
         public System.DateTimeOffset Origin { get; set; } = default!;
@@ -5671,7 +5763,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
         public double Probability { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("firstCrossing")]
-        public CrossingResponse FirstCrossing { get; set; } = default!;
+        public CrossingResponse? FirstCrossing { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("expectedHoursBeyond")]
         public double? ExpectedHoursBeyond { get; set; } = default!;
@@ -5819,16 +5911,19 @@ namespace ForecastHub.Api.Tests.Client.Generated
         public double? ElevationM { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("quality")]
-        public QualityBody Quality { get; set; } = default!;
+        public QualityBody? Quality { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("model")]
-        public ModelBody Model { get; set; } = default!;
+        public ModelBody? Model { get; set; } = default!;
 
         [System.Text.Json.Serialization.JsonPropertyName("thresholds")]
         public System.Collections.Generic.ICollection<ThresholdBody>? Thresholds { get; set; } = default!;
 
+        /// <summary>
+        /// The site's night as local clock times "HH:mm"; an end at or before the start runs past midnight.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("night")]
-        public NightBody Night { get; set; } = default!;
+        public NightBody? Night { get; set; } = default!;
 
     }
 
@@ -5899,6 +5994,9 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("quality")]
         public QualityResponse Quality { get; set; } = default!;
 
+        /// <summary>
+        /// A site's model settings in their wire words.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("model")]
         public SitesModelResponse Model { get; set; } = default!;
 
@@ -6081,9 +6179,17 @@ namespace ForecastHub.Api.Tests.Client.Generated
         [System.Text.Json.Serialization.JsonPropertyName("evaluatedAt")]
         public System.DateTimeOffset EvaluatedAt { get; set; } = default!;
 
+        /// <summary>
+        /// The backtest: refit every `RefitEveryDays` over the last `Days` of the grid, forecast
+        /// <br/>the next day from each daily origin; scores per horizon (steps ahead). Null when the history is
+        /// <br/>too short for one origin.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("backtest")]
-        public BacktestResponse Backtest { get; set; } = default!;
+        public BacktestResponse? Backtest { get; set; } = default!;
 
+        /// <summary>
+        /// Live scores over the last `Days` scored days (up to ForecastHub.Api.Verification.VerificationService.MaxLiveDays), pooled and per day.
+        /// </summary>
         [System.Text.Json.Serialization.JsonPropertyName("live")]
         public LiveScoresResponse Live { get; set; } = default!;
 
@@ -6191,6 +6297,36 @@ namespace ForecastHub.Api.Tests.Client.Generated
 
     [System.CodeDom.Compiler.GeneratedCode("NJsonSchema", "14.8.0.0 (NJsonSchema v11.6.2.0 (Newtonsoft.Json v13.0.0.0))")]
     public enum Unit3
+    {
+
+        [System.Runtime.Serialization.EnumMember(Value = @"C")]
+        C = 0,
+
+        [System.Runtime.Serialization.EnumMember(Value = @"F")]
+        F = 1,
+
+        [System.Runtime.Serialization.EnumMember(Value = @"K")]
+        K = 2,
+
+    }
+
+    [System.CodeDom.Compiler.GeneratedCode("NJsonSchema", "14.8.0.0 (NJsonSchema v11.6.2.0 (Newtonsoft.Json v13.0.0.0))")]
+    public enum Unit4
+    {
+
+        [System.Runtime.Serialization.EnumMember(Value = @"C")]
+        C = 0,
+
+        [System.Runtime.Serialization.EnumMember(Value = @"F")]
+        F = 1,
+
+        [System.Runtime.Serialization.EnumMember(Value = @"K")]
+        K = 2,
+
+    }
+
+    [System.CodeDom.Compiler.GeneratedCode("NJsonSchema", "14.8.0.0 (NJsonSchema v11.6.2.0 (Newtonsoft.Json v13.0.0.0))")]
+    public enum Unit5
     {
 
         [System.Runtime.Serialization.EnumMember(Value = @"C")]

@@ -49,9 +49,9 @@ public sealed class GeneratedClientTests
         {
             Id = "generated-1", Name = "Generated client", TimeZone = "Europe/Berlin", Cadence = "hourly", Latitude = 52.5, Longitude = 13.4,
         });
-        var stored = await client.PostObservationsAsync("generated-1", Unit3.C, null, null, null, null, null, null, null,
+        var stored = await client.PostObservationsAsync("generated-1", Unit5.C, null, null, null, null, null, null, null,
             new ObservationsBody { Readings = [.. history.Select(r => new ReadingBody { Time = Some.Iso(r.Time), Value = r.ValueC })] });
-        await client.RefitModelAsync("generated-1");
+        var model = await client.RefitModelAsync("generated-1", Unit4.F);
         var forecast = await client.GetForecastAsync("generated-1", 6, null, [0.0], null, Unit.C, Format.Json);
 
         Assert.Equal("generated-1", site.Id);
@@ -60,6 +60,7 @@ public sealed class GeneratedClientTests
         Assert.Equal(6, forecast.Steps.Count);
         Assert.All(forecast.Steps, s => Assert.InRange(s.Mean, s.Intervals.First().Lower, s.Intervals.First().Upper));
         Assert.Equal("C", forecast.Unit);
+        Assert.Equal("F", model.Unit);
     }
 
     [Fact]

@@ -38,6 +38,26 @@ public sealed class MetricsExportTests
     }
 
     [Fact]
+    public async Task DocumentedScrapeExampleHasTheFamiliesAndLabelsOfARealScrape()
+    {
+        await using var factory = new ApiFactory();
+        using var client = factory.CreateAdminClient();
+        await client.CreateHourlySiteAsync("north");
+        await factory.IngestAsync("north", Enumerable.Range(0, 48).Select(h => (factory.Clock.GetUtcNow().AddHours(-h - 1), 4.0)));
+
+        var scrape = (await ScrapeAsync(client)).Split('\n');
+        var example = ForecastHub.Api.OpenApi.MetricsDocumentFilter.Example.TrimEnd('\n').Split('\n');
+
+        // Each family of the OpenAPI example is declared as the exporter declares it, and each example series has the label names of a real one.
+        Assert.All(example.Where(l => l.StartsWith("# TYPE ", StringComparison.Ordinal)), line => Assert.Contains(line, scrape));
+        foreach (var series in example.Where(l => !l.StartsWith('#')))
+        {
+            var name = series[..series.IndexOf('{', StringComparison.Ordinal)];
+            Assert.Contains(scrape, l => l.StartsWith(name + "{", StringComparison.Ordinal) && LabelNames(l).SequenceEqual(LabelNames(series)));
+        }
+    }
+
+    [Fact]
     public async Task NightRiskPerThresholdIsTheLatestEvaluatedRiskAndAScrapeNeverComputesOne()
     {
         await using var factory = new ApiFactory();
@@ -142,6 +162,9 @@ public sealed class MetricsExportTests
             context.Request.Host = new HostString(host);
             context.Connection.LocalPort = localPort;
         });
+
+    private static string[] LabelNames(string series) =>
+        [.. Regex.Matches(series[..series.IndexOf('}', StringComparison.Ordinal)], @"(\w+)=""").Select(m => m.Groups[1].Value)];
 
     private static double Sample(string text, string series)
     {

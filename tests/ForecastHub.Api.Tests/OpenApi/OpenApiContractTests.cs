@@ -84,6 +84,46 @@ public sealed class OpenApiContractTests
     }
 
     [Fact]
+    public async Task ConflictAndUnprocessableAnswersSayWhatCausesThemOnTheirRoute()
+    {
+        var document = JsonNode.Parse(await ServedDocument())!;
+
+        var answers = Operations(document)
+            .SelectMany(o => o.Operation["responses"]!.AsObject().Where(r => r.Key is "409" or "422").Select(r => (o.Name, Status: r.Key, Description: (string?)r.Value!["description"])))
+            .ToList();
+
+        Assert.True(answers.Count >= 10, $"expected the 409 and 422 answers of the document, found {answers.Count}");
+        foreach (var (operation, status, description) in answers)
+        {
+            // The bare reason phrase says nothing a client can act on; a <response code="..."> doc on the handler says what causes it.
+            Assert.False(description is null || description.StartsWith("Conflict.", StringComparison.Ordinal)
+                || description.StartsWith("Unprocessable Content.", StringComparison.Ordinal),
+                $"{operation} documents {status} without its cause: '{description}'");
+            Assert.DoesNotContain("\n", description, StringComparison.Ordinal);
+        }
+    }
+
+    [Theory]
+    [InlineData("GET /api/v1/sites/{siteId}/forecast", "409", "no fitted model")]
+    [InlineData("GET /api/v1/sites/{siteId}/forecast", "409", "warming up")]
+    [InlineData("GET /api/v1/sites/{siteId}/forecast.svg", "409", "no fitted model")]
+    [InlineData("GET /api/v1/sites/{siteId}/verification", "409", "no fitted model")]
+    [InlineData("POST /api/v1/sites/{siteId}/model/refit", "409", "fewer observed grid points than a fit needs")]
+    [InlineData("POST /api/v1/sites/{siteId}/model/refit", "422", "The fit failed")]
+    [InlineData("POST /api/v1/sites/{siteId}/observations", "422", "`rejected`, each row's index, line, time and reason")]
+    [InlineData("POST /api/v1/sites/{siteId}/observations", "422", "field `unit`")]
+    [InlineData("DELETE /api/v1/keys/{keyId}", "409", "last active admin key")]
+    [InlineData("POST /api/v1/sites", "409", "already exists")]
+    public async Task ConflictAndUnprocessableDescriptionsNameTheHandlersCauses(string operation, string status, string cause)
+    {
+        var document = JsonNode.Parse(await ServedDocument())!;
+
+        var description = (string?)Operations(document).Single(o => o.Name == operation).Operation["responses"]![status]!["description"];
+
+        Assert.Contains(cause, description, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public async Task QueryParametersAreLowerCaseAndTypedAsTheHandlersParseThem()
     {
         var document = JsonNode.Parse(await ServedDocument())!;
