@@ -3,7 +3,7 @@ namespace ForecastHub.Core.Modeling;
 /// <summary>
 /// Puts chosen order statistics of a sample in place without sorting the rest: afterwards
 /// values[r] is the value a full ascending sort would put at index r, for every requested r.
-/// A multi-target quickselect (three-way partition, median-of-three pivot), so a few quantiles of a
+/// A multi-target quickselect (Hoare partition, median-of-three pivot), so a few quantiles of a
 /// simulated sample cost a few passes instead of a sort.
 /// </summary>
 internal static class OrderStatistics
@@ -23,52 +23,49 @@ internal static class OrderStatistics
 
             var pivot = MedianOfThree(values[0], values[values.Length / 2], values[^1]);
 
-            // values[..less] < pivot, values[less..more] == pivot, values[more..] > pivot.
-            var less = 0;
-            var i = 0;
-            var more = values.Length;
-            while (i < more)
+            // Hoare's partition swaps only misplaced pairs: afterwards values[..split] <= pivot <= values[split..].
+            // The pivot is the median of three values including the last, so both parts are non-empty.
+            var i = -1;
+            var j = values.Length;
+            while (true)
             {
-                var v = values[i];
-                if (v < pivot)
-                {
-                    (values[less], values[i]) = (values[i], values[less]);
-                    less++;
-                    i++;
-                }
-                else if (v > pivot)
-                {
-                    more--;
-                    (values[more], values[i]) = (values[i], values[more]);
-                }
-                else
+                do
                 {
                     i++;
                 }
+                while (values[i] < pivot);
+
+                do
+                {
+                    j--;
+                }
+                while (values[j] > pivot);
+
+                if (i >= j)
+                {
+                    break;
+                }
+
+                (values[i], values[j]) = (values[j], values[i]);
             }
 
+            var split = j + 1;
             var left = 0;
-            while (left < ranks.Length && ranks[left] < less)
+            while (left < ranks.Length && ranks[left] < split)
             {
                 left++;
             }
 
-            var right = left;
-            while (right < ranks.Length && ranks[right] < more)
-            {
-                right++;
-            }
-
-            Place(values[..less], ranks[..left]);
+            Place(values[..split], ranks[..left]);
 
             // The right part continues in this loop, with its ranks shifted to its own indices.
-            var shifted = new int[ranks.Length - right];
+            var shifted = new int[ranks.Length - left];
             for (var r = 0; r < shifted.Length; r++)
             {
-                shifted[r] = ranks[right + r] - more;
+                shifted[r] = ranks[left + r] - split;
             }
 
-            values = values[more..];
+            values = values[split..];
             ranks = shifted;
         }
     }

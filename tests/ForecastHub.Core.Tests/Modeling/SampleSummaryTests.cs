@@ -10,6 +10,7 @@ public sealed class SampleSummaryTests
     {
         { 2000, 1, 0 },     // continuous values, the size the forecasts simulate
         { 2000, 2, 7 },     // many ties: values rounded to a few levels
+        { 2000, 7, 1 },     // every value the same
         { 25, 3, 0 },
         { 24, 4, 0 },
         { 3, 5, 0 },
@@ -30,6 +31,18 @@ public sealed class SampleSummaryTests
             OrderStatistics.Place(placed, distinct);
             Assert.All(distinct, r => Assert.Equal(sorted[r], placed[r]));
             Assert.Equal(sorted, placed.Order().ToArray()); // nothing lost or duplicated
+        }
+    }
+
+    [Fact]
+    public void PlacedOrderStatisticsOfSortedAndReversedSamplesEqualTheirPositions()
+    {
+        var ascending = Enumerable.Range(0, 2000).Select(i => i * 0.5).ToArray();
+        int[] ranks = [0, 49, 50, 199, 200, 1799, 1800, 1949, 1950, 1999];
+        foreach (var values in new[] { ascending.ToArray(), ascending.Reverse().ToArray() })
+        {
+            OrderStatistics.Place(values, ranks);
+            Assert.All(ranks, r => Assert.Equal(r * 0.5, values[r]));
         }
     }
 
