@@ -10,10 +10,16 @@ namespace ForecastHub.Storage;
 /// failing with "database is locked", and the busy timeout covers other processes on the file.
 /// Connections use <c>synchronous=FULL</c>: in WAL mode each commit is fsynced before it returns,
 /// so an acknowledged write survives a killed process and a power cut.
+/// Group commit: writes that queued while another held the lock run together in the next
+/// transaction, each in its own savepoint, so one fsync serves them all. A write that throws is
+/// rolled back to its savepoint alone; one commit makes all of them durable, or none of them.
+/// A transaction of recomputable writes only (<see cref="WriteRecomputableAsync"/>) commits without the fsync.
 /// </summary>
 public sealed class SqliteDatabase : IDisposable
 {
     private readonly SemaphoreSlim _writeLock = new(1, 1);
+    // Writes waiting for the write lock, in arrival order; whoever holds the lock runs them all.
+    private readonly List<QueuedWrite> _queued = [];
     // Native connections already given the per-connection pragmas: a pooled connection keeps them, so each is set up once.
     private readonly ConditionalWeakTable<sqlite3, object> _prepared = new();
     private readonly string _setUpPragmas;
@@ -78,8 +84,9 @@ public sealed class SqliteDatabase : IDisposable
 
     /// <summary>
     /// As <see cref="WriteAsync{T}(Func{SqliteConnection, SqliteTransaction, T}, CancellationToken)"/> for a write that a
-    /// crash may lose without harm because the next evaluation makes it again: committed with <c>synchronous=NORMAL</c>,
-    /// so the commit does not wait for the disk. The file stays consistent, and the next durable commit makes it durable too.
+    /// crash may lose without harm because the next evaluation makes it again: when its transaction holds only such
+    /// writes, it commits with <c>synchronous=NORMAL</c> and does not wait for the disk. The file stays consistent,
+    /// and the next durable commit makes it durable too.
     /// </summary>
     public Task<T> WriteRecomputableAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
         WriteAsync(work, foreignKeys: true, waitForDisk: false, cancellationToken);
@@ -87,37 +94,207 @@ public sealed class SqliteDatabase : IDisposable
     private async Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, bool foreignKeys, bool waitForDisk, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(work);
+        if (!foreignKeys)
+        {
+            return await WriteAloneWithoutForeignKeysAsync(work, cancellationToken).ConfigureAwait(false);
+        }
+        var write = new QueuedWrite<T>(work, waitForDisk);
+        lock (_queued)
+        {
+            _queued.Add(write);
+        }
+        try
+        {
+            await _writeLock.WaitAsync(cancellationToken).ConfigureAwait(false);
+        }
+        catch (OperationCanceledException)
+        {
+            lock (_queued)
+            {
+                // Still waiting: withdrawn. Otherwise another writer has taken it, and its outcome stands.
+                if (_queued.Remove(write))
+                {
+                    throw;
+                }
+            }
+            return await write.Done.Task.ConfigureAwait(false);
+        }
+        try
+        {
+            // Run by an earlier holder already: every write still queued has its own caller waiting for the lock.
+            if (!write.Done.Task.IsCompleted)
+            {
+                RunQueued();
+            }
+        }
+        finally
+        {
+            _writeLock.Release();
+        }
+        return await write.Done.Task.ConfigureAwait(false);
+    }
+
+    /// <summary>Writes waiting for the write lock (tests wait on it to build a shared transaction).</summary>
+    internal int QueuedWrites
+    {
+        get
+        {
+            lock (_queued)
+            {
+                return _queued.Count;
+            }
+        }
+    }
+
+    // Under the write lock: every queued write, the caller's own among them, in one transaction.
+    private void RunQueued()
+    {
+        List<QueuedWrite> batch;
+        lock (_queued)
+        {
+            batch = [.. _queued];
+            _queued.Clear();
+        }
+        try
+        {
+            using var connection = Open();
+            var waitForDisk = batch.Exists(w => w.WaitForDisk);
+            if (!waitForDisk)
+            {
+                // Set outside the transaction; forgotten as set up first, so the next use sets FULL again even if the reset fails.
+                _prepared.Remove(connection.Handle!);
+                Pragma(connection, "PRAGMA synchronous = NORMAL;");
+            }
+            using var transaction = connection.BeginTransaction(deferred: false);
+            foreach (var write in batch)
+            {
+                if (batch.Count == 1)
+                {
+                    write.Run(connection, transaction);
+                }
+                else
+                {
+                    RunInSavepoint(write, connection, transaction);
+                }
+            }
+            if (batch.Exists(w => w.Error is null))
+            {
+                transaction.Commit();
+                Health.WriteSucceeded();
+            }
+            if (!waitForDisk)
+            {
+                RestoreSetUp(connection);
+            }
+        }
+        catch (Exception error)
+        {
+            // Opening, BEGIN or COMMIT failed, or SQLite ended the transaction itself: nothing of the batch is stored.
+            foreach (var write in batch)
+            {
+                write.Error ??= error;
+            }
+        }
+        foreach (var write in batch)
+        {
+            if (write.Error is SqliteException sqliteError)
+            {
+                Health.Observe(sqliteError);
+            }
+            write.Complete();
+        }
+    }
+
+    private const string WriteSavepoint = "queued_write";
+
+    // A failed write is undone back to its savepoint, unless SQLite rolled back the whole transaction
+    // (a full disk, an I/O error): then the batch fails, as none of its writes can be committed.
+    private static void RunInSavepoint(QueuedWrite write, SqliteConnection connection, SqliteTransaction transaction)
+    {
+        transaction.Save(WriteSavepoint);
+        write.Run(connection, transaction);
+        if (write.Error is null)
+        {
+            transaction.Release(WriteSavepoint);
+            return;
+        }
+        if (raw.sqlite3_get_autocommit(connection.Handle) != 0)
+        {
+            throw write.Error;
+        }
+        transaction.Rollback(WriteSavepoint);
+        transaction.Release(WriteSavepoint);
+    }
+
+    private abstract class QueuedWrite(bool waitForDisk)
+    {
+        /// <summary>False for a recomputable write, whose commit need not wait for the disk.</summary>
+        public bool WaitForDisk { get; } = waitForDisk;
+
+        /// <summary>What the work threw, or what made its transaction fail.</summary>
+        public Exception? Error { get; set; }
+
+        public abstract void Run(SqliteConnection connection, SqliteTransaction transaction);
+
+        /// <summary>Hands the outcome to the waiting caller, after the commit (or its failure).</summary>
+        public abstract void Complete();
+    }
+
+    private sealed class QueuedWrite<T>(Func<SqliteConnection, SqliteTransaction, T> work, bool waitForDisk) : QueuedWrite(waitForDisk)
+    {
+        private T? _result;
+
+        // Continuations run on the thread pool, not on the writer that holds the lock.
+        public TaskCompletionSource<T> Done { get; } = new(TaskCreationOptions.RunContinuationsAsynchronously);
+
+        public override void Run(SqliteConnection connection, SqliteTransaction transaction)
+        {
+            try
+            {
+                _result = work(connection, transaction);
+            }
+            catch (Exception error)
+            {
+                Error = error;
+            }
+        }
+
+        public override void Complete()
+        {
+            if (Error is null)
+            {
+                Done.SetResult(_result!);
+            }
+            else
+            {
+                Done.SetException(Error);
+            }
+        }
+    }
+
+    // Alone in its transaction: the pragma is a no-op inside a transaction, so it is set before BEGIN
+    // and set back before the connection returns to the pool.
+    private async Task<T> WriteAloneWithoutForeignKeysAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken)
+    {
         await _writeLock.WaitAsync(cancellationToken).ConfigureAwait(false);
         try
         {
             using var connection = Open();
-            // These pragmas are set outside the transaction and set back before the connection returns to the pool;
-            // it is forgotten as set up first, so its next use sets them again even if the reset fails.
-            var changed = !foreignKeys || !waitForDisk;
-            if (changed)
-            {
-                _prepared.Remove(connection.Handle!);
-                Pragma(connection, $"PRAGMA foreign_keys = {(foreignKeys ? "ON" : "OFF")}; PRAGMA synchronous = {(waitForDisk ? "FULL" : "NORMAL")};");
-            }
+            // Forgotten as set up first, so the connection's next use sets foreign keys on again even if the reset below fails.
+            _prepared.Remove(connection.Handle!);
+            Pragma(connection, "PRAGMA foreign_keys = OFF;");
             try
             {
                 using var transaction = connection.BeginTransaction(deferred: false);
                 var result = work(connection, transaction);
-                if (!foreignKeys)
-                {
-                    CheckForeignKeys(connection, transaction);
-                }
+                CheckForeignKeys(connection, transaction);
                 transaction.Commit();
                 Health.WriteSucceeded();
                 return result;
             }
             finally
             {
-                if (changed)
-                {
-                    Pragma(connection, _setUpPragmas);
-                    _prepared.TryAdd(connection.Handle!, connection.Handle!);
-                }
+                RestoreSetUp(connection);
             }
         }
         catch (SqliteException error)
@@ -142,6 +319,21 @@ public sealed class SqliteDatabase : IDisposable
     }
 
     private const int SqliteConstraint = 19;
+
+    // After a write that changed the connection's pragmas (already forgotten as set up): set up again for the pool. A failure
+    // here must not fail a write that committed; the connection then stays forgotten and its next open sets it up.
+    private void RestoreSetUp(SqliteConnection connection)
+    {
+        try
+        {
+            Pragma(connection, _setUpPragmas);
+            _prepared.TryAdd(connection.Handle!, connection.Handle!);
+        }
+        catch (SqliteException error)
+        {
+            Health.Observe(error);
+        }
+    }
 
     private static void Pragma(SqliteConnection connection, string pragmas)
     {

@@ -18,7 +18,8 @@ namespace ForecastHub.Benchmarks;
 /// Where the CPU of one ingest request goes: the steps of the observations endpoint and the
 /// reading store, called one by one on the same 10,000-reading JSON body the ingest benchmark
 /// posts, each request into a fresh site of a temporary WAL file (synchronous=FULL), as in the
-/// benchmark. Prints the median and 10th percentile of each step in ms per request and ns per reading.
+/// benchmark. Prints the median and 10th percentile of each step in ms per request and ns per reading,
+/// and the kilobytes each step allocated.
 /// </summary>
 internal sealed class IngestStagesVerb : IBenchmarkVerb
 {
@@ -59,13 +60,13 @@ internal sealed class IngestStagesVerb : IBenchmarkVerb
             SqliteConnection.ClearAllPools();
             await output.WriteLineAsync(string.Create(CultureInfo.InvariantCulture,
                 $"{IngestVerb.PerSite} readings, {body.Length} bytes per request, {Repeats} requests")).ConfigureAwait(false);
-            await output.WriteLineAsync($"{"step",-34} {"median ms",10} {"p10 ms",8} {"ns/reading",11}").ConfigureAwait(false);
+            await output.WriteLineAsync($"{"step",-34} {"median ms",10} {"p10 ms",8} {"ns/reading",11} {"KB allocated",13}").ConfigureAwait(false);
             foreach (var (step, list) in timings)
             {
                 list.Sort();
                 var median = list[list.Count / 2];
                 await output.WriteLineAsync(string.Create(CultureInfo.InvariantCulture,
-                    $"{step,-34} {median,10:0.000} {list[list.Count / 10],8:0.000} {median * 1e6 / IngestVerb.PerSite,11:0}")).ConfigureAwait(false);
+                    $"{step,-34} {median,10:0.000} {list[list.Count / 10],8:0.000} {median * 1e6 / IngestVerb.PerSite,11:0} {Allocated[step] / 1024.0,13:0}")).ConfigureAwait(false);
             }
             return 0;
         }
@@ -76,14 +77,21 @@ internal sealed class IngestStagesVerb : IBenchmarkVerb
         }
     }
 
+    // Bytes each step allocated in the last request.
+    private static readonly Dictionary<string, long> Allocated = [];
+
     // The endpoint's and the store's steps in their order; times in milliseconds.
     private static async Task<List<(string Step, double Ms)>> OneRequest(SqliteDatabase database, string siteId, byte[] body, DateTimeOffset now)
     {
         var steps = new List<(string, double)>();
         var clock = Stopwatch.StartNew();
+        var allocated = GC.GetAllocatedBytesForCurrentThread();
         void Step(string name)
         {
             steps.Add((name, clock.Elapsed.TotalMilliseconds));
+            var allocatedNow = GC.GetAllocatedBytesForCurrentThread();
+            Allocated[name] = allocatedNow - allocated;
+            allocated = allocatedNow;
             clock.Restart();
         }
 
@@ -91,6 +99,7 @@ internal sealed class IngestStagesVerb : IBenchmarkVerb
         context.Request.Body = new MemoryStream(body);
         context.Request.ContentLength = body.Length;
         clock.Restart();
+        allocated = GC.GetAllocatedBytesForCurrentThread();
         var read = await RequestBody.ReadAsync(context.Request, ObservationsEndpoints.MaxBodyBytes, CancellationToken.None).ConfigureAwait(false);
         Step("body read");
         var valid = Utf8JsonReadings.TryRead(read!, null, now, ObservationsEndpoints.MaxReadings)!.Valid;
