@@ -12,7 +12,7 @@ public sealed record ObservationsAnswer(int Accepted, int Duplicates, int Replac
 
 public sealed record RejectedReading(int Index, int? Line, string? Time, string Reason);
 
-/// <summary>A stored reading: value in degrees C, the value and unit as sent, QC flag names.</summary>
+/// <summary>A stored reading: value in the page's unit (degrees C unless <c>unit</c> asked otherwise), the value and unit as sent, QC flag names.</summary>
 public sealed record ObservationDto(string Time, double Value, double OriginalValue, string OriginalUnit, IReadOnlyList<string> Flags);
 
 /// <summary>One page of raw readings; follow <c>next</c> until it is null.</summary>

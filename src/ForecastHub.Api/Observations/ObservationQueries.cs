@@ -21,13 +21,15 @@ namespace ForecastHub.Api.Observations;
 /// <param name="Limit">Most readings or grid steps on this page.</param>
 /// <param name="Cursor">Where the page starts: taken from the previous page's <c>next</c> link.</param>
 /// <param name="Format">json or csv; <c>Accept: text/csv</c> also asks for CSV.</param>
+/// <param name="Unit">Temperature unit of the values (stored and grid): C (default), F or K; original values keep the unit they were sent in.</param>
 public sealed record ObservationQuery(
     [FromQuery(Name = "from"), QueryValue(QueryValueKind.DateTime)] string? From,
     [FromQuery(Name = "to"), QueryValue(QueryValueKind.DateTime)] string? To,
     [FromQuery(Name = "resolution"), QueryValue(QueryValueKind.Choice, Values = ["raw", "grid"], Default = "raw")] string? Resolution,
     [FromQuery(Name = "limit"), QueryValue(QueryValueKind.WholeNumber, Minimum = 1, Maximum = ObservationQueries.MaxLimit, Default = ObservationQueries.DefaultLimit)] string? Limit,
     [FromQuery(Name = "cursor")] string? Cursor,
-    [FromQuery(Name = "format"), QueryValue(QueryValueKind.Choice, Values = ["json", "csv"], Default = "json")] string? Format);
+    [FromQuery(Name = "format"), QueryValue(QueryValueKind.Choice, Values = ["json", "csv"], Default = "json")] string? Format,
+    [FromQuery(Name = "unit"), QueryValue(QueryValueKind.Choice, Values = [TemperatureUnits.Celsius, TemperatureUnits.Fahrenheit, TemperatureUnits.Kelvin], Default = TemperatureUnits.Celsius)] string? Unit);
 
 public static class ObservationQueries
 {
@@ -37,7 +39,11 @@ public static class ObservationQueries
     /// <summary>Upper bound on raw readings read to build one grid page.</summary>
     private const int MaxReadingsPerGridPage = 2_000_000;
 
-    private sealed record Window(long FromMs, long ToMs, long? Cursor, int Limit, bool Csv);
+    private sealed record Window(long FromMs, long ToMs, long? Cursor, int Limit, bool Csv, string Unit)
+    {
+        /// <summary>A value stored in degrees C, in the answer's unit.</summary>
+        public double InUnit(double valueC) => TemperatureUnits.FromCelsius(valueC, Unit);
+    }
 
     public static async Task<Results<Ok<ObservationPage>, Ok<GridPage>, ContentHttpResult, ProblemHttpResult>> Get(
         string siteId, [AsParameters] ObservationQuery query, HttpContext context, ISiteStore sites, IReadingStore readings,
@@ -62,6 +68,14 @@ public static class ObservationQueries
 
     private static (Window? Window, ProblemHttpResult? Problem) ParseWindow(ObservationQuery query, HttpRequest request)
     {
+        if (Http.QueryParameters.RejectUnknown(request, "from", "to", "resolution", "limit", "cursor", "format", "unit") is { } unknown)
+        {
+            return (null, unknown);
+        }
+        if (query.Unit is not null && !TemperatureUnits.IsKnown(query.Unit))
+        {
+            return (null, ApiProblems.BadRequest("unit", TemperatureUnits.UnknownUnitMessage));
+        }
         long from = long.MinValue, to = long.MaxValue;
         if (query.From is not null)
         {
@@ -108,7 +122,7 @@ public static class ObservationQueries
         }
         var csv = query.Format == "csv"
             || (query.Format is null && request.Headers.Accept.ToString().Contains("text/csv", StringComparison.OrdinalIgnoreCase));
-        return (new Window(from, to, cursor, limit, csv), null);
+        return (new Window(from, to, cursor, limit, csv, query.Unit ?? TemperatureUnits.Celsius), null);
     }
 
     private static async Task<Results<Ok<ObservationPage>, Ok<GridPage>, ContentHttpResult, ProblemHttpResult>> Raw(
@@ -124,15 +138,15 @@ public static class ObservationQueries
             var csv = new StringBuilder().CsvLine("time", "value", "originalValue", "originalUnit", "flags");
             foreach (var r in shown)
             {
-                csv.CsvLine(IsoTime.Format(r.Time), Number(r.ValueC), Number(r.OriginalValue), r.OriginalUnit,
+                csv.CsvLine(IsoTime.Format(r.Time), Number(window.InUnit(r.ValueC)), Number(r.OriginalValue), r.OriginalUnit,
                     string.Join(';', QualityFlagNames.Of(r.Flags)));
             }
-            return Csv(context, csv, next);
+            return Csv(context, csv, next, window.Unit);
         }
         SetLink(context, next);
-        var dtos = shown.Select(r => new ObservationDto(IsoTime.Format(r.Time), r.ValueC, r.OriginalValue, r.OriginalUnit,
+        var dtos = shown.Select(r => new ObservationDto(IsoTime.Format(r.Time), window.InUnit(r.ValueC), r.OriginalValue, r.OriginalUnit,
             QualityFlagNames.Of(r.Flags))).ToList();
-        return TypedResults.Ok(new ObservationPage(site.Id, "raw", TemperatureUnits.Celsius, dtos, next));
+        return TypedResults.Ok(new ObservationPage(site.Id, "raw", window.Unit, dtos, next));
     }
 
     /// <summary>
@@ -167,7 +181,7 @@ public static class ObservationQueries
                 {
                     if (grid.Times[i] >= pageStart && grid.Times[i] < pageEnd)
                     {
-                        points.Add(new GridPointDto(Local(grid.Times[i]), double.IsNaN(grid.Values[i]) ? null : grid.Values[i], grid.Interpolated[i]));
+                        points.Add(new GridPointDto(Local(grid.Times[i]), double.IsNaN(grid.Values[i]) ? null : window.InUnit(grid.Values[i]), grid.Interpolated[i]));
                     }
                 }
                 next = pageEnd.ToUnixTimeMilliseconds() < end ? NextLink(context.Request, pageEnd.ToUnixTimeMilliseconds()) : null;
@@ -180,10 +194,10 @@ public static class ObservationQueries
             {
                 csv.CsvLine(p.Time, p.Value is { } v ? Number(v) : "", p.Interpolated ? "true" : "false");
             }
-            return Csv(context, csv, next);
+            return Csv(context, csv, next, window.Unit);
         }
         SetLink(context, next);
-        return TypedResults.Ok(new GridPage(site.Id, "grid", WireNames.Cadences.Of(site.Cadence), site.TimeZone, TemperatureUnits.Celsius, points, next));
+        return TypedResults.Ok(new GridPage(site.Id, "grid", WireNames.Cadences.Of(site.Cadence), site.TimeZone, window.Unit, points, next));
     }
 
     private static DateTimeOffset Min(DateTimeOffset a, DateTimeOffset b) => a < b ? a : b;
@@ -203,9 +217,11 @@ public static class ObservationQueries
 
     private static void SetLink(HttpContext context, string? next) => Http.NextLink.Set(context.Response, next);
 
-    private static ContentHttpResult Csv(HttpContext context, StringBuilder csv, string? next)
+    private static ContentHttpResult Csv(HttpContext context, StringBuilder csv, string? next, string unit)
     {
         SetLink(context, next);
+        // As the forecast export: the CSV's values carry no unit of their own.
+        context.Response.Headers["Temperature-Unit"] = unit;
         return TypedResults.Text(csv.ToString(), "text/csv; charset=utf-8");
     }
 }

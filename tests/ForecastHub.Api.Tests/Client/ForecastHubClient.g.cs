@@ -2228,11 +2228,12 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// <param name="limit">Most readings or grid steps on this page.</param>
         /// <param name="cursor">Where the page starts: taken from the previous page's `next` link.</param>
         /// <param name="format">json or csv; `Accept: text/csv` also asks for CSV.</param>
+        /// <param name="unit">Temperature unit of the values (stored and grid): C (default), F or K; original values keep the unit they were sent in.</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual System.Threading.Tasks.Task<ObservationPage> GetObservationsAsync(string siteId, System.DateTimeOffset? from, System.DateTimeOffset? to, Resolution? resolution, int? limit, string? cursor, Format2? format)
+        public virtual System.Threading.Tasks.Task<ObservationPage> GetObservationsAsync(string siteId, System.DateTimeOffset? from, System.DateTimeOffset? to, Resolution? resolution, int? limit, string? cursor, Format2? format, Unit6? unit)
         {
-            return GetObservationsAsync(siteId, from, to, resolution, limit, cursor, format, System.Threading.CancellationToken.None);
+            return GetObservationsAsync(siteId, from, to, resolution, limit, cursor, format, unit, System.Threading.CancellationToken.None);
         }
 
         /// <param name="cancellationToken">A cancellation token that can be used by other objects or threads to receive notice of cancellation.</param>
@@ -2249,9 +2250,10 @@ namespace ForecastHub.Api.Tests.Client.Generated
         /// <param name="limit">Most readings or grid steps on this page.</param>
         /// <param name="cursor">Where the page starts: taken from the previous page's `next` link.</param>
         /// <param name="format">json or csv; `Accept: text/csv` also asks for CSV.</param>
+        /// <param name="unit">Temperature unit of the values (stored and grid): C (default), F or K; original values keep the unit they were sent in.</param>
         /// <returns>OK</returns>
         /// <exception cref="ForecastHubApiException">A server side error occurred.</exception>
-        public virtual async System.Threading.Tasks.Task<ObservationPage> GetObservationsAsync(string siteId, System.DateTimeOffset? from, System.DateTimeOffset? to, Resolution? resolution, int? limit, string? cursor, Format2? format, System.Threading.CancellationToken cancellationToken)
+        public virtual async System.Threading.Tasks.Task<ObservationPage> GetObservationsAsync(string siteId, System.DateTimeOffset? from, System.DateTimeOffset? to, Resolution? resolution, int? limit, string? cursor, Format2? format, Unit6? unit, System.Threading.CancellationToken cancellationToken)
         {
             if (siteId == null)
                 throw new System.ArgumentNullException("siteId");
@@ -2295,6 +2297,10 @@ namespace ForecastHub.Api.Tests.Client.Generated
                     if (format != null)
                     {
                         urlBuilder_.Append(System.Uri.EscapeDataString("format")).Append('=').Append(System.Uri.EscapeDataString(ConvertToString(format, System.Globalization.CultureInfo.InvariantCulture))).Append('&');
+                    }
+                    if (unit != null)
+                    {
+                        urlBuilder_.Append(System.Uri.EscapeDataString("unit")).Append('=').Append(System.Uri.EscapeDataString(ConvertToString(unit, System.Globalization.CultureInfo.InvariantCulture))).Append('&');
                     }
                     urlBuilder_.Length--;
 
@@ -5369,7 +5375,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
     }
 
     /// <summary>
-    /// A stored reading: value in degrees C, the value and unit as sent, QC flag names.
+    /// A stored reading: value in the page's unit (degrees C unless `unit` asked otherwise), the value and unit as sent, QC flag names.
     /// </summary>
     [System.CodeDom.Compiler.GeneratedCode("NJsonSchema", "14.8.0.0 (NJsonSchema v11.6.2.0 (Newtonsoft.Json v13.0.0.0))")]
     public partial class ObservationDto
@@ -6400,6 +6406,21 @@ namespace ForecastHub.Api.Tests.Client.Generated
 
         [System.Runtime.Serialization.EnumMember(Value = @"csv")]
         Csv = 1,
+
+    }
+
+    [System.CodeDom.Compiler.GeneratedCode("NJsonSchema", "14.8.0.0 (NJsonSchema v11.6.2.0 (Newtonsoft.Json v13.0.0.0))")]
+    public enum Unit6
+    {
+
+        [System.Runtime.Serialization.EnumMember(Value = @"C")]
+        C = 0,
+
+        [System.Runtime.Serialization.EnumMember(Value = @"F")]
+        F = 1,
+
+        [System.Runtime.Serialization.EnumMember(Value = @"K")]
+        K = 2,
 
     }
 
