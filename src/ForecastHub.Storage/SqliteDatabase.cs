@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using Microsoft.Data.Sqlite;
 using SQLitePCL;
 
@@ -12,30 +13,32 @@ namespace ForecastHub.Storage;
 /// Group commit: writes that queued while another held the lock run together in the next
 /// transaction, each in its own savepoint, so one fsync serves them all. A write that throws is
 /// rolled back to its savepoint alone; one commit makes all of them durable, or none of them.
+/// A transaction of recomputable writes only (<see cref="WriteRecomputableAsync"/>) commits without the fsync.
 /// </summary>
 public sealed class SqliteDatabase : IDisposable
 {
     private readonly SemaphoreSlim _writeLock = new(1, 1);
     // Writes waiting for the write lock, in arrival order; whoever holds the lock runs them all.
     private readonly List<QueuedWrite> _queued = [];
-    private readonly int _busyTimeoutMs;
-    private readonly string _maxPageCountPragma;
+    // Native connections already given the per-connection pragmas: a pooled connection keeps them, so each is set up once.
+    private readonly ConditionalWeakTable<sqlite3, object> _prepared = new();
+    private readonly string _setUpPragmas;
+    private volatile bool _folderExists;
 
     public SqliteDatabase(StorageOptions options)
     {
         ArgumentNullException.ThrowIfNull(options);
         FilePath = System.IO.Path.GetFullPath(options.Path);
-        _busyTimeoutMs = options.BusyTimeoutMs;
         ConnectionString = new SqliteConnectionStringBuilder
         {
             DataSource = FilePath,
             Mode = SqliteOpenMode.ReadWriteCreate,
             Cache = SqliteCacheMode.Private,
             Pooling = true,
-            ForeignKeys = true,
             DefaultTimeout = Math.Max(1, options.BusyTimeoutMs / 1000),
         }.ToString();
-        _maxPageCountPragma = options.MaxSizeMb is { } mb ? $" PRAGMA max_page_count = {mb * 1024L * 1024L / 4096};" : "";
+        var maxPageCount = options.MaxSizeMb is { } mb ? $" PRAGMA max_page_count = {mb * 1024L * 1024L / 4096};" : "";
+        _setUpPragmas = $"PRAGMA foreign_keys = ON; PRAGMA busy_timeout = {options.BusyTimeoutMs}; PRAGMA synchronous = FULL;{maxPageCount}";
     }
 
     public string FilePath { get; }
@@ -45,41 +48,57 @@ public sealed class SqliteDatabase : IDisposable
 
     public string ConnectionString { get; }
 
-    /// <summary>A pooled connection for reading; dispose it after the unit of work.</summary>
+    /// <summary>A pooled connection (foreign keys on, the busy timeout, synchronous=FULL); dispose it after the unit of work.</summary>
     public SqliteConnection Open()
     {
-        var folder = System.IO.Path.GetDirectoryName(FilePath);
-        if (!string.IsNullOrEmpty(folder))
+        if (!_folderExists)
         {
-            Directory.CreateDirectory(folder);
+            var folder = System.IO.Path.GetDirectoryName(FilePath);
+            if (!string.IsNullOrEmpty(folder))
+            {
+                Directory.CreateDirectory(folder);
+            }
+            _folderExists = true;
         }
         var connection = new SqliteConnection(ConnectionString);
         connection.Open();
-        using var pragma = connection.CreateCommand();
-        pragma.CommandText = $"PRAGMA busy_timeout = {_busyTimeoutMs}; PRAGMA synchronous = FULL;{_maxPageCountPragma}";
-        pragma.ExecuteNonQuery();
+        var handle = connection.Handle!;
+        if (!_prepared.TryGetValue(handle, out _))
+        {
+            Pragma(connection, _setUpPragmas);
+            _prepared.TryAdd(handle, handle);
+        }
         return connection;
     }
 
     /// <summary>Runs <paramref name="work"/> as the only writer, in one IMMEDIATE transaction that
     /// commits when it returns and rolls back when it throws.</summary>
     public Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
-        WriteAsync(work, foreignKeys: true, cancellationToken);
+        WriteAsync(work, foreignKeys: true, waitForDisk: true, cancellationToken);
 
     /// <summary>As <see cref="WriteAsync{T}(Func{SqliteConnection, SqliteTransaction, T}, CancellationToken)"/>, with foreign
     /// keys off for the transaction, for a migration that rebuilds a parent table (dropping it must not
     /// cascade to its children). Every foreign key is checked before the commit; a dangling one rolls it back.</summary>
     public Task<T> WriteWithoutForeignKeysAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
-        WriteAsync(work, foreignKeys: false, cancellationToken);
+        WriteAsync(work, foreignKeys: false, waitForDisk: true, cancellationToken);
 
-    private async Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, bool foreignKeys, CancellationToken cancellationToken)
+    /// <summary>
+    /// As <see cref="WriteAsync{T}(Func{SqliteConnection, SqliteTransaction, T}, CancellationToken)"/> for a write that a
+    /// crash may lose without harm because the next evaluation makes it again: when its transaction holds only such
+    /// writes, it commits with <c>synchronous=NORMAL</c> and does not wait for the disk. The file stays consistent,
+    /// and the next durable commit makes it durable too.
+    /// </summary>
+    public Task<T> WriteRecomputableAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
+        WriteAsync(work, foreignKeys: true, waitForDisk: false, cancellationToken);
+
+    private async Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, bool foreignKeys, bool waitForDisk, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(work);
         if (!foreignKeys)
         {
             return await WriteAloneWithoutForeignKeysAsync(work, cancellationToken).ConfigureAwait(false);
         }
-        var write = new QueuedWrite<T>(work);
+        var write = new QueuedWrite<T>(work, waitForDisk);
         lock (_queued)
         {
             _queued.Add(write);
@@ -139,6 +158,13 @@ public sealed class SqliteDatabase : IDisposable
         try
         {
             using var connection = Open();
+            var waitForDisk = batch.Exists(w => w.WaitForDisk);
+            if (!waitForDisk)
+            {
+                // Set outside the transaction; forgotten as set up first, so the next use sets FULL again even if the reset fails.
+                _prepared.Remove(connection.Handle!);
+                Pragma(connection, "PRAGMA synchronous = NORMAL;");
+            }
             using var transaction = connection.BeginTransaction(deferred: false);
             foreach (var write in batch)
             {
@@ -155,6 +181,10 @@ public sealed class SqliteDatabase : IDisposable
             {
                 transaction.Commit();
                 Health.WriteSucceeded();
+            }
+            if (!waitForDisk)
+            {
+                RestoreSetUp(connection);
             }
         }
         catch (Exception error)
@@ -196,8 +226,11 @@ public sealed class SqliteDatabase : IDisposable
         transaction.Release(WriteSavepoint);
     }
 
-    private abstract class QueuedWrite
+    private abstract class QueuedWrite(bool waitForDisk)
     {
+        /// <summary>False for a recomputable write, whose commit need not wait for the disk.</summary>
+        public bool WaitForDisk { get; } = waitForDisk;
+
         /// <summary>What the work threw, or what made its transaction fail.</summary>
         public Exception? Error { get; set; }
 
@@ -207,7 +240,7 @@ public sealed class SqliteDatabase : IDisposable
         public abstract void Complete();
     }
 
-    private sealed class QueuedWrite<T>(Func<SqliteConnection, SqliteTransaction, T> work) : QueuedWrite
+    private sealed class QueuedWrite<T>(Func<SqliteConnection, SqliteTransaction, T> work, bool waitForDisk) : QueuedWrite(waitForDisk)
     {
         private T? _result;
 
@@ -247,7 +280,9 @@ public sealed class SqliteDatabase : IDisposable
         try
         {
             using var connection = Open();
-            SetForeignKeys(connection, on: false);
+            // Forgotten as set up first, so the connection's next use sets foreign keys on again even if the reset below fails.
+            _prepared.Remove(connection.Handle!);
+            Pragma(connection, "PRAGMA foreign_keys = OFF;");
             try
             {
                 using var transaction = connection.BeginTransaction(deferred: false);
@@ -259,7 +294,7 @@ public sealed class SqliteDatabase : IDisposable
             }
             finally
             {
-                SetForeignKeys(connection, on: true);
+                RestoreSetUp(connection);
             }
         }
         catch (SqliteException error)
@@ -285,10 +320,25 @@ public sealed class SqliteDatabase : IDisposable
 
     private const int SqliteConstraint = 19;
 
-    private static void SetForeignKeys(SqliteConnection connection, bool on)
+    // After a write that changed the connection's pragmas (already forgotten as set up): set up again for the pool. A failure
+    // here must not fail a write that committed; the connection then stays forgotten and its next open sets it up.
+    private void RestoreSetUp(SqliteConnection connection)
+    {
+        try
+        {
+            Pragma(connection, _setUpPragmas);
+            _prepared.TryAdd(connection.Handle!, connection.Handle!);
+        }
+        catch (SqliteException error)
+        {
+            Health.Observe(error);
+        }
+    }
+
+    private static void Pragma(SqliteConnection connection, string pragmas)
     {
         using var pragma = connection.CreateCommand();
-        pragma.CommandText = $"PRAGMA foreign_keys = {(on ? "ON" : "OFF")};";
+        pragma.CommandText = pragmas;
         pragma.ExecuteNonQuery();
     }
 

@@ -148,6 +148,24 @@ public abstract class ReadingStoreContract : StorageContract
     }
 
     [Fact]
+    public async Task AGridReadIsHalfOpenInTimeOrderWithTheFlaggedReadingsMarked()
+    {
+        await CreateSiteAsync();
+        // Out of order on purpose, and one value beyond the default range, which QC flags.
+        await Backend.Readings.IngestAsync("site-a", Hourly(Start.AddHours(4), 4, 5, 6, 61), ConflictPolicy.Reject, Start);
+        await Backend.Readings.IngestAsync("site-a", Hourly(Start, 0, 1, 2, 3), ConflictPolicy.Reject, Start);
+
+        var grid = await Backend.Readings.ReadGridAsync("site-a", Ms(Start.AddHours(1)), Ms(Start.AddHours(8)));
+
+        Assert.Equal(
+            [(Start.AddHours(1), 1.0, false), (Start.AddHours(2), 2, false), (Start.AddHours(3), 3, false), (Start.AddHours(4), 4, false),
+             (Start.AddHours(5), 5, false), (Start.AddHours(6), 6, false), (Start.AddHours(7), 61, true)],
+            grid!.Select(r => (r.Time, r.ValueC, r.Flagged)));
+        Assert.Empty((await Backend.Readings.ReadGridAsync("site-a", Ms(Start.AddDays(1)), Ms(Start.AddDays(2))))!);
+        Assert.Null(await Backend.Readings.ReadGridAsync("nowhere", long.MinValue, long.MaxValue));
+    }
+
+    [Fact]
     public async Task TheSpanIsTheFirstAndLastReadingAndNullWithoutReadings()
     {
         await CreateSiteAsync();

@@ -10,7 +10,7 @@ using Microsoft.AspNetCore.Mvc;
 
 namespace ForecastHub.Api.Alerts;
 
-/// <summary>A risk raised now, with when it was raised and last evaluated.</summary>
+/// <summary>A risk raised now, with when it was raised and when its figures last changed.</summary>
 public sealed record RaisedAlertResponse(RiskAlert Alert, DateTimeOffset RaisedAt, DateTimeOffset UpdatedAt);
 
 /// <summary>One page of raised risks across the fleet; <c>next</c> links to the following page.</summary>

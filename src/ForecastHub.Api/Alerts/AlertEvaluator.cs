@@ -34,7 +34,7 @@ public sealed class AlertEvaluator(
             var now = clock.GetUtcNow();
             var state = await alerts.GetAsync(site.Id, cancellationToken);
             var assessment = await health.EvaluateAsync(site, cancellationToken);
-            var risk = await riskSource.GetAsync(site, cancellationToken);
+            var risk = await riskSource.GetAsync(site, assessment, cancellationToken);
             var change = Change(site, state, assessment, risk, now);
             if (change.IsEmpty || !await alerts.ApplyAsync(change, now, cancellationToken))
             {
@@ -88,8 +88,13 @@ public sealed class AlertEvaluator(
         var upserts = new List<RaisedAlert>();
         foreach (var level in decisions.Refreshes)
         {
+            // Stored again only when its figures changed: a sweep that finds the same risk writes nothing.
             var previous = state.Raised.First(r => r.ThresholdId == level.ThresholdId && r.WindowName == level.WindowName);
-            upserts.Add(Record(site, level, Current(level), previous.RaisedAt, now));
+            var refreshed = Record(site, level, Current(level), previous.RaisedAt, now);
+            if (refreshed.DetailJson != previous.DetailJson || refreshed.WindowFrom != previous.WindowFrom || refreshed.WindowTo != previous.WindowTo)
+            {
+                upserts.Add(refreshed);
+            }
         }
 
         foreach (var level in decisions.Raises)

@@ -1,3 +1,4 @@
+using ForecastHub.Core.Grid;
 using ForecastHub.Core.Risk;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Readings;
@@ -23,6 +24,9 @@ public sealed class AlertingReadingStore(IReadingStore inner, AlertQueue queue) 
     public Task<IReadOnlyList<StoredReading>?> ReadAsync(string siteId, long fromMs, long toMs, long? afterMs, int limit,
         CancellationToken cancellationToken = default) =>
         inner.ReadAsync(siteId, fromMs, toMs, afterMs, limit, cancellationToken);
+
+    public Task<IReadOnlyList<GridReading>?> ReadGridAsync(string siteId, long fromMs, long toMs, CancellationToken cancellationToken = default) =>
+        inner.ReadGridAsync(siteId, fromMs, toMs, cancellationToken);
 
     public Task<ReadingSpan?> SpanAsync(string siteId, CancellationToken cancellationToken = default) =>
         inner.SpanAsync(siteId, cancellationToken);

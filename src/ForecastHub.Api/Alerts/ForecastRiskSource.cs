@@ -1,4 +1,5 @@
 using ForecastHub.Api.Forecasts;
+using ForecastHub.Core.Health;
 using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Api.Alerts;
@@ -10,7 +11,7 @@ namespace ForecastHub.Api.Alerts;
 /// </summary>
 public sealed class ForecastRiskSource(SiteRiskService risks) : ISiteRiskSource
 {
-    public async Task<SiteAlertRisk?> GetAsync(SiteRecord site, CancellationToken cancellationToken)
+    public async Task<SiteAlertRisk?> GetAsync(SiteRecord site, HealthAssessment assessment, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(site);
         if (!site.Risk.Thresholds.Any(t => t.AlertProbability is not null))
@@ -19,7 +20,7 @@ public sealed class ForecastRiskSource(SiteRiskService risks) : ISiteRiskSource
             return new SiteAlertRisk(default, "normal", null, []);
         }
 
-        var (risk, _) = await risks.EvaluateAsync(site, cancellationToken);
+        var (risk, _) = await risks.EvaluateAsync(site, assessment, cancellationToken);
         if (risk is null)
         {
             return null;

@@ -1,3 +1,4 @@
+using ForecastHub.Core.Health;
 using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Api.Alerts;
@@ -26,5 +27,6 @@ public sealed record SiteAlertRisk(DateTimeOffset Origin, string Confidence, str
 /// </summary>
 public interface ISiteRiskSource
 {
-    Task<SiteAlertRisk?> GetAsync(SiteRecord site, CancellationToken cancellationToken);
+    /// <param name="assessment">The site's health, judged once per evaluation and shared with the forecast behind the risk.</param>
+    Task<SiteAlertRisk?> GetAsync(SiteRecord site, HealthAssessment assessment, CancellationToken cancellationToken);
 }

@@ -4,6 +4,7 @@ using System.Text.Json;
 using ForecastHub.Api.Health;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Api.Models;
+using ForecastHub.Core.Health;
 using ForecastHub.Core.Settings;
 using ForecastHub.Storage.Sites;
 using Microsoft.AspNetCore.Http.Json;
@@ -36,23 +37,29 @@ public sealed class ForecastService(
 
     private readonly ConcurrentDictionary<string, SiteEntry> cache = new(StringComparer.Ordinal);
 
+    public Task<(ForecastResponse? Forecast, ForecastUnavailable? Unavailable)> GetAsync(
+        SiteRecord site, ForecastQuery query, CancellationToken cancellationToken) =>
+        GetAsync(site, query, null, cancellationToken);
+
+    /// <summary>As <see cref="GetAsync(SiteRecord, ForecastQuery, CancellationToken)"/>, with the site's health
+    /// assessment of this moment when the caller has one, so a computed answer does not assess it again.</summary>
     public async Task<(ForecastResponse? Forecast, ForecastUnavailable? Unavailable)> GetAsync(
-        SiteRecord site, ForecastQuery query, CancellationToken cancellationToken)
+        SiteRecord site, ForecastQuery query, HealthAssessment? assessment, CancellationToken cancellationToken)
     {
-        var (cached, unavailable) = await GetCachedAsync(site, query, cancellationToken);
+        var (cached, unavailable) = await GetCachedAsync(site, query, assessment, cancellationToken);
         return (cached?.Response, unavailable);
     }
 
-    /// <summary>The same answer as <see cref="GetAsync"/>, as the UTF-8 JSON the endpoint writes.</summary>
+    /// <summary>The same answer as <see cref="GetAsync(SiteRecord, ForecastQuery, CancellationToken)"/>, as the UTF-8 JSON the endpoint writes.</summary>
     public async Task<(byte[]? Json, ForecastUnavailable? Unavailable)> GetJsonAsync(
         SiteRecord site, ForecastQuery query, CancellationToken cancellationToken)
     {
-        var (cached, unavailable) = await GetCachedAsync(site, query, cancellationToken);
+        var (cached, unavailable) = await GetCachedAsync(site, query, null, cancellationToken);
         return (cached?.Json(json.Value.SerializerOptions), unavailable);
     }
 
     private async Task<(CachedForecast? Forecast, ForecastUnavailable? Unavailable)> GetCachedAsync(
-        SiteRecord site, ForecastQuery query, CancellationToken cancellationToken)
+        SiteRecord site, ForecastQuery query, HealthAssessment? assessment, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(site);
         ArgumentNullException.ThrowIfNull(query);
@@ -74,12 +81,12 @@ public sealed class ForecastService(
         var model = await models.GetAsync(site, cancellationToken);
         if (model is null)
         {
-            var assessment = await health.EvaluateAsync(site, cancellationToken);
+            assessment ??= await health.EvaluateAsync(site, cancellationToken);
             var why = string.Join(" ", assessment.Reasons.Select(r => r.Message));
             return (null, new ForecastUnavailable($"The site has no fitted model yet (health: {assessment.State}). {why}".Trim()));
         }
 
-        var forecast = await ComputeAsync(site, model, query, now, cancellationToken);
+        var forecast = await ComputeAsync(site, model, query, now, assessment, cancellationToken);
         metrics.ForecastDuration.Observe(watch.Elapsed.TotalSeconds, "miss");
         if (forecast is null)
         {
@@ -124,7 +131,8 @@ public sealed class ForecastService(
         return grid.LastValueIndex < 0 ? null : grid;
     }
 
-    private async Task<ForecastResponse?> ComputeAsync(SiteRecord site, ServingModel model, ForecastQuery query, DateTimeOffset now, CancellationToken cancellationToken)
+    private async Task<ForecastResponse?> ComputeAsync(SiteRecord site, ServingModel model, ForecastQuery query, DateTimeOffset now,
+        HealthAssessment? assessment, CancellationToken cancellationToken)
     {
         var grid = await RecentGridAsync(site, now, cancellationToken);
         if (grid is null)
@@ -136,7 +144,7 @@ public sealed class ForecastService(
         // Risk windows start from the current grid step, so the answer stays the same for the whole step it is cached for.
         var path = ForecastMapping.Forecast(model.Model, grid, query.Steps, query.Levels, query.Below, query.Above, MonteCarloSeed,
             site.Risk, SiteGridLoader.AlignDown(site, now));
-        var assessment = await health.EvaluateAsync(site, cancellationToken);
+        assessment ??= await health.EvaluateAsync(site, cancellationToken);
         var unit = isDaily ? "day" : "hour";
         var gap = path.MissingSteps == 0
             ? null

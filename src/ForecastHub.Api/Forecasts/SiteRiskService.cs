@@ -1,5 +1,6 @@
 using System.Collections.Concurrent;
 using ForecastHub.Api.Models;
+using ForecastHub.Core.Health;
 using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Api.Forecasts;
@@ -24,11 +25,12 @@ public sealed class SiteRiskService(ForecastService forecasts)
 {
     private readonly ConcurrentDictionary<string, CurrentSiteRisk> latest = new(StringComparer.Ordinal);
 
-    public async Task<(CurrentSiteRisk? Risk, ForecastUnavailable? Unavailable)> EvaluateAsync(SiteRecord site, CancellationToken cancellationToken)
+    /// <param name="assessment">The site's health now, when the caller has judged it (a computed forecast then does not judge it again).</param>
+    public async Task<(CurrentSiteRisk? Risk, ForecastUnavailable? Unavailable)> EvaluateAsync(SiteRecord site, HealthAssessment? assessment, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(site);
         var (query, _, _) = ForecastQuery.Parse(site.IsDaily, null, null, null, null);
-        var (forecast, unavailable) = await forecasts.GetAsync(site, query!, cancellationToken);
+        var (forecast, unavailable) = await forecasts.GetAsync(site, query!, assessment, cancellationToken);
         if (forecast is null)
         {
             latest.TryRemove(site.Id, out _);

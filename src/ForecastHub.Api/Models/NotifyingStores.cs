@@ -1,4 +1,5 @@
 using ForecastHub.Api.Metrics;
+using ForecastHub.Core.Grid;
 using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
@@ -45,6 +46,9 @@ public sealed class NotifyingReadingStore(IReadingStore inner, SiteVersions vers
     public Task<IReadOnlyList<StoredReading>?> ReadAsync(string siteId, long fromMs, long toMs, long? afterMs, int limit,
         CancellationToken cancellationToken = default) =>
         inner.ReadAsync(siteId, fromMs, toMs, afterMs, limit, cancellationToken);
+
+    public Task<IReadOnlyList<GridReading>?> ReadGridAsync(string siteId, long fromMs, long toMs, CancellationToken cancellationToken = default) =>
+        inner.ReadGridAsync(siteId, fromMs, toMs, cancellationToken);
 
     public Task<ReadingSpan?> SpanAsync(string siteId, CancellationToken cancellationToken = default) =>
         inner.SpanAsync(siteId, cancellationToken);

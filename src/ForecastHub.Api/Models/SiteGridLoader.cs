@@ -1,5 +1,4 @@
 using ForecastHub.Core.Grid;
-using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
 
@@ -8,8 +7,6 @@ namespace ForecastHub.Api.Models;
 /// <summary>Reads a site's stored readings and turns them into its regular grid.</summary>
 public sealed class SiteGridLoader(IReadingStore readings)
 {
-    private const int PageSize = 20_000;
-
     /// <summary>
     /// The grid over [<paramref name="from"/>, <paramref name="to"/>): steps after the newest reading
     /// up to <paramref name="to"/> are present and missing, so a caller sees a missing tail.
@@ -47,29 +44,10 @@ public sealed class SiteGridLoader(IReadingStore readings)
     }
 
     /// <summary>The site's readings in [<paramref name="from"/>, <paramref name="to"/>) as the grid reads them; null when the site does not exist.</summary>
-    public async Task<IReadOnlyList<GridReading>?> ReadAsync(SiteRecord site, DateTimeOffset from, DateTimeOffset to, CancellationToken cancellationToken)
+    public Task<IReadOnlyList<GridReading>?> ReadAsync(SiteRecord site, DateTimeOffset from, DateTimeOffset to, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(site);
-        var all = new List<GridReading>();
-        long? after = null;
-        while (true)
-        {
-            var page = await readings.ReadAsync(site.Id, from.ToUnixTimeMilliseconds(), to.ToUnixTimeMilliseconds(), after, PageSize, cancellationToken);
-            if (page is null)
-            {
-                return null;
-            }
-
-            all.AddRange(page.Select(r => new GridReading(r.Time, r.ValueC, r.Flags != QualityFlags.None)));
-            if (page.Count < PageSize)
-            {
-                break;
-            }
-
-            after = page[^1].TimeMs;
-        }
-
-        return all;
+        return readings.ReadGridAsync(site.Id, from.ToUnixTimeMilliseconds(), to.ToUnixTimeMilliseconds(), cancellationToken);
     }
 
     /// <summary>The start of the grid step holding <paramref name="time"/> (<see cref="GridClock.StepStart"/>).</summary>

@@ -1,3 +1,4 @@
+using System.Numerics;
 using ForecastHub.Core.Forecasting;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Modeling;
@@ -99,7 +100,7 @@ public static class RiskWindows
         var n = paths.Count;
         var min = new double[windows.Count][];
         var max = new double[windows.Count][];
-        var firstCross = new int[windows.Count, thresholds.Count][];
+        var firstCross = new double[windows.Count, thresholds.Count][];
         var beyond = new long[windows.Count, thresholds.Count];
         for (var w = 0; w < windows.Count; w++)
         {
@@ -109,8 +110,8 @@ public static class RiskWindows
             Array.Fill(max[w], double.NegativeInfinity);
             for (var t = 0; t < thresholds.Count; t++)
             {
-                firstCross[w, t] = new int[n];
-                Array.Fill(firstCross[w, t], -1);
+                firstCross[w, t] = new double[n];
+                Array.Fill(firstCross[w, t], Unmarked);
             }
         }
 
@@ -137,34 +138,12 @@ public static class RiskWindows
                     continue;
                 }
 
-                var windowMin = min[w];
-                var windowMax = max[w];
-                for (var j = 0; j < n; j++)
-                {
-                    windowMin[j] = Math.Min(windowMin[j], values[j]);
-                    windowMax[j] = Math.Max(windowMax[j], values[j]);
-                }
-
+                Extremes(values, min[w], max[w]);
                 for (var t = 0; t < thresholds.Count; t++)
                 {
                     // Crossing compares scores with the step's score of the threshold: exact, since Q is increasing.
                     var below = thresholds[t].Direction == ThresholdDirection.Below;
-                    var limit = step.ScoreOf(thresholds[t].ValueC);
-                    var crosses = firstCross[w, t];
-                    var count = 0L;
-                    for (var j = 0; j < n; j++)
-                    {
-                        if (below ? scores[j] < limit : scores[j] > limit)
-                        {
-                            count++;
-                            if (crosses[j] < 0)
-                            {
-                                crosses[j] = k - first;
-                            }
-                        }
-                    }
-
-                    beyond[w, t] += count;
+                    beyond[w, t] += Cross(scores, step.ScoreOf(thresholds[t].ValueC), below, firstCross[w, t], k - first);
                 }
             }
         }
@@ -188,7 +167,7 @@ public static class RiskWindows
                 {
                     if (c >= 0)
                     {
-                        crossingAt[c]++;
+                        crossingAt[(int)c]++;
                     }
                 }
 
@@ -211,6 +190,63 @@ public static class RiskWindows
         }
 
         return risks;
+    }
+
+    // A path's first crossing before it has crossed; crossings are step offsets 0, 1, ... held as doubles to share the scores' vectors.
+    private const double Unmarked = -1;
+
+    /// <summary>Lowers each path's <paramref name="min"/> and raises its <paramref name="max"/> to its value at this step.</summary>
+    private static void Extremes(ReadOnlySpan<double> values, Span<double> min, Span<double> max)
+    {
+        var width = Vector<double>.Count;
+        var j = 0;
+        for (; j <= values.Length - width; j += width)
+        {
+            var value = new Vector<double>(values[j..]);
+            Vector.Min(new Vector<double>(min[j..]), value).CopyTo(min[j..]);
+            Vector.Max(new Vector<double>(max[j..]), value).CopyTo(max[j..]);
+        }
+
+        for (; j < values.Length; j++)
+        {
+            min[j] = Math.Min(min[j], values[j]);
+            max[j] = Math.Max(max[j], values[j]);
+        }
+    }
+
+    /// <summary>How many paths are beyond the threshold's score <paramref name="limit"/> at this step; those not yet
+    /// marked get <paramref name="step"/> as their first crossing.</summary>
+    private static long Cross(ReadOnlySpan<double> scores, double limit, bool below, Span<double> firstCrossing, double step)
+    {
+        var width = Vector<double>.Count;
+        var limits = new Vector<double>(limit);
+        var steps = new Vector<double>(step);
+        var unmarked = new Vector<double>(Unmarked);
+        var lanes = Vector<long>.Zero;
+        var j = 0;
+        for (; j <= scores.Length - width; j += width)
+        {
+            var score = new Vector<double>(scores[j..]);
+            var beyond = below ? Vector.LessThan(score, limits) : Vector.GreaterThan(score, limits);
+            lanes -= beyond; // a true lane is all ones, -1
+            var first = new Vector<double>(firstCrossing[j..]);
+            Vector.ConditionalSelect(beyond & Vector.Equals(first, unmarked), steps, first).CopyTo(firstCrossing[j..]);
+        }
+
+        var count = Vector.Sum(lanes);
+        for (; j < scores.Length; j++)
+        {
+            if (below ? scores[j] < limit : scores[j] > limit)
+            {
+                count++;
+                if (firstCrossing[j] == Unmarked)
+                {
+                    firstCrossing[j] = step;
+                }
+            }
+        }
+
+        return count;
     }
 
     private static WindowPlan? Overlap(RiskWindow window, IReadOnlyList<DateTimeOffset> times)

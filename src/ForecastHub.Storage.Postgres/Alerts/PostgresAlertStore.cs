@@ -47,6 +47,13 @@ public sealed class PostgresAlertStore(PostgresDatabase database) : IAlertStore
         ArgumentNullException.ThrowIfNull(change);
         return database.WriteAsync(async (connection, transaction) =>
         {
+            if (change.IsRecomputable)
+            {
+                // Nothing is sent with it, so the commit need not wait for the disk (see SiteAlertChange.IsRecomputable).
+                await using var relaxed = connection.Command(transaction, "SET LOCAL synchronous_commit = off;");
+                await relaxed.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+            }
+
             // FOR SHARE holds off a DELETE of the site until this commits, so its trigger then removes what is written here;
             // the key refuses a change for a site deleted and created again since the evaluation read it.
             await using (var exists = connection.Command(transaction, "SELECT 1 FROM sites WHERE id = $1 AND key = $2 FOR SHARE;")

@@ -1,3 +1,4 @@
+using ForecastHub.Core.Grid;
 using ForecastHub.Core.Quality;
 using ForecastHub.Storage.Postgres.Cluster;
 using ForecastHub.Storage.Readings;
@@ -70,6 +71,33 @@ public sealed class PostgresReadingStore(PostgresDatabase database) : IReadingSt
                 {
                     list.Add(new StoredReading(reader.GetInt64(1), reader.GetDouble(2), reader.GetDouble(3), reader.GetString(4),
                         (QualityFlags)reader.GetInt32(5)));
+                }
+            }
+            return found ? list : null;
+        }, cancellationToken);
+
+    public Task<IReadOnlyList<GridReading>?> ReadGridAsync(string siteId, long fromMs, long toMs, CancellationToken cancellationToken = default) =>
+        database.QueryAsync<IReadOnlyList<GridReading>?>(async connection =>
+        {
+            // One statement: the site's existence and its readings come from the same snapshot.
+            await using var select = connection.Command(null, """
+                    SELECT s.key, r.time_ms, r.value_c, r.flags
+                    FROM sites s LEFT JOIN LATERAL (
+                        SELECT time_ms, value_c, flags FROM readings
+                        WHERE site_key = s.key AND time_ms >= $2 AND time_ms < $3
+                        ORDER BY time_ms) r ON true
+                    WHERE s.id = $1;
+                    """)
+                .With(siteId).With(fromMs).With(toMs);
+            await using var reader = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+            var list = new List<GridReading>();
+            var found = false;
+            while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
+            {
+                found = true;
+                if (!reader.IsDBNull(1))
+                {
+                    list.Add(new GridReading(DateTimeOffset.FromUnixTimeMilliseconds(reader.GetInt64(1)), reader.GetDouble(2), reader.GetInt32(3) != 0));
                 }
             }
             return found ? list : null;

@@ -51,4 +51,8 @@ public sealed record SiteAlertChange(
     IReadOnlyList<OutgoingEvent> Events)
 {
     public bool IsEmpty => Upserts.Count == 0 && Clears.Count == 0 && HealthState is null && Events.Count == 0;
+
+    /// <summary>A change that sends nothing (refreshed figures, the first look at a health state) can be lost in a
+    /// crash without harm: the next evaluation makes it again, so a store need not wait for the disk to commit it.</summary>
+    public bool IsRecomputable => Events.Count == 0;
 }

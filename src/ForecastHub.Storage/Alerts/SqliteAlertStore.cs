@@ -1,4 +1,5 @@
 using ForecastHub.Storage.Webhooks;
+using Microsoft.Data.Sqlite;
 
 namespace ForecastHub.Storage.Alerts;
 
@@ -29,7 +30,9 @@ public sealed class SqliteAlertStore(SqliteDatabase database) : IAlertStore
     public Task<bool> ApplyAsync(SiteAlertChange change, DateTimeOffset at, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(change);
-        return database.WriteAsync((connection, transaction) =>
+        return change.IsRecomputable ? database.WriteRecomputableAsync(Apply, cancellationToken) : database.WriteAsync(Apply, cancellationToken);
+
+        bool Apply(SqliteConnection connection, SqliteTransaction transaction)
         {
             using (var exists = connection.Command(transaction, "SELECT EXISTS (SELECT 1 FROM sites WHERE id = $site AND key = $key);")
                        .With("$site", change.SiteId).With("$key", change.SiteKey))
@@ -87,7 +90,7 @@ public sealed class SqliteAlertStore(SqliteDatabase database) : IAlertStore
             }
 
             return true;
-        }, cancellationToken);
+        }
     }
 
     public Task<IReadOnlyList<RaisedAlert>> ListRaisedAsync((string SiteId, string ThresholdId, string WindowName)? after, int limit,

@@ -1,3 +1,5 @@
+using ForecastHub.Core.Grid;
+
 namespace ForecastHub.Storage.Readings;
 
 /// <summary>Raw readings of a site.</summary>
@@ -15,6 +17,10 @@ public interface IReadingStore
     /// Null when the site does not exist.</summary>
     Task<IReadOnlyList<StoredReading>?> ReadAsync(string siteId, long fromMs, long toMs, long? afterMs, int limit,
         CancellationToken cancellationToken = default);
+
+    /// <summary>Every reading in [<paramref name="fromMs"/>, <paramref name="toMs"/>) in time order, with only what a
+    /// grid needs (time, value in °C, whether QC flagged it), read in one snapshot. Null when the site does not exist.</summary>
+    Task<IReadOnlyList<GridReading>?> ReadGridAsync(string siteId, long fromMs, long toMs, CancellationToken cancellationToken = default);
 
     /// <summary>First and last reading times; null when the site has no readings or does not exist.</summary>
     Task<ReadingSpan?> SpanAsync(string siteId, CancellationToken cancellationToken = default);

@@ -1,4 +1,5 @@
 using System.Globalization;
+using ForecastHub.Core.Grid;
 using ForecastHub.Core.Quality;
 using Microsoft.Data.Sqlite;
 using SQLitePCL;
@@ -53,6 +54,31 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
                 .With("$to", toMs)
                 .With("$limit", limit);
             return ReadAll(select);
+        }));
+
+    public Task<IReadOnlyList<GridReading>?> ReadGridAsync(string siteId, long fromMs, long toMs, CancellationToken cancellationToken = default) =>
+        Task.FromResult(database.Read<IReadOnlyList<GridReading>?>((connection, transaction) =>
+        {
+            var site = FindSite(connection, transaction, siteId);
+            if (site is null)
+            {
+                return null;
+            }
+            using var select = connection.Command(transaction, """
+                    SELECT time_ms, value_c, flags FROM readings
+                    WHERE site_key = $site AND time_ms >= $from AND time_ms < $to
+                    ORDER BY time_ms;
+                    """)
+                .With("$site", site.Value.Key)
+                .With("$from", fromMs)
+                .With("$to", toMs);
+            using var reader = select.ExecuteReader();
+            var readings = new List<GridReading>();
+            while (reader.Read())
+            {
+                readings.Add(new GridReading(DateTimeOffset.FromUnixTimeMilliseconds(reader.GetInt64(0)), reader.GetDouble(1), reader.GetInt64(2) != 0));
+            }
+            return readings;
         }));
 
     public Task<ReadingSpan?> SpanAsync(string siteId, CancellationToken cancellationToken = default) =>

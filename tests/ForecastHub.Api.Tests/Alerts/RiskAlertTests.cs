@@ -52,7 +52,11 @@ public sealed class RiskAlertTests
         var alerts = await admin.GetJsonAsync("/api/v1/alerts");
         Assert.Equal(2, alerts.GetProperty("alerts").GetArrayLength());
 
-        // Repeated forecasts and sweeps find the same risk: nothing more is sent.
+        // Repeated forecasts and sweeps later in the same hour find the same risk: nothing more is sent, and nothing
+        // is stored again (updatedAt is when the figures last changed).
+        static string[] UpdatedAt(JsonElement list) => [.. list.GetProperty("alerts").EnumerateArray().Select(a => a.GetProperty("updatedAt").GetString()!)];
+        var updatedAt = UpdatedAt(alerts);
+        factory.Clock.Advance(TimeSpan.FromMinutes(10));
         var worker = factory.Services.GetRequiredService<AlertWorker>();
         for (var i = 0; i < 3; i++)
         {
@@ -60,6 +64,7 @@ public sealed class RiskAlertTests
             await worker.SweepAsync(CancellationToken.None);
         }
         Assert.Equal(2, (await admin.DeliveriesAsync(webhookId)).Length);
+        Assert.Equal(updatedAt, UpdatedAt(await admin.GetJsonAsync("/api/v1/alerts")));
 
         // Above 60 C: no path crosses, below 0.8 x 0.5, so both clear.
         using (var patched = await admin.PatchAsJsonAsync(Site, new { thresholds = new[] { Warm(60) } }))

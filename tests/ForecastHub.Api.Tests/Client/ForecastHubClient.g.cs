@@ -5562,7 +5562,7 @@ namespace ForecastHub.Api.Tests.Client.Generated
     }
 
     /// <summary>
-    /// A risk raised now, with when it was raised and last evaluated.
+    /// A risk raised now, with when it was raised and when its figures last changed.
     /// </summary>
     [System.CodeDom.Compiler.GeneratedCode("NJsonSchema", "14.8.0.0 (NJsonSchema v11.6.2.0 (Newtonsoft.Json v13.0.0.0))")]
     public partial class RaisedAlertResponse

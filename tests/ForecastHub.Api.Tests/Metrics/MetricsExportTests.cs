@@ -75,7 +75,7 @@ public sealed class MetricsExportTests
 
         var beforeEvaluation = await ScrapeAsync(client);
         var sites = factory.Services.GetRequiredService<ISiteStore>();
-        var (risk, _) = await factory.Services.GetRequiredService<SiteRiskService>().EvaluateAsync((await sites.GetAsync("frosty"))!, CancellationToken.None);
+        var (risk, _) = await factory.Services.GetRequiredService<SiteRiskService>().EvaluateAsync((await sites.GetAsync("frosty"))!, null, CancellationToken.None);
         var afterEvaluation = await ScrapeAsync(client);
 
         Assert.DoesNotMatch(@"(?m)^forecasthub_site_risk_night_probability\{", beforeEvaluation);

@@ -121,7 +121,7 @@ public sealed class SiteThresholdsTests
 
         // The service entry point gives the same risk as the answer.
         var site = await factory.Services.GetRequiredService<ISiteStore>().GetAsync("orchard-1");
-        var (siteRisk, _) = await factory.Services.GetRequiredService<SiteRiskService>().EvaluateAsync(site!, CancellationToken.None);
+        var (siteRisk, _) = await factory.Services.GetRequiredService<SiteRiskService>().EvaluateAsync(site!, null, CancellationToken.None);
         Assert.Equal(2, siteRisk!.Risk.Count);
         Assert.Equal("normal", siteRisk.Confidence);
         Assert.NotEmpty(siteRisk.Cautions);
