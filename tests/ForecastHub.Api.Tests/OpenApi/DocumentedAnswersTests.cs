@@ -129,6 +129,9 @@ public sealed class DocumentedAnswersTests
         yield return new("GET", Site + "/forecast", Orchard + "/forecast?format=csv", Caller.Read);
         yield return new("GET", Site + "/forecast", Orchard + "/forecast", Caller.Read, Accept: "text/csv");
         yield return new("GET", Site + "/forecast.svg", Orchard + "/forecast.svg?steps=0", Caller.Read);
+        yield return new("GET", Site + "/model", Orchard + "/model?unit=R", Caller.Read);
+        yield return new("GET", Site + "/model", Orchard + "/model?unit=F", Caller.Read);
+        yield return new("POST", Site + "/model/refit", Orchard + "/model/refit?step=3", Caller.Admin);
         yield return new("POST", Site + "/model/refit", Orchard + "/model/refit", Caller.Read);
         yield return new("POST", Site + "/model/refit", NoSite + "/model/refit", Caller.Admin);
         yield return new("POST", Site + "/model/refit", Orchard + "/model/refit", Caller.Admin);
@@ -163,6 +166,9 @@ public sealed class DocumentedAnswersTests
         yield return new("GET", observations, Orchard + "/observations?resolution=grid", Caller.Read);
         yield return new("GET", observations, Orchard + "/observations?format=csv", Caller.Read);
         yield return new("GET", observations, Orchard + "/observations?resolution=grid&format=csv", Caller.Read);
+        yield return new("GET", observations, Orchard + "/observations?resolution=grid&unit=K", Caller.Read);
+        yield return new("GET", observations, Orchard + "/observations?unit=R", Caller.Read);
+        yield return new("GET", observations, Orchard + "/observations?step=3", Caller.Read);
         yield return new("GET", observations, Orchard + "/observations", Caller.Read, Accept: "text/csv");
 
         // With readings stored a refit is attempted; too few for a model is still a documented answer.
