@@ -5,6 +5,8 @@
 # keyed like the service's readings table, in WAL mode with the same synchronous=FULL.
 # Background refits are switched off (Refit:Enabled=false): 10,000 hourly readings make every
 # site due for a fit, and fits would share the two cores with the ingest being timed.
+# Before the clock starts the client sends the same workload twice into warm-up sites and waits
+# until the service is idle, so the timed pass runs compiled code (see IngestVerb).
 # Prints both rates and their ratio (target >= 0.3). Usage: tests/benchmarks/ingest.sh
 set -euo pipefail
 cd "$(dirname "$0")/../.."
