@@ -1,3 +1,4 @@
+using ForecastHub.Core.Climatology;
 using ForecastHub.Core.Forecasting;
 using ForecastHub.Core.Grid;
 using ForecastHub.Core.Linear;
@@ -126,30 +127,47 @@ public static class Calibration
 
     /// <param name="x">The climatology design columns at the window's times (null for a level-only design): fold
     /// fits take their prefixes, and the fold models' climatology and variance factors are combinations of them.</param>
-    internal static CalibrationTable? Build(SeriesWindow window, SiteModel model, ModelSettings settings, double[][]? x, List<string> notes)
+    internal static CalibrationTable? Build(SeriesWindow window, HarmonicDesign design, ModelSettings settings, double[][]? x, List<string> notes)
     {
-        var horizons = Horizons(model.Cadence);
-        var errors = Enumerable.Range(0, horizons).Select(_ => new List<double>()).ToArray();
-        var n = window.Count;
-        var folds = 0;
-        var origins = 0;
-        foreach (var (from, to) in new[] { (0.70, 0.85), (0.85, 1.0) })
+        var horizons = Horizons(design.Cadence);
+        (double From, double To)[] splits = [(0.70, 0.85), (0.85, 1.0)];
+        var results = new (List<double>[] Errors, int Origins)?[splits.Length];
+
+        // The folds are independent: fitted side by side, their errors joined in fold order afterwards.
+        Parallel.For(0, splits.Length, f =>
         {
-            var trainCount = (int)(n * from);
-            var testEnd = (int)(n * to);
+            var n = window.Count;
+            var trainCount = (int)(n * splits[f].From);
+            var testEnd = (int)(n * splits[f].To);
             SiteModel fold;
             try
             {
                 var prefix = x?.Select(column => column[..trainCount]).ToArray();
-                fold = SiteModelFitter.FitCore(window.Prefix(trainCount), model.Cadence, model.TimeZone, settings, model.Climatology.Design, prefix, [], diagnostics: false);
+                fold = SiteModelFitter.FitCore(window.Prefix(trainCount), design.Cadence, design.TimeZone, settings, design, prefix, [], diagnostics: false);
             }
             catch (SeriesException)
             {
-                continue;
+                return;
             }
 
-            folds++;
-            origins += CollectErrors(window, fold, x, trainCount - 1, testEnd - 1, errors);
+            var foldErrors = Enumerable.Range(0, horizons).Select(_ => new List<double>()).ToArray();
+            results[f] = (foldErrors, CollectErrors(window, fold, x, trainCount - 1, testEnd - 1, foldErrors));
+        });
+
+        var errors = Enumerable.Range(0, horizons).Select(_ => new List<double>()).ToArray();
+        var folds = 0;
+        var origins = 0;
+        foreach (var result in results)
+        {
+            if (result is { } r)
+            {
+                folds++;
+                origins += r.Origins;
+                for (var h = 0; h < horizons; h++)
+                {
+                    errors[h].AddRange(r.Errors[h]);
+                }
+            }
         }
 
         var total = errors.Sum(e => e.Count);

@@ -1,3 +1,4 @@
+using System.Runtime.ExceptionServices;
 using ForecastHub.Core.Autoregression;
 using ForecastHub.Core.Climatology;
 using ForecastHub.Core.Correlation;
@@ -41,14 +42,28 @@ public static class SiteModelFitter
         var notes = new List<string>();
         var design = ResolveDesign(window, grid.Cadence, grid.TimeZone, settings.Seasonality, notes);
         var x = design.Columns == 1 ? null : design.ColumnMajor(window.Times);
-        var model = FitCore(window, grid.Cadence, grid.TimeZone, settings, design, x, notes, diagnostics: true);
-        if (settings.IntervalMethod == IntervalMethod.Calibrated)
+        if (settings.IntervalMethod != IntervalMethod.Calibrated)
         {
-            var table = Calibration.Build(window, model, settings, x, notes);
-            model = model with { Calibration = table };
+            return FitCore(window, grid.Cadence, grid.TimeZone, settings, design, x, notes, diagnostics: true);
         }
 
-        return model;
+        // The calibration's fold fits need only the design, not the model: they run beside the main fit.
+        SiteModel? model = null;
+        CalibrationTable? table = null;
+        var calibrationNotes = new List<string>();
+        try
+        {
+            Parallel.Invoke(
+                () => model = FitCore(window, grid.Cadence, grid.TimeZone, settings, design, x, notes, diagnostics: true),
+                () => table = Calibration.Build(window, design, settings, x, calibrationNotes));
+        }
+        catch (AggregateException error)
+        {
+            // The caller sees the main fit's problem (too few points, say) as when the steps ran one after the other.
+            ExceptionDispatchInfo.Throw(error.InnerExceptions.FirstOrDefault(e => e is SeriesException) ?? error.InnerExceptions[0]);
+        }
+
+        return model! with { Calibration = table, Notes = [.. model.Notes, .. calibrationNotes] };
     }
 
     /// <summary>Annual terms need a year of data; diurnal terms an hourly grid (DESIGN.md section 3).</summary>

@@ -49,6 +49,18 @@ public sealed class SiteModelTests
     }
 
     [Fact]
+    public void ACalibratedFitWithTooFewOutOfSampleErrorsSaysSoAndHasNoTable()
+    {
+        // 40 days: each fold forecasts from 6 origins at most 7 days ahead, fewer than Calibration.MinErrors errors.
+        var grid = SomeGrid.DailyGrid(SomeAr.ArSeries(40, [0.5], mean: 3));
+
+        var model = SiteModelFitter.Fit(grid, new ModelSettings { FitWindowDays = 1095, IntervalMethod = IntervalMethod.Calibrated });
+
+        Assert.Null(model.Calibration);
+        Assert.Contains(model.Notes, n => n.StartsWith("Too little data to calibrate intervals", StringComparison.Ordinal));
+    }
+
+    [Fact]
     public void FitWindowKeepsOnlyTheNewestDays()
     {
         var grid = SomeGrid.DailyGrid(SomeAr.ArSeries(500, [0.5], mean: 3));
