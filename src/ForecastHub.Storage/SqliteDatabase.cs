@@ -184,7 +184,7 @@ public sealed class SqliteDatabase : IDisposable
             }
             if (!waitForDisk)
             {
-                RestoreSetUp(connection);
+                RestoreSetUp(connection, "PRAGMA synchronous = FULL;");
             }
         }
         catch (Exception error)
@@ -294,7 +294,7 @@ public sealed class SqliteDatabase : IDisposable
             }
             finally
             {
-                RestoreSetUp(connection);
+                RestoreSetUp(connection, "PRAGMA foreign_keys = ON;");
             }
         }
         catch (SqliteException error)
@@ -320,13 +320,13 @@ public sealed class SqliteDatabase : IDisposable
 
     private const int SqliteConstraint = 19;
 
-    // After a write that changed the connection's pragmas (already forgotten as set up): set up again for the pool. A failure
-    // here must not fail a write that committed; the connection then stays forgotten and its next open sets it up.
-    private void RestoreSetUp(SqliteConnection connection)
+    // After a write that changed one of the connection's pragmas (already forgotten as set up): set it back for the pool. A
+    // failure here must not fail a write that committed; the connection then stays forgotten and its next open sets it up.
+    private void RestoreSetUp(SqliteConnection connection, string pragma)
     {
         try
         {
-            Pragma(connection, _setUpPragmas);
+            Pragma(connection, pragma);
             _prepared.TryAdd(connection.Handle!, connection.Handle!);
         }
         catch (SqliteException error)
