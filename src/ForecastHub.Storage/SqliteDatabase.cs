@@ -74,13 +74,13 @@ public sealed class SqliteDatabase : IDisposable
     /// <summary>Runs <paramref name="work"/> as the only writer, in one IMMEDIATE transaction that
     /// commits when it returns and rolls back when it throws.</summary>
     public Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
-        WriteAsync(work, foreignKeys: true, waitForDisk: true, cancellationToken);
+        WriteAsync(work, waitForDisk: true, cancellationToken);
 
     /// <summary>As <see cref="WriteAsync{T}(Func{SqliteConnection, SqliteTransaction, T}, CancellationToken)"/>, with foreign
     /// keys off for the transaction, for a migration that rebuilds a parent table (dropping it must not
     /// cascade to its children). Every foreign key is checked before the commit; a dangling one rolls it back.</summary>
     public Task<T> WriteWithoutForeignKeysAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
-        WriteAsync(work, foreignKeys: false, waitForDisk: true, cancellationToken);
+        WriteAloneWithoutForeignKeysAsync(work, cancellationToken);
 
     /// <summary>
     /// As <see cref="WriteAsync{T}(Func{SqliteConnection, SqliteTransaction, T}, CancellationToken)"/> for a write that a
@@ -89,15 +89,11 @@ public sealed class SqliteDatabase : IDisposable
     /// and the next durable commit makes it durable too.
     /// </summary>
     public Task<T> WriteRecomputableAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken = default) =>
-        WriteAsync(work, foreignKeys: true, waitForDisk: false, cancellationToken);
+        WriteAsync(work, waitForDisk: false, cancellationToken);
 
-    private async Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, bool foreignKeys, bool waitForDisk, CancellationToken cancellationToken)
+    private async Task<T> WriteAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, bool waitForDisk, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(work);
-        if (!foreignKeys)
-        {
-            return await WriteAloneWithoutForeignKeysAsync(work, cancellationToken).ConfigureAwait(false);
-        }
         var write = new QueuedWrite<T>(work, waitForDisk);
         lock (_queued)
         {
@@ -161,9 +157,7 @@ public sealed class SqliteDatabase : IDisposable
             var waitForDisk = batch.Exists(w => w.WaitForDisk);
             if (!waitForDisk)
             {
-                // Set outside the transaction; forgotten as set up first, so the next use sets FULL again even if the reset fails.
-                _prepared.Remove(connection.Handle!);
-                Pragma(connection, "PRAGMA synchronous = NORMAL;");
+                ChangeSetUp(connection, "PRAGMA synchronous = NORMAL;");
             }
             using var transaction = connection.BeginTransaction(deferred: false);
             foreach (var write in batch)
@@ -272,17 +266,15 @@ public sealed class SqliteDatabase : IDisposable
         }
     }
 
-    // Alone in its transaction: the pragma is a no-op inside a transaction, so it is set before BEGIN
-    // and set back before the connection returns to the pool.
+    // Alone in its transaction, with foreign keys off for it (never shared with queued writes).
     private async Task<T> WriteAloneWithoutForeignKeysAsync<T>(Func<SqliteConnection, SqliteTransaction, T> work, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(work);
         await _writeLock.WaitAsync(cancellationToken).ConfigureAwait(false);
         try
         {
             using var connection = Open();
-            // Forgotten as set up first, so the connection's next use sets foreign keys on again even if the reset below fails.
-            _prepared.Remove(connection.Handle!);
-            Pragma(connection, "PRAGMA foreign_keys = OFF;");
+            ChangeSetUp(connection, "PRAGMA foreign_keys = OFF;");
             try
             {
                 using var transaction = connection.BeginTransaction(deferred: false);
@@ -320,8 +312,16 @@ public sealed class SqliteDatabase : IDisposable
 
     private const int SqliteConstraint = 19;
 
-    // After a write that changed one of the connection's pragmas (already forgotten as set up): set it back for the pool. A
-    // failure here must not fail a write that committed; the connection then stays forgotten and its next open sets it up.
+    // Changes one of the connection's pragmas for one write, outside its transaction (these pragmas do nothing inside one).
+    // The connection is forgotten as set up first, so its next open sets it up again even if RestoreSetUp fails.
+    private void ChangeSetUp(SqliteConnection connection, string pragma)
+    {
+        _prepared.Remove(connection.Handle!);
+        Pragma(connection, pragma);
+    }
+
+    // Sets back what ChangeSetUp changed. A failure here must not fail a write that committed; the connection then stays
+    // forgotten and its next open sets it up.
     private void RestoreSetUp(SqliteConnection connection, string pragma)
     {
         try

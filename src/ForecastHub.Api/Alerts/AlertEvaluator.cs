@@ -88,10 +88,10 @@ public sealed class AlertEvaluator(
         var upserts = new List<RaisedAlert>();
         foreach (var level in decisions.Refreshes)
         {
-            // Stored again only when its figures changed: a sweep that finds the same risk writes nothing.
+            // Stored again only when its figures (the window's times among them) changed: a sweep that finds the same risk writes nothing.
             var previous = state.Raised.First(r => r.ThresholdId == level.ThresholdId && r.WindowName == level.WindowName);
             var refreshed = Record(site, level, Current(level), previous.RaisedAt, now);
-            if (refreshed.DetailJson != previous.DetailJson || refreshed.WindowFrom != previous.WindowFrom || refreshed.WindowTo != previous.WindowTo)
+            if (refreshed.DetailJson != previous.DetailJson)
             {
                 upserts.Add(refreshed);
             }

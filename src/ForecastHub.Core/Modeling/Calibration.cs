@@ -143,7 +143,7 @@ public static class Calibration
             try
             {
                 var prefix = x?.Select(column => column[..trainCount]).ToArray();
-                fold = SiteModelFitter.FitCore(window.Prefix(trainCount), design.Cadence, design.TimeZone, settings, design, prefix, [], diagnostics: false);
+                fold = SiteModelFitter.FitCore(window.Prefix(trainCount), settings, design, prefix, [], diagnostics: false);
             }
             catch (SeriesException)
             {

@@ -44,7 +44,7 @@ public static class SiteModelFitter
         var x = design.Columns == 1 ? null : design.ColumnMajor(window.Times);
         if (settings.IntervalMethod != IntervalMethod.Calibrated)
         {
-            return FitCore(window, grid.Cadence, grid.TimeZone, settings, design, x, notes, diagnostics: true);
+            return FitCore(window, settings, design, x, notes, diagnostics: true);
         }
 
         // The calibration's fold fits need only the design, not the model: they run beside the main fit.
@@ -54,7 +54,7 @@ public static class SiteModelFitter
         try
         {
             Parallel.Invoke(
-                () => model = FitCore(window, grid.Cadence, grid.TimeZone, settings, design, x, notes, diagnostics: true),
+                () => model = FitCore(window, settings, design, x, notes, diagnostics: true),
                 () => table = Calibration.Build(window, design, settings, x, calibrationNotes));
         }
         catch (AggregateException error)
@@ -93,8 +93,9 @@ public static class SiteModelFitter
     }
 
     /// <param name="x">The design columns at the window's times (null for a level-only design).</param>
-    internal static SiteModel FitCore(SeriesWindow window, GridCadence cadence, string timeZone, ModelSettings settings, HarmonicDesign design, double[][]? x, List<string> notes, bool diagnostics)
+    internal static SiteModel FitCore(SeriesWindow window, ModelSettings settings, HarmonicDesign design, double[][]? x, List<string> notes, bool diagnostics)
     {
+        var cadence = design.Cadence;
         var n = window.Count;
         if (n < Math.Max(MinimumPoints, design.Columns + 2))
         {
@@ -169,7 +170,7 @@ public static class SiteModelFitter
         var acfLags = Math.Min(Math.Max(selection.MaxOrder, 1), n - 1);
         var acf = diagnostics ? Autocorrelation.Acf(anomalySegments, acfLags).Skip(1).Select((r, k) => new LagValue(k + 1, r)).ToArray() : [];
         var fitWindow = new FitWindow(window.Times[0], window.Times[^1], n, window.Interpolated.Count(b => b), window.Segments.Length);
-        return new SiteModel(cadence, timeZone, settings, fitWindow, climatology, ar, selection, varianceSeason, null, residualDiagnostics, acf, [.. notes]);
+        return new SiteModel(cadence, design.TimeZone, settings, fitWindow, climatology, ar, selection, varianceSeason, null, residualDiagnostics, acf, [.. notes]);
     }
 
     private static OrderSelectionResult Select(SeriesWindow window, double[] anomalies, ModelSettings settings) =>
