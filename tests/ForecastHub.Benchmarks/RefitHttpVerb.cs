@@ -6,6 +6,7 @@ using System.Text.Json;
 using ForecastHub.Api.Models;
 using ForecastHub.Core.Modeling;
 using ForecastHub.Storage;
+using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
@@ -116,7 +117,7 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
     {
         using var database = new SqliteDatabase(new StorageOptions { Path = databasePath });
         var site = (await new SqliteSiteStore(database, TimeProvider.System).GetAsync(SiteId))!;
-        var loader = new SiteGridLoader(new SqliteReadingStore(database));
+        var loader = new SiteGridLoader(new SqliteReadingStore(database), new SqliteReadingSummaryStore(database));
         var models = new SqliteModelStore(database);
         var now = DateTimeOffset.UtcNow;
         var gaussian = site.Model with { IntervalMethod = IntervalMethod.Gaussian };

@@ -1,6 +1,7 @@
 using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Core.Health;
+using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
 using Microsoft.Extensions.Options;
@@ -29,7 +30,7 @@ public static class ModelsSetup
             sp.GetRequiredService<SiteVersions>(), sp.GetRequiredService<RefitQueue>(), sp.GetRequiredService<ModelService>()));
 
         // The grid loader and model service read through the decorated stores; reads pass straight through.
-        services.AddSingleton(sp => new SiteGridLoader(sp.GetRequiredService<IReadingStore>()));
+        services.AddSingleton(sp => new SiteGridLoader(sp.GetRequiredService<IReadingStore>(), sp.GetRequiredService<IReadingSummaryStore>()));
         services.AddSingleton<ModelService>();
         services.AddSingleton<RefitWorker>();
         services.AddHostedService(sp => sp.GetRequiredService<RefitWorker>());

@@ -1,11 +1,12 @@
 using ForecastHub.Core.Grid;
+using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
 
 namespace ForecastHub.Api.Models;
 
 /// <summary>Reads a site's stored readings and turns them into its regular grid.</summary>
-public sealed class SiteGridLoader(IReadingStore readings)
+public sealed class SiteGridLoader(IReadingStore readings, IReadingSummaryStore summaries)
 {
     /// <summary>
     /// The grid over [<paramref name="from"/>, <paramref name="to"/>): steps after the newest reading
@@ -22,8 +23,8 @@ public sealed class SiteGridLoader(IReadingStore readings)
     public async Task<DateTimeOffset?> NewestAsync(SiteRecord site, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(site);
-        var span = await readings.SpanAsync(site.Id, cancellationToken);
-        return span is { } s ? DateTimeOffset.FromUnixTimeMilliseconds(s.LastMs) : null;
+        // From the index's newest entry: the reading span would count every row.
+        return (await summaries.GetAsync(site.Id, cancellationToken))?.LastObservationAt;
     }
 
     /// <summary>Where a window of <paramref name="days"/> counted back from the newest reading (or from now, when

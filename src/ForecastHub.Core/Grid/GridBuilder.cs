@@ -31,15 +31,14 @@ public static class GridBuilder
         }
 
         var zone = FindZone(options.TimeZone);
-        var valid = readings
-            .Where(r => !r.Flagged && double.IsFinite(r.ValueC)
-                && (from is null || r.Time >= from) && (to is null || r.Time < to))
-            .ToArray();
-
         return options.Cadence == GridCadence.Hourly
-            ? BuildHourly(valid, options, zone, from, to)
-            : BuildDaily(valid, options, zone, from, to);
+            ? BuildHourly(readings as IReadOnlyCollection<GridReading> ?? readings.ToArray(), options, zone, from, to)
+            : BuildDaily(readings.Where(r => IsValid(r, from, to)).ToArray(), options, zone, from, to);
     }
+
+    /// <summary>Counted in the grid: not flagged, finite, and inside the span where one is given.</summary>
+    private static bool IsValid(in GridReading r, DateTimeOffset? from, DateTimeOffset? to) =>
+        !r.Flagged && double.IsFinite(r.ValueC) && (from is null || r.Time >= from) && (to is null || r.Time < to);
 
     public static TimeZoneInfo FindZone(string timeZone)
     {
@@ -72,33 +71,49 @@ public static class GridBuilder
     public static DateOnly LocalDate(DateTimeOffset time, TimeZoneInfo zone) =>
         DateOnly.FromDateTime(TimeZoneInfo.ConvertTime(time, zone).DateTime);
 
-    private static TimeGrid BuildHourly(GridReading[] valid, GridOptions options, TimeZoneInfo zone, DateTimeOffset? from, DateTimeOffset? to)
+    private static TimeGrid BuildHourly(IReadOnlyCollection<GridReading> readings, GridOptions options, TimeZoneInfo zone, DateTimeOffset? from, DateTimeOffset? to)
     {
-        var sums = new Dictionary<long, (double Sum, int Count)>();
-        foreach (var r in valid)
+        // One pass over the readings into per-hour sums (in reading order, as the mean of each hour is defined).
+        var first = from is { } f ? HourIndex(f) : long.MaxValue;
+        var last = to is { } t ? HourIndex(t.AddTicks(-1)) : long.MinValue;
+        if (from is null || to is null)
         {
-            var h = HourIndex(r.Time);
-            sums[h] = sums.TryGetValue(h, out var s) ? (s.Sum + r.ValueC, s.Count + 1) : (r.ValueC, 1);
+            var any = false;
+            foreach (var r in readings)
+            {
+                if (IsValid(r, from, to))
+                {
+                    any = true;
+                    first = from is null ? Math.Min(first, HourIndex(r.Time)) : first;
+                    last = to is null ? Math.Max(last, HourIndex(r.Time)) : last;
+                }
+            }
+
+            if (!any)
+            {
+                return Empty(options);
+            }
         }
 
-        if (sums.Count == 0 && (from is null || to is null))
-        {
-            return Empty(options);
-        }
-
-        var first = from is { } f ? HourIndex(f) : sums.Keys.Min();
-        var last = to is { } t ? HourIndex(t.AddTicks(-1)) : sums.Keys.Max();
         var n = checked((int)(last - first + 1));
-        var times = new DateTimeOffset[n];
         var values = new double[n];
+        var counts = new int[n];
+        foreach (var r in readings)
+        {
+            if (IsValid(r, from, to))
+            {
+                var i = (int)(HourIndex(r.Time) - first);
+                values[i] += r.ValueC;
+                counts[i]++;
+            }
+        }
+
         for (var i = 0; i < n; i++)
         {
-            var utc = new DateTimeOffset((first + i) * TimeSpan.TicksPerHour, TimeSpan.Zero);
-            times[i] = TimeZoneInfo.ConvertTime(utc, zone);
-            values[i] = sums.TryGetValue(first + i, out var s) ? s.Sum / s.Count : double.NaN;
+            values[i] = counts[i] > 0 ? values[i] / counts[i] : double.NaN;
         }
 
-        return Complete(options, times, values);
+        return Complete(options, GridClock.Hours(zone, first, n), values);
     }
 
     private static TimeGrid BuildDaily(GridReading[] valid, GridOptions options, TimeZoneInfo zone, DateTimeOffset? from, DateTimeOffset? to)
