@@ -107,7 +107,7 @@ internal sealed class IngestVerb : IBenchmarkVerb
         }
     }
 
-    // utime + stime of the service process (fields 14 and 15 of /proc/PID/stat), NaN without FORECASTHUB_PID.
+    // CPU seconds of the service process, NaN without FORECASTHUB_PID.
     private static double ServiceCpuSeconds()
     {
         var pid = Environment.GetEnvironmentVariable("FORECASTHUB_PID");
@@ -115,10 +115,7 @@ internal sealed class IngestVerb : IBenchmarkVerb
         {
             return double.NaN;
         }
-        var stat = File.ReadAllText($"/proc/{pid}/stat");
-        var fields = stat[(stat.LastIndexOf(')') + 2)..].Split(' ');
-        var ticks = long.Parse(fields[11], CultureInfo.InvariantCulture) + long.Parse(fields[12], CultureInfo.InvariantCulture);
-        return ticks / 100.0; // USER_HZ, 100 on Linux
+        return ServerProcess.CpuSeconds(int.Parse(pid, CultureInfo.InvariantCulture));
     }
 
     private static async Task CreateSites(HttpClient client, Func<int, string> siteId)

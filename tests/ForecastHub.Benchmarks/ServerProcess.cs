@@ -114,6 +114,14 @@ internal sealed class ServerProcess : IAsyncDisposable
         return kb / 1024;
     }
 
+    /// <summary>utime + stime of a process (fields 14 and 15 of /proc/PID/stat), in seconds (USER_HZ is 100 on Linux).</summary>
+    public static double CpuSeconds(int pid)
+    {
+        var stat = File.ReadAllText($"/proc/{pid}/stat");
+        var fields = stat[(stat.LastIndexOf(')') + 2)..].Split(' ');
+        return (long.Parse(fields[11], CultureInfo.InvariantCulture) + long.Parse(fields[12], CultureInfo.InvariantCulture)) / 100.0;
+    }
+
     public static string Run(string file, string arguments, string workingDirectory)
     {
         var info = new ProcessStartInfo(file, arguments)

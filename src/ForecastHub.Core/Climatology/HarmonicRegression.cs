@@ -27,16 +27,17 @@ public static class HarmonicRegression
         ArgumentNullException.ThrowIfNull(columns);
         ArgumentNullException.ThrowIfNull(y);
         var response = y as double[] ?? [.. y];
+        RequireLength(columns, response.Length, exact: true);
+        return OlsOnLeadingRows(columns, response);
+    }
+
+    /// <summary>OLS on the first <c>response.Length</c> rows of the columns, which may run longer: a calibration
+    /// fold's fit reads the leading rows of the window's design instead of a copy of them.</summary>
+    internal static RegressionFit OlsOnLeadingRows(IReadOnlyList<double[]> columns, double[] response)
+    {
         var n = response.Length;
         var k = columns.Count;
-        for (var c = 0; c < k; c++)
-        {
-            if (columns[c].Length != n)
-            {
-                throw new ArgumentException("The design and the response differ in length.", nameof(y));
-            }
-        }
-
+        RequireLength(columns, n, exact: false);
         RequireRows(n, k);
         RequireFinite(response);
         var qr = new TallSkinnyQr(k + 1);
@@ -55,6 +56,14 @@ public static class HarmonicRegression
         return Solve(qr);
     }
 
+    private static void RequireLength(IReadOnlyList<double[]> columns, int n, bool exact)
+    {
+        if (columns.Any(column => exact ? column.Length != n : column.Length < n))
+        {
+            throw new ArgumentException("The design and the response differ in length.", nameof(columns));
+        }
+    }
+
     /// <param name="columns">Column-major design (one array per term).</param>
     /// <param name="segments">Index runs (start, length) of contiguous rows.</param>
     /// <param name="phi">AR coefficients of the errors.</param>
@@ -65,14 +74,17 @@ public static class HarmonicRegression
         ArgumentNullException.ThrowIfNull(segments);
         ArgumentNullException.ThrowIfNull(phi);
         var response = y as double[] ?? [.. y];
+        RequireLength(columns, response.Length, exact: true);
+        return GlsOnLeadingRows(columns, response, segments, phi);
+    }
+
+    /// <summary>GLS on the first <c>response.Length</c> rows of the columns, which may run longer (see <see cref="OlsOnLeadingRows"/>).</summary>
+    internal static RegressionFit GlsOnLeadingRows(IReadOnlyList<double[]> columns, double[] response, IReadOnlyList<(int Start, int Length)> segments, IReadOnlyList<double> phi)
+    {
         var k = columns.Count;
         var p = phi.Count;
         var coefficients = phi.ToArray();
-        if (columns.Any(c => c.Length != response.Length))
-        {
-            throw new ArgumentException("The design and the response differ in length.", nameof(y));
-        }
-
+        RequireLength(columns, response.Length, exact: false);
         RequireRows(segments.Sum(s => Math.Max(0, s.Length - p)), k);
         RequireFinite(response);
 

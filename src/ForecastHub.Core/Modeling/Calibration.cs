@@ -126,7 +126,7 @@ public static class Calibration
     }
 
     /// <param name="x">The climatology design columns at the window's times (null for a level-only design): fold
-    /// fits take their prefixes, and the fold models' climatology and variance factors are combinations of them.</param>
+    /// fits read their leading rows, and the fold models' climatology and variance factors are combinations of them.</param>
     internal static CalibrationTable? Build(SeriesWindow window, HarmonicDesign design, ModelSettings settings, double[][]? x, List<string> notes)
     {
         var horizons = Horizons(design.Cadence);
@@ -142,8 +142,7 @@ public static class Calibration
             SiteModel fold;
             try
             {
-                var prefix = x?.Select(column => column[..trainCount]).ToArray();
-                fold = SiteModelFitter.FitCore(window.Prefix(trainCount), settings, design, prefix, [], diagnostics: false);
+                fold = SiteModelFitter.FitCore(window.Prefix(trainCount), settings, design, x, [], diagnostics: false);
             }
             catch (SeriesException)
             {

@@ -61,7 +61,12 @@ internal sealed class SeriesWindow
         return new SeriesWindow(Times[..count], Values[..count], Interpolated[..count], segments);
     }
 
-    public double[][] Split(double[] series) => Segments.Select(s => series[s.Start..(s.Start + s.Length)]).ToArray();
+    /// <summary>The series cut into the window's segments; a window in one piece gives the series itself, uncopied
+    /// (the fitting code reads segments and never writes them).</summary>
+    public double[][] Split(double[] series) =>
+        Segments is [var only] && only.Start == 0 && only.Length == series.Length
+            ? [series]
+            : Segments.Select(s => series[s.Start..(s.Start + s.Length)]).ToArray();
 
     /// <summary>Index of the segment holding point i.</summary>
     public int SegmentOf(int i)

@@ -92,7 +92,8 @@ public static class SiteModelFitter
         return new HarmonicDesign(cadence, timeZone, annual, diurnal);
     }
 
-    /// <param name="x">The design columns at the window's times (null for a level-only design).</param>
+    /// <param name="x">The design columns at the window's times (null for a level-only design); a fold's fit passes the
+    /// whole window's columns and reads only their first <c>window.Count</c> rows.</param>
     internal static SiteModel FitCore(SeriesWindow window, ModelSettings settings, HarmonicDesign design, double[][]? x, List<string> notes, bool diagnostics)
     {
         var cadence = design.Cadence;
@@ -139,7 +140,7 @@ public static class SiteModelFitter
         }
         else
         {
-            var ols = HarmonicRegression.Ols(x!, y);
+            var ols = HarmonicRegression.OlsOnLeadingRows(x!, y);
             anomalies = Residuals(x!, y, ols.Coefficients);
             selection = Select(window, anomalies, settings);
             ar = selection.Model;
@@ -147,7 +148,7 @@ public static class SiteModelFitter
             if (selection.ChosenOrder > 0)
             {
                 // The order is chosen on the OLS anomalies; the AR is then re-estimated at that order on the GLS anomalies.
-                var gls = HarmonicRegression.Gls(x!, y, window.Segments, selection.Model.Coefficients);
+                var gls = HarmonicRegression.GlsOnLeadingRows(x!, y, window.Segments, selection.Model.Coefficients);
                 anomalies = Residuals(x!, y, gls.Coefficients);
                 ar = ArFit.Fit(window.Split(anomalies), selection.ChosenOrder, settings.Method);
                 (coefficients, stdErrors, estimation) = (gls.Coefficients, gls.StdErrors, "gls");
@@ -181,7 +182,7 @@ public static class SiteModelFitter
         var r = (double[])y.Clone();
         for (var c = 0; c < beta.Length; c++)
         {
-            SpanMath.Axpy(-beta[c], x[c], r);
+            SpanMath.Axpy(-beta[c], x[c].AsSpan(0, r.Length), r);
         }
 
         return r;

@@ -78,7 +78,8 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
         {
             SqliteException.ThrowExceptionForRC(
                 raw.sqlite3_bind_int64(statement, 1, siteKey) | raw.sqlite3_bind_int64(statement, 2, fromMs) | raw.sqlite3_bind_int64(statement, 3, toMs), db);
-            var rows = new GridReading[1024];
+            // Sized for one reading an hour, the common logging rate, so ten years are read without growing and copying.
+            var rows = new GridReading[(int)Math.Clamp(((toMs - fromMs) / 3_600_000) + 1, 1024, 1 << 17)];
             var count = 0;
             int step;
             while ((step = raw.sqlite3_step(statement)) == raw.SQLITE_ROW)

@@ -128,6 +128,36 @@ public sealed class HarmonicRegressionTests(ITestOutputHelper output)
     }
 
     [Fact]
+    public void RegressionsOnTheLeadingRowsOfLongerColumnsEqualThoseOnCopiesOfTheRows()
+    {
+        // A calibration fold's fit reads the first rows of the window's design in place of a copy of them.
+        var times = Enumerable.Range(0, 3000).Select(i => SomeGrid.Start.AddHours(i)).ToArray();
+        var x = new HarmonicDesign(GridCadence.Hourly, "UTC", 0, 3).ColumnMajor(times);
+        var random = new Random(5);
+        var y = times.Select((_, i) => 2 - x[2][i] + random.NextDouble()).ToArray();
+        const int rows = 2100;
+        var copies = x.Select(column => column[..rows]).ToArray();
+        (int Start, int Length)[] segments = [(0, 700), (700, rows - 700)];
+        double[] phi = [0.5, 0.2];
+
+        var pairs = new[]
+        {
+            (HarmonicRegression.OlsOnLeadingRows(x, y[..rows]), HarmonicRegression.Ols(copies, y[..rows])),
+            (HarmonicRegression.GlsOnLeadingRows(x, y[..rows], segments, phi), HarmonicRegression.Gls(copies, y[..rows], segments, phi)),
+        };
+
+        foreach (var (leading, copied) in pairs)
+        {
+            Assert.Equal(copied.Coefficients, leading.Coefficients);
+            Assert.Equal(copied.StdErrors, leading.StdErrors);
+            Assert.Equal(copied.Sigma, leading.Sigma);
+        }
+
+        Assert.Throws<ArgumentException>(() => HarmonicRegression.Ols(x, y[..rows]));
+        Assert.Throws<ArgumentException>(() => HarmonicRegression.OlsOnLeadingRows(copies, y));
+    }
+
+    [Fact]
     public void AnnualTermsOnAFewDaysAreRefusedAsTooShort()
     {
         var times = Enumerable.Range(0, 20).Select(i => SomeGrid.Start.AddDays(i)).ToArray();
