@@ -41,13 +41,20 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
     public double[][] ColumnMajor(IReadOnlyList<DateTimeOffset> times)
     {
         ArgumentNullException.ThrowIfNull(times);
-        var rows = new RowFiller(this);
         var columns = new double[Columns][];
         for (var c = 0; c < columns.Length; c++)
         {
             columns[c] = GC.AllocateUninitializedArray<double>(times.Count);
         }
 
+        FillColumns(times, columns);
+        return columns;
+    }
+
+    /// <summary>Writes the design at <paramref name="times"/> into the leading rows of <paramref name="columns"/> (one per term, each at least that long).</summary>
+    internal void FillColumns(IReadOnlyList<DateTimeOffset> times, double[][] columns)
+    {
+        var rows = new RowFiller(this);
         Span<double> row = stackalloc double[Columns];
         for (var i = 0; i < times.Count; i++)
         {
@@ -57,8 +64,6 @@ public sealed record HarmonicDesign(GridCadence Cadence, string TimeZone, int An
                 columns[c][i] = row[c];
             }
         }
-
-        return columns;
     }
 
     /// <summary>The regression mean at each time for the given coefficients.</summary>

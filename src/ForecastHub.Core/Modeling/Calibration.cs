@@ -232,7 +232,7 @@ public static class Calibration
         var terms = fold.Climatology.Terms;
         for (var c = 0; c < terms.Count; c++)
         {
-            SpanMath.Axpy(terms[c].Coefficient, x[c], mean);
+            SpanMath.Axpy(terms[c].Coefficient, x[c].AsSpan(0, mean.Length), mean);
         }
 
         var season = fold.VarianceSeason;
@@ -240,7 +240,7 @@ public static class Calibration
         var source = SiteModelFitter.VarianceColumns(fold.Climatology.Design, season.Design);
         for (var c = 0; c < source.Length; c++)
         {
-            SpanMath.Axpy(season.Coefficients[c], x[source[c]], g);
+            SpanMath.Axpy(season.Coefficients[c], x[source[c]].AsSpan(0, g.Length), g);
         }
 
         for (var i = 0; i < g.Length; i++)

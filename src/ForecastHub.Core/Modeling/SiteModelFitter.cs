@@ -41,7 +41,22 @@ public static class SiteModelFitter
         var window = SeriesWindow.FromGrid(grid, settings.FitWindowDays);
         var notes = new List<string>();
         var design = ResolveDesign(window, grid.Cadence, grid.TimeZone, settings.Seasonality, notes);
-        var x = design.Columns == 1 ? null : design.ColumnMajor(window.Times);
+        var x = design.Columns == 1 ? null : PooledDesign.Rent(design, window.Times);
+        try
+        {
+            return FitWithDesign(window, settings, design, x, notes);
+        }
+        finally
+        {
+            if (x is not null)
+            {
+                PooledDesign.Return(x);
+            }
+        }
+    }
+
+    internal static SiteModel FitWithDesign(SeriesWindow window, ModelSettings settings, HarmonicDesign design, double[][]? x, List<string> notes)
+    {
         if (settings.IntervalMethod != IntervalMethod.Calibrated)
         {
             return FitCore(window, settings, design, x, notes, diagnostics: true);
@@ -92,8 +107,8 @@ public static class SiteModelFitter
         return new HarmonicDesign(cadence, timeZone, annual, diurnal);
     }
 
-    /// <param name="x">The design columns at the window's times (null for a level-only design); a fold's fit passes the
-    /// whole window's columns and reads only their first <c>window.Count</c> rows.</param>
+    /// <param name="x">The design columns at the window's times (null for a level-only design), read in their first
+    /// <c>window.Count</c> rows only: pooled columns run longer, and a fold's fit is given the whole window's.</param>
     internal static SiteModel FitCore(SeriesWindow window, ModelSettings settings, HarmonicDesign design, double[][]? x, List<string> notes, bool diagnostics)
     {
         var cadence = design.Cadence;

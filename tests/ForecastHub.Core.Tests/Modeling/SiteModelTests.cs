@@ -27,6 +27,22 @@ public sealed class SiteModelTests
     }
 
     [Fact]
+    public void AFitOnPooledDesignColumnsEqualsOneOnColumnsOfExactlyTheWindowsLength()
+    {
+        // Pooled columns run longer than the window and hold an earlier, longer fit's rows beyond it: no reader may look there.
+        var settings = new ModelSettings { FitWindowDays = 1095, MaxOrder = 24 };
+        SiteModelFitter.Fit(SomeGrid.SeasonalHourlyGrid(500 * 24, seed: 8), settings);
+        var pooled = SiteModelFitter.Fit(Hourly.Value, settings);
+
+        var window = SeriesWindow.FromGrid(Hourly.Value, settings.FitWindowDays);
+        var design = SiteModelFitter.ResolveDesign(window, GridCadence.Hourly, Hourly.Value.TimeZone, settings.Seasonality, []);
+        var exact = SiteModelFitter.FitWithDesign(window, settings, design, design.ColumnMajor(window.Times), []);
+
+        Assert.NotNull(exact.Calibration);
+        Assert.Equal(JsonSerializer.Serialize(exact), JsonSerializer.Serialize(pooled));
+    }
+
+    [Fact]
     public void AutoSeasonalityUsesOnlyDiurnalTermsBeforeAYearOfData()
     {
         var grid = SomeGrid.SeasonalHourlyGrid(60 * 24, seed: 4);
