@@ -183,11 +183,15 @@ public static class Calibration
     {
         var ar = fold.Ar;
         var horizons = errors.Length;
-        var (anomalies, g) = MeanAndFactors(window, fold, x);
+
+        // Only the points the origins read: each origin's last p values and the steps it forecasts.
+        var start = Math.Max(0, firstOrigin - ar.Order + 1);
+        var end = Math.Min(window.Count, lastOrigin + horizons);
+        var (anomalies, g) = MeanAndFactors(window, fold, x, start, end);
         for (var i = 0; i < anomalies.Length; i++)
         {
             // The climatology mean is replaced by the anomaly in place.
-            anomalies[i] = window.Values[i] - anomalies[i];
+            anomalies[i] = window.Values[start + i] - anomalies[i];
         }
 
         var psi = ArForecast.PsiWeights(ar.Coefficients, horizons);
@@ -206,12 +210,12 @@ public static class Calibration
             }
 
             count++;
-            AnomalyPath.Compute(ar, anomalies.AsSpan(o - ar.Order + 1, ar.Order), psi, g.AsSpan(o + 1, steps), mean.AsSpan(0, steps), sd.AsSpan(0, steps));
+            AnomalyPath.Compute(ar, anomalies.AsSpan(o - ar.Order + 1 - start, ar.Order), psi, g.AsSpan(o + 1 - start, steps), mean.AsSpan(0, steps), sd.AsSpan(0, steps));
             for (var h = 1; h <= steps; h++)
             {
                 if (!window.Interpolated[o + h])
                 {
-                    errors[h - 1].Add((anomalies[o + h] - mean[h - 1]) / sd[h - 1]);
+                    errors[h - 1].Add((anomalies[o + h - start] - mean[h - 1]) / sd[h - 1]);
                 }
             }
         }
@@ -219,28 +223,29 @@ public static class Calibration
         return count;
     }
 
-    /// <summary>The fold model's climatology mean and variance factors at the window's times; from the design columns
-    /// when given (the same sums, term by term, as HarmonicDesign.Evaluate), else from the times.</summary>
-    private static (double[] Mean, double[] Factors) MeanAndFactors(SeriesWindow window, SiteModel fold, double[][]? x)
+    /// <summary>The fold model's climatology mean and variance factors at the window's points [<paramref name="start"/>, <paramref name="end"/>);
+    /// from the design columns when given (the same sums, term by term, as HarmonicDesign.Evaluate), else from the times.</summary>
+    private static (double[] Mean, double[] Factors) MeanAndFactors(SeriesWindow window, SiteModel fold, double[][]? x, int start, int end)
     {
         if (x is null)
         {
-            return (fold.Climatology.Mean(window.Times), fold.VarianceSeason.Factors(window.Times));
+            var times = new ArraySegment<DateTimeOffset>(window.Times, start, end - start);
+            return (fold.Climatology.Mean(times), fold.VarianceSeason.Factors(times));
         }
 
-        var mean = new double[window.Count];
+        var mean = new double[end - start];
         var terms = fold.Climatology.Terms;
         for (var c = 0; c < terms.Count; c++)
         {
-            SpanMath.Axpy(terms[c].Coefficient, x[c].AsSpan(0, mean.Length), mean);
+            SpanMath.Axpy(terms[c].Coefficient, x[c].AsSpan(start, mean.Length), mean);
         }
 
         var season = fold.VarianceSeason;
-        var g = new double[window.Count];
+        var g = new double[end - start];
         var source = SiteModelFitter.VarianceColumns(fold.Climatology.Design, season.Design);
         for (var c = 0; c < source.Length; c++)
         {
-            SpanMath.Axpy(season.Coefficients[c], x[source[c]].AsSpan(0, g.Length), g);
+            SpanMath.Axpy(season.Coefficients[c], x[source[c]].AsSpan(start, g.Length), g);
         }
 
         for (var i = 0; i < g.Length; i++)
