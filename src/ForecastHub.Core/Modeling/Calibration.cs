@@ -275,8 +275,7 @@ public static class Calibration
                 }
             }
 
-            pooled.Sort();
-            rows[h] = Probabilities.Select(p => SortedQuantile(pooled, p)).ToArray();
+            rows[h] = OrderStatistics.TypeSevenQuantiles([.. pooled], Probabilities);
         }
 
         return rows;

@@ -70,6 +70,17 @@ internal static class OrderStatistics
         }
     }
 
+    /// <summary>R quantile type 7 of the sample at each probability. Type 7 reads the two order statistics around
+    /// (n - 1) p: only those are put in place, not the whole sample sorted, and <paramref name="values"/> is reordered.</summary>
+    public static double[] TypeSevenQuantiles(double[] values, IReadOnlyList<double> probabilities)
+    {
+        var last = values.Length - 1;
+        var ranks = probabilities.SelectMany(p => new[] { (int)Math.Floor(last * p), Math.Min((int)Math.Floor(last * p) + 1, last) })
+            .Where(r => r >= 0).Distinct().Order().ToArray();
+        Place(values, ranks);
+        return [.. probabilities.Select(p => Calibration.SortedQuantile(values, p))];
+    }
+
     private static double MedianOfThree(double a, double b, double c) =>
         a < b ? (b < c ? b : a < c ? c : a) : (a < c ? a : b < c ? c : b);
 }

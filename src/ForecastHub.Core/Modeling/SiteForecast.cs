@@ -28,16 +28,8 @@ public sealed record DistributionSummary(double Mean, IReadOnlyList<PredictionIn
     /// <summary>A simulated sample's mean and central intervals (R quantile type 7).</summary>
     internal static DistributionSummary OfSample(double[] values, IReadOnlyList<double> levels)
     {
-        // Type 7 reads the two order statistics around (n - 1) p; only those are put in place, not the whole sample sorted.
-        var last = values.Length - 1;
-        var ranks = levels.SelectMany(l => new[] { (1 - l) / 2, (1 + l) / 2 })
-            .SelectMany(p => new[] { (int)Math.Floor(last * p), Math.Min((int)Math.Floor(last * p) + 1, last) })
-            .Where(r => r >= 0).Distinct().Order().ToArray();
-        var ordered = values.ToArray();
-        OrderStatistics.Place(ordered, ranks);
-        return new DistributionSummary(
-            values.Average(),
-            [.. levels.Select(l => new PredictionInterval(l, Calibration.SortedQuantile(ordered, (1 - l) / 2), Calibration.SortedQuantile(ordered, (1 + l) / 2)))]);
+        var quantiles = OrderStatistics.TypeSevenQuantiles(values.ToArray(), [.. levels.SelectMany(l => new[] { (1 - l) / 2, (1 + l) / 2 })]);
+        return new DistributionSummary(values.Average(), [.. levels.Select((l, i) => new PredictionInterval(l, quantiles[2 * i], quantiles[(2 * i) + 1]))]);
     }
 }
 
