@@ -39,11 +39,12 @@ public static class SiteModelFitter
         }
 
         var window = SeriesWindow.FromGrid(grid, settings.FitWindowDays);
-        var notes = new List<string>();
-        var design = ResolveDesign(window, grid.Cadence, grid.TimeZone, settings.Seasonality, notes);
-        var x = design.Columns == 1 ? null : PooledDesign.Rent(design, new ArraySegment<DateTimeOffset>(window.Times, 0, window.Count));
+        double[][]? x = null;
         try
         {
+            var notes = new List<string>();
+            var design = ResolveDesign(window, grid.Cadence, grid.TimeZone, settings.Seasonality, notes);
+            x = design.Columns == 1 ? null : PooledDesign.Rent(design, new ArraySegment<DateTimeOffset>(window.Times, 0, window.Count));
             return FitWithDesign(window, settings, design, x, notes);
         }
         finally
@@ -52,6 +53,8 @@ public static class SiteModelFitter
             {
                 PooledDesign.Return(x);
             }
+
+            window.ReturnPooled();
         }
     }
 
@@ -164,7 +167,8 @@ public static class SiteModelFitter
             {
                 // The order is chosen on the OLS anomalies; the AR is then re-estimated at that order on the GLS anomalies.
                 var gls = HarmonicRegression.GlsOnLeadingRows(x!, y, window.Segments, selection.Model.Coefficients);
-                anomalies = Residuals(x!, y, gls.Coefficients);
+                // The OLS anomalies are not read again once the order is chosen: their array takes the GLS ones.
+                anomalies = Residuals(x!, y, gls.Coefficients, into: anomalies);
                 ar = ArFit.Fit(window.Split(anomalies), selection.ChosenOrder, settings.Method);
                 (coefficients, stdErrors, estimation) = (gls.Coefficients, gls.StdErrors, "gls");
                 residualSd = Math.Sqrt(anomalies.Sum(a => a * a) / (n - design.Columns));
@@ -192,9 +196,10 @@ public static class SiteModelFitter
     private static OrderSelectionResult Select(SeriesWindow window, double[] anomalies, ModelSettings settings) =>
         OrderSelection.Select(window.Split(anomalies), settings.Method, settings.OrderPolicy, settings.MaxOrder);
 
-    private static double[] Residuals(double[][] x, double[] y, double[] beta)
+    private static double[] Residuals(double[][] x, double[] y, double[] beta, double[]? into = null)
     {
-        var r = (double[])y.Clone();
+        var r = into ?? new double[y.Length];
+        y.CopyTo(r, 0);
         for (var c = 0; c < beta.Length; c++)
         {
             SpanMath.Axpy(-beta[c], x[c].AsSpan(0, r.Length), r);
