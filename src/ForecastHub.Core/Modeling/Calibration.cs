@@ -229,7 +229,7 @@ public static class Calibration
     {
         if (x is null)
         {
-            var times = new ArraySegment<DateTimeOffset>(window.Times, start, end - start);
+            var times = window.Times.Slice(start, end - start);
             return (fold.Climatology.Mean(times), fold.VarianceSeason.Factors(times));
         }
 

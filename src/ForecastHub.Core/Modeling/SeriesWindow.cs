@@ -6,25 +6,28 @@ namespace ForecastHub.Core.Modeling;
 /// <summary>The grid points a fit uses, compacted (gaps removed) with segment runs into the compact arrays.</summary>
 internal sealed class SeriesWindow
 {
+    // Times and marks may be rented (longer than the window) or shared with the window this is a prefix of.
+    private readonly DateTimeOffset[] timesArray;
+    private readonly bool[] interpolatedArray;
     private readonly bool pooled;
 
     private SeriesWindow(DateTimeOffset[] times, double[] values, bool[] interpolated, (int Start, int Length)[] segments, bool pooled = false)
     {
-        Times = times;
+        timesArray = times;
+        interpolatedArray = interpolated;
         Values = values;
-        Interpolated = interpolated;
         Segments = segments;
         this.pooled = pooled;
     }
 
-    /// <summary>The points' times: at least <see cref="Count"/> of them (a prefix shares its window's array).</summary>
-    public DateTimeOffset[] Times { get; }
+    /// <summary>The points' times, <see cref="Count"/> of them.</summary>
+    public ArraySegment<DateTimeOffset> Times => new(timesArray, 0, Count);
 
-    /// <summary>The points' values, exactly <see cref="Count"/> of them.</summary>
+    /// <summary>The points' values, <see cref="Count"/> of them.</summary>
     public double[] Values { get; }
 
-    /// <summary>Whether each point was interpolated: at least <see cref="Count"/> of them (a prefix shares its window's array).</summary>
-    public bool[] Interpolated { get; }
+    /// <summary>Whether each point was interpolated, <see cref="Count"/> of them.</summary>
+    public ArraySegment<bool> Interpolated => new(interpolatedArray, 0, Count);
 
     public (int Start, int Length)[] Segments { get; }
 
@@ -80,8 +83,8 @@ internal sealed class SeriesWindow
     {
         if (pooled)
         {
-            ArrayPool<DateTimeOffset>.Shared.Return(Times);
-            ArrayPool<bool>.Shared.Return(Interpolated);
+            ArrayPool<DateTimeOffset>.Shared.Return(timesArray);
+            ArrayPool<bool>.Shared.Return(interpolatedArray);
         }
     }
 
@@ -89,7 +92,7 @@ internal sealed class SeriesWindow
     public SeriesWindow Prefix(int count)
     {
         var segments = Segments.Where(s => s.Start < count).Select(s => (s.Start, Math.Min(s.Length, count - s.Start))).ToArray();
-        return new SeriesWindow(Times, Values[..count], Interpolated, segments);
+        return new SeriesWindow(timesArray, Values[..count], interpolatedArray, segments);
     }
 
     /// <summary>The series cut into the window's segments; a window in one piece gives the series itself, uncopied

@@ -44,7 +44,7 @@ public static class SiteModelFitter
         {
             var notes = new List<string>();
             var design = ResolveDesign(window, grid.Cadence, grid.TimeZone, settings.Seasonality, notes);
-            x = design.Columns == 1 ? null : PooledDesign.Rent(design, new ArraySegment<DateTimeOffset>(window.Times, 0, window.Count));
+            x = design.Columns == 1 ? null : PooledDesign.Rent(design, window.Times);
             return FitWithDesign(window, settings, design, x, notes);
         }
         finally
@@ -87,7 +87,7 @@ public static class SiteModelFitter
     /// <summary>Annual terms need a year of data; diurnal terms an hourly grid (DESIGN.md section 3).</summary>
     internal static HarmonicDesign ResolveDesign(SeriesWindow window, GridCadence cadence, string timeZone, Seasonality seasonality, List<string> notes)
     {
-        var yearOfData = window.Count > 0 && (window.Times[window.Count - 1] - window.Times[0]).TotalDays >= 365;
+        var yearOfData = window.Count > 0 && (window.Times[^1] - window.Times[0]).TotalDays >= 365;
         var hourly = cadence == GridCadence.Hourly;
         var (annual, diurnal) = seasonality switch
         {
@@ -189,7 +189,7 @@ public static class SiteModelFitter
         var residualDiagnostics = diagnostics ? Diagnose(residuals, ar.Order, cadence) : new ResidualDiagnostics(null, null, ResidualSummary.Of(residuals));
         var acfLags = Math.Min(Math.Max(selection.MaxOrder, 1), n - 1);
         var acf = diagnostics ? Autocorrelation.Acf(anomalySegments, acfLags).Skip(1).Select((r, k) => new LagValue(k + 1, r)).ToArray() : [];
-        var fitWindow = new FitWindow(window.Times[0], window.Times[n - 1], n, window.Interpolated.AsSpan(0, n).Count(true), window.Segments.Length);
+        var fitWindow = new FitWindow(window.Times[0], window.Times[^1], n, window.Interpolated.AsSpan().Count(true), window.Segments.Length);
         return new SiteModel(cadence, design.TimeZone, settings, fitWindow, climatology, ar, selection, varianceSeason, null, residualDiagnostics, acf, [.. notes]);
     }
 
