@@ -280,18 +280,4 @@ public static class Calibration
 
         return rows;
     }
-
-    /// <summary>R quantile type 7 of sorted values.</summary>
-    internal static double SortedQuantile(IReadOnlyList<double> sorted, double p)
-    {
-        if (sorted.Count == 0)
-        {
-            return double.NaN;
-        }
-
-        var position = (sorted.Count - 1) * p;
-        var lo = (int)Math.Floor(position);
-        var hi = Math.Min(lo + 1, sorted.Count - 1);
-        return sorted[lo] + (position - lo) * (sorted[hi] - sorted[lo]);
-    }
 }

@@ -74,11 +74,30 @@ internal static class OrderStatistics
     /// (n - 1) p: only those are put in place, not the whole sample sorted, and <paramref name="values"/> is reordered.</summary>
     public static double[] TypeSevenQuantiles(double[] values, IReadOnlyList<double> probabilities)
     {
-        var last = values.Length - 1;
-        var ranks = probabilities.SelectMany(p => new[] { (int)Math.Floor(last * p), Math.Min((int)Math.Floor(last * p) + 1, last) })
+        var ranks = probabilities.Select(p => TypeSevenPosition(values.Length, p)).SelectMany(q => new[] { q.Lo, q.Hi })
             .Where(r => r >= 0).Distinct().Order().ToArray();
         Place(values, ranks);
-        return [.. probabilities.Select(p => Calibration.SortedQuantile(values, p))];
+        return [.. probabilities.Select(p => SortedQuantile(values, p))];
+    }
+
+    /// <summary>R quantile type 7 of sorted values (or of values whose order statistics at its two ranks are in place).</summary>
+    public static double SortedQuantile(IReadOnlyList<double> sorted, double p)
+    {
+        if (sorted.Count == 0)
+        {
+            return double.NaN;
+        }
+
+        var (lo, hi, weight) = TypeSevenPosition(sorted.Count, p);
+        return sorted[lo] + weight * (sorted[hi] - sorted[lo]);
+    }
+
+    /// <summary>Type 7 interpolates between the order statistics lo = floor((n - 1) p) and min(lo + 1, n - 1).</summary>
+    private static (int Lo, int Hi, double Weight) TypeSevenPosition(int count, double p)
+    {
+        var position = (count - 1) * p;
+        var lo = (int)Math.Floor(position);
+        return (lo, Math.Min(lo + 1, count - 1), position - lo);
     }
 
     private static double MedianOfThree(double a, double b, double c) =>

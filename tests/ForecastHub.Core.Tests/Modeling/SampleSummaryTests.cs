@@ -58,8 +58,8 @@ public sealed class SampleSummaryTests
         Assert.Equal(values.Average(), summary.Mean);
         foreach (var interval in summary.Intervals)
         {
-            Assert.Equal(Calibration.SortedQuantile(sorted, (1 - interval.Level) / 2), interval.Lower);
-            Assert.Equal(Calibration.SortedQuantile(sorted, (1 + interval.Level) / 2), interval.Upper);
+            Assert.Equal(OrderStatistics.SortedQuantile(sorted, (1 - interval.Level) / 2), interval.Lower);
+            Assert.Equal(OrderStatistics.SortedQuantile(sorted, (1 + interval.Level) / 2), interval.Upper);
         }
     }
 
