@@ -94,29 +94,17 @@ internal sealed class IngestVerb : IBenchmarkVerb
     private static async Task WaitUntilServiceIdle()
     {
         await Task.Delay(TimeSpan.FromSeconds(2)).ConfigureAwait(false);
-        var waited = Stopwatch.StartNew();
-        for (var before = ServiceCpuSeconds(); !double.IsNaN(before) && waited.Elapsed < TimeSpan.FromSeconds(60); )
+        if (ServicePid() is { } pid)
         {
-            await Task.Delay(TimeSpan.FromMilliseconds(500)).ConfigureAwait(false);
-            var now = ServiceCpuSeconds();
-            if (now - before <= 0.02)
-            {
-                return;
-            }
-            before = now;
+            await ServerProcess.WaitUntilIdleAsync(pid, TimeSpan.FromMilliseconds(500), 0.02, TimeSpan.FromSeconds(60)).ConfigureAwait(false);
         }
     }
 
     // CPU seconds of the service process, NaN without FORECASTHUB_PID.
-    private static double ServiceCpuSeconds()
-    {
-        var pid = Environment.GetEnvironmentVariable("FORECASTHUB_PID");
-        if (string.IsNullOrEmpty(pid))
-        {
-            return double.NaN;
-        }
-        return ServerProcess.CpuSeconds(int.Parse(pid, CultureInfo.InvariantCulture));
-    }
+    private static double ServiceCpuSeconds() => ServicePid() is { } pid ? ServerProcess.CpuSeconds(pid) : double.NaN;
+
+    private static int? ServicePid() =>
+        Environment.GetEnvironmentVariable("FORECASTHUB_PID") is { Length: > 0 } pid ? int.Parse(pid, CultureInfo.InvariantCulture) : null;
 
     private static async Task CreateSites(HttpClient client, Func<int, string> siteId)
     {

@@ -107,7 +107,7 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
         var runs = new List<(double RequestMs, double FitMs)>();
         for (var i = 0; i < TimedRefits; i++)
         {
-            await WaitUntilIdleAsync(server.Pid);
+            await ServerProcess.WaitUntilIdleAsync(server.Pid, TimeSpan.FromMilliseconds(250), 0.01, TimeSpan.FromSeconds(10));
             runs.Add(await RefitAsync(client));
         }
 
@@ -157,23 +157,6 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
 
         double Stage(int k) => Median(times.Select(t => t[k]));
         return (Stage(0), Stage(1), Stage(2), Stage(3), Stage(4), Stage(5));
-    }
-
-    // Until the service used at most 10 ms of CPU in a quarter of a second (at most 10 s).
-    private static async Task WaitUntilIdleAsync(int pid)
-    {
-        var waited = Stopwatch.StartNew();
-        for (var before = ServerProcess.CpuSeconds(pid); waited.Elapsed < TimeSpan.FromSeconds(10);)
-        {
-            await Task.Delay(TimeSpan.FromMilliseconds(250));
-            var now = ServerProcess.CpuSeconds(pid);
-            if (now - before <= 0.01)
-            {
-                return;
-            }
-
-            before = now;
-        }
     }
 
     private static async Task<(double RequestMs, double FitMs)> RefitAsync(HttpClient client)

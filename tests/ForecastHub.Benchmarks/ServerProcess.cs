@@ -114,6 +114,24 @@ internal sealed class ServerProcess : IAsyncDisposable
         return kb / 1024;
     }
 
+    /// <summary>Waits until the process used at most <paramref name="quietCpuSeconds"/> of CPU in one <paramref name="period"/>
+    /// (at most <paramref name="limit"/>): the work set off by what came before is done.</summary>
+    public static async Task WaitUntilIdleAsync(int pid, TimeSpan period, double quietCpuSeconds, TimeSpan limit)
+    {
+        var waited = Stopwatch.StartNew();
+        for (var before = CpuSeconds(pid); waited.Elapsed < limit;)
+        {
+            await Task.Delay(period).ConfigureAwait(false);
+            var now = CpuSeconds(pid);
+            if (now - before <= quietCpuSeconds)
+            {
+                return;
+            }
+
+            before = now;
+        }
+    }
+
     /// <summary>utime + stime of a process (fields 14 and 15 of /proc/PID/stat), in seconds (USER_HZ is 100 on Linux).</summary>
     public static double CpuSeconds(int pid)
     {
