@@ -62,18 +62,8 @@ public sealed class PostgresReadingStore(PostgresDatabase database) : IReadingSt
                     """)
                 .With(siteId).With(start).With(toMs).With(limit);
             await using var reader = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
-            var list = new List<StoredReading>();
-            var found = false;
-            while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
-            {
-                found = true;
-                if (!reader.IsDBNull(1))
-                {
-                    list.Add(new StoredReading(reader.GetInt64(1), reader.GetDouble(2), reader.GetDouble(3), reader.GetString(4),
-                        (QualityFlags)reader.GetInt32(5)));
-                }
-            }
-            return found ? list : null;
+            return await SiteRowsAsync(reader, r => new StoredReading(r.GetInt64(1), r.GetDouble(2), r.GetDouble(3), r.GetString(4),
+                (QualityFlags)r.GetInt32(5)), cancellationToken).ConfigureAwait(false);
         }, cancellationToken);
 
     public Task<IReadOnlyList<GridReading>?> ReadGridAsync(string siteId, long fromMs, long toMs, CancellationToken cancellationToken = default) =>
@@ -90,18 +80,26 @@ public sealed class PostgresReadingStore(PostgresDatabase database) : IReadingSt
                     """)
                 .With(siteId).With(fromMs).With(toMs);
             await using var reader = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
-            var list = new List<GridReading>();
-            var found = false;
-            while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
-            {
-                found = true;
-                if (!reader.IsDBNull(1))
-                {
-                    list.Add(new GridReading(DateTimeOffset.FromUnixTimeMilliseconds(reader.GetInt64(1)), reader.GetDouble(2), reader.GetInt32(3) != 0));
-                }
-            }
-            return found ? list : null;
+            return await SiteRowsAsync(reader, r => new GridReading(DateTimeOffset.FromUnixTimeMilliseconds(r.GetInt64(1)), r.GetDouble(2), r.GetInt32(3) != 0),
+                cancellationToken).ConfigureAwait(false);
         }, cancellationToken);
+
+    // Rows of a site LEFT JOIN LATERAL its readings: no row means no site; a row with a null time is a site without readings in range.
+    private static async Task<IReadOnlyList<T>?> SiteRowsAsync<T>(NpgsqlDataReader reader, Func<NpgsqlDataReader, T> row, CancellationToken cancellationToken)
+    {
+        var list = new List<T>();
+        var found = false;
+        while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
+        {
+            found = true;
+            if (!reader.IsDBNull(1))
+            {
+                list.Add(row(reader));
+            }
+        }
+
+        return found ? list : null;
+    }
 
     public Task<ReadingSpan?> SpanAsync(string siteId, CancellationToken cancellationToken = default) =>
         database.QueryAsync<ReadingSpan?>(async connection =>
