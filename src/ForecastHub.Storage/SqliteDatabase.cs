@@ -1,4 +1,5 @@
 using System.Runtime.CompilerServices;
+using System.Runtime.ExceptionServices;
 using Microsoft.Data.Sqlite;
 using SQLitePCL;
 
@@ -358,6 +359,76 @@ public sealed class SqliteDatabase : IDisposable
             Health.Observe(error);
             throw;
         }
+    }
+
+    /// <summary>
+    /// Runs <paramref name="part"/> for parts 0 .. <paramref name="parts"/> - 1 side by side, part 0 on
+    /// <paramref name="connection"/> in <paramref name="transaction"/> and each other part on a pooled connection of its
+    /// own, all reading the snapshot that <paramref name="transaction"/> holds (it must have read already).
+    /// A part whose connection cannot open that snapshot runs on <paramref name="connection"/> afterwards,
+    /// so every part sees the same data as a serial read in that transaction would.
+    /// </summary>
+    public T[] ReadPartsOnSnapshot<T>(SqliteConnection connection, SqliteTransaction transaction, int parts, Func<SqliteConnection, SqliteTransaction, int, T> part)
+    {
+        ArgumentNullException.ThrowIfNull(connection);
+        ArgumentNullException.ThrowIfNull(transaction);
+        ArgumentNullException.ThrowIfNull(part);
+        ArgumentOutOfRangeException.ThrowIfNegativeOrZero(parts);
+        var results = new T[parts];
+        if (parts == 1 || raw.sqlite3_snapshot_get(connection.Handle, "main", out var snapshot) != raw.SQLITE_OK)
+        {
+            for (var i = 0; i < parts; i++)
+            {
+                results[i] = part(connection, transaction, i);
+            }
+
+            return results;
+        }
+
+        using (snapshot)
+        {
+            var done = new bool[parts];
+            // The calling thread takes part of the loop itself, so a busy thread pool delays the parts but never strands them.
+            try
+            {
+                Parallel.For(0, parts, i => RunPart(i));
+            }
+            catch (AggregateException error)
+            {
+                // The caller sees SQLite's error as from a serial read (Read observes it for the storage health).
+                ExceptionDispatchInfo.Throw(error.InnerExceptions[0]);
+            }
+
+            void RunPart(int i)
+            {
+                if (i == 0)
+                {
+                    results[0] = part(connection, transaction, 0);
+                    done[0] = true;
+                    return;
+                }
+
+                using var other = Open();
+                // A connection learns that the file is in WAL mode from its first read; it cannot open a snapshot before.
+                Pragma(other, "PRAGMA schema_version;");
+                using var otherTransaction = other.BeginTransaction(deferred: true);
+                if (raw.sqlite3_snapshot_open(other.Handle, "main", snapshot) == raw.SQLITE_OK)
+                {
+                    results[i] = part(other, otherTransaction, i);
+                    done[i] = true;
+                }
+            }
+
+            for (var i = 1; i < parts; i++)
+            {
+                if (!done[i])
+                {
+                    results[i] = part(connection, transaction, i);
+                }
+            }
+        }
+
+        return results;
     }
 
     /// <summary>Runs SQLite's integrity check (<c>quick</c>: <c>PRAGMA quick_check</c>, which skips

@@ -69,4 +69,47 @@ public sealed class SqliteDatabaseTests
         using var reused = db.Database.Open();
         Assert.Equal((1L, 2L), (Settings(reused).ForeignKeys, Settings(reused).Synchronous));
     }
+
+    [Fact]
+    public void PartsReadSideBySideOnOtherConnectionsSeeTheSnapshotOfTheFirstConnectionsTransaction()
+    {
+        using var db = new TestDatabase();
+        db.Execute("PRAGMA journal_mode = WAL; CREATE TABLE notes (text TEXT NOT NULL); INSERT INTO notes VALUES ('before');");
+
+        var parts = db.Database.Read((connection, transaction) =>
+        {
+            Assert.Equal(1L, CountNotes(connection, transaction));
+
+            // Committed after the transaction's snapshot was taken: no part may see it.
+            db.Execute("INSERT INTO notes VALUES ('after');");
+            return db.Database.ReadPartsOnSnapshot(connection, transaction, 3, (reader, readTransaction, _) =>
+                (CountNotes(reader, readTransaction), ReferenceEquals(reader, connection)));
+        });
+
+        Assert.Equal([(1L, true), (1L, false), (1L, false)], parts);
+        Assert.Equal(2L, db.Scalar<long>("SELECT count(*) FROM notes;"));
+    }
+
+    [Fact]
+    public void WithoutWalEveryPartIsReadOnTheFirstConnectionInItsTransaction()
+    {
+        using var db = new TestDatabase();
+        db.Execute("CREATE TABLE notes (text TEXT NOT NULL); INSERT INTO notes VALUES ('only');");
+
+        var parts = db.Database.Read((connection, transaction) =>
+        {
+            CountNotes(connection, transaction);
+            return db.Database.ReadPartsOnSnapshot(connection, transaction, 2, (reader, _, i) => (i, ReferenceEquals(reader, connection)));
+        });
+
+        Assert.Equal([(0, true), (1, true)], parts);
+    }
+
+    private static long CountNotes(SqliteConnection connection, SqliteTransaction transaction)
+    {
+        using var count = connection.CreateCommand();
+        count.Transaction = transaction;
+        count.CommandText = "SELECT count(*) FROM notes;";
+        return (long)count.ExecuteScalar()!;
+    }
 }
