@@ -1,3 +1,4 @@
+using System.Buffers;
 using ForecastHub.Core.Climatology;
 using ForecastHub.Core.Forecasting;
 using ForecastHub.Core.Grid;
@@ -131,58 +132,85 @@ public static class Calibration
     {
         var horizons = Horizons(design.Cadence);
         (double From, double To)[] splits = [(0.70, 0.85), (0.85, 1.0)];
-        var results = new (List<double>[] Errors, int Origins)?[splits.Length];
-
-        // The folds are independent: fitted side by side, their errors joined in fold order afterwards.
-        Parallel.For(0, splits.Length, f =>
+        var results = new HorizonErrors?[splits.Length];
+        try
         {
-            var n = window.Count;
-            var trainCount = (int)(n * splits[f].From);
-            var testEnd = (int)(n * splits[f].To);
-            SiteModel fold;
-            try
+            // The folds are independent: fitted side by side, their errors joined afterwards.
+            Parallel.For(0, splits.Length, f =>
             {
-                fold = SiteModelFitter.FitCore(window.Prefix(trainCount), settings, design, x, [], diagnostics: false);
-            }
-            catch (SeriesException)
-            {
-                return;
-            }
-
-            var foldErrors = Enumerable.Range(0, horizons).Select(_ => new List<double>()).ToArray();
-            results[f] = (foldErrors, CollectErrors(window, fold, x, trainCount - 1, testEnd - 1, foldErrors));
-        });
-
-        var errors = Enumerable.Range(0, horizons).Select(_ => new List<double>()).ToArray();
-        var folds = 0;
-        var origins = 0;
-        foreach (var result in results)
-        {
-            if (result is { } r)
-            {
-                folds++;
-                origins += r.Origins;
-                for (var h = 0; h < horizons; h++)
+                var n = window.Count;
+                var trainCount = (int)(n * splits[f].From);
+                var testEnd = (int)(n * splits[f].To);
+                SiteModel fold;
+                try
                 {
-                    errors[h].AddRange(r.Errors[h]);
+                    fold = SiteModelFitter.FitCore(window.Prefix(trainCount), settings, design, x, [], diagnostics: false);
                 }
+                catch (SeriesException)
+                {
+                    return;
+                }
+
+                results[f] = CollectErrors(window, fold, x, trainCount - 1, testEnd - 1, horizons);
+            });
+
+            var folds = results.OfType<HorizonErrors>().ToArray();
+            var total = folds.Sum(e => e.Total);
+            if (total < MinErrors)
+            {
+                notes.Add($"Too little data to calibrate intervals ({total} out-of-sample errors); Gaussian intervals are used.");
+                return null;
+            }
+
+            return new CalibrationTable(Probabilities, QuantileRows(folds, horizons), total, folds.Sum(e => e.Origins), folds.Length);
+        }
+        finally
+        {
+            foreach (var result in results)
+            {
+                result?.Return();
             }
         }
-
-        var total = errors.Sum(e => e.Count);
-        if (total < MinErrors)
-        {
-            notes.Add($"Too little data to calibrate intervals ({total} out-of-sample errors); Gaussian intervals are used.");
-            return null;
-        }
-
-        return new CalibrationTable(Probabilities, QuantileRows(errors), total, origins, folds);
     }
 
-    private static int CollectErrors(SeriesWindow window, SiteModel fold, double[][]? x, int firstOrigin, int lastOrigin, List<double>[] errors)
+    /// <summary>A fold's standardised errors by horizon, in pooled arrays (a calibration collects about 150,000 of them).</summary>
+    private sealed class HorizonErrors
+    {
+        private readonly double[][] values;
+        private readonly int[] counts;
+
+        public HorizonErrors(int horizons, int capacity)
+        {
+            values = new double[horizons][];
+            counts = new int[horizons];
+            for (var h = 0; h < horizons; h++)
+            {
+                values[h] = ArrayPool<double>.Shared.Rent(capacity);
+            }
+        }
+
+        public int Origins { get; set; }
+
+        public int Total => counts.Sum();
+
+        public int Count(int horizon) => counts[horizon];
+
+        public ReadOnlySpan<double> Of(int horizon) => values[horizon].AsSpan(0, counts[horizon]);
+
+        public void Add(int horizon, double error) => values[horizon][counts[horizon]++] = error;
+
+        public void Return()
+        {
+            foreach (var array in values)
+            {
+                ArrayPool<double>.Shared.Return(array);
+            }
+        }
+    }
+
+    private static HorizonErrors CollectErrors(SeriesWindow window, SiteModel fold, double[][]? x, int firstOrigin, int lastOrigin, int horizons)
     {
         var ar = fold.Ar;
-        var horizons = errors.Length;
 
         // Only the points the origins read: each origin's last p values and the steps it forecasts.
         var start = Math.Max(0, firstOrigin - ar.Order + 1);
@@ -198,7 +226,7 @@ public static class Calibration
         var mean = new double[horizons];
         var sd = new double[horizons];
         var stride = Math.Max(1, (lastOrigin - firstOrigin + 1) / MaxOriginsPerFold);
-        var count = 0;
+        var errors = new HorizonErrors(horizons, Math.Max(0, lastOrigin - firstOrigin + stride - 1) / stride);
         for (var o = firstOrigin; o < lastOrigin; o += stride)
         {
             var segment = window.Segments[window.SegmentOf(o)];
@@ -209,18 +237,18 @@ public static class Calibration
                 continue;
             }
 
-            count++;
+            errors.Origins++;
             AnomalyPath.Compute(ar, anomalies.AsSpan(o - ar.Order + 1 - start, ar.Order), psi, g.AsSpan(o + 1 - start, steps), mean.AsSpan(0, steps), sd.AsSpan(0, steps));
             for (var h = 1; h <= steps; h++)
             {
                 if (!window.Interpolated[o + h])
                 {
-                    errors[h - 1].Add((anomalies[o + h - start] - mean[h - 1]) / sd[h - 1]);
+                    errors.Add(h - 1, (anomalies[o + h - start] - mean[h - 1]) / sd[h - 1]);
                 }
             }
         }
 
-        return count;
+        return errors;
     }
 
     /// <summary>The fold model's climatology mean and variance factors at the window's points [<paramref name="start"/>, <paramref name="end"/>);
@@ -256,26 +284,41 @@ public static class Calibration
         return (mean, g);
     }
 
-    private static double[][] QuantileRows(List<double>[] errors)
+    /// <summary>Per horizon, R type 7 quantiles of the folds' errors at that horizon, joined by those of ever wider
+    /// neighbouring horizons until the row rests on at least <see cref="MinErrorsPerRow"/> errors.</summary>
+    private static double[][] QuantileRows(HorizonErrors[] folds, int horizons)
     {
-        var rows = new double[errors.Length][];
-        for (var h = 0; h < errors.Length; h++)
+        int Count(int h) => folds.Sum(f => f.Count(h));
+        var rows = new double[horizons][];
+        var pooled = ArrayPool<double>.Shared.Rent(folds.Sum(f => f.Total));
+        try
         {
-            var pooled = new List<double>(errors[h]);
-            for (var w = 1; pooled.Count < MinErrorsPerRow && w < errors.Length; w++)
+            for (var h = 0; h < horizons; h++)
             {
-                if (h - w >= 0)
+                var count = Count(h);
+                var width = 0;
+                while (count < MinErrorsPerRow && width + 1 < horizons)
                 {
-                    pooled.AddRange(errors[h - w]);
+                    width++;
+                    count += (h - width >= 0 ? Count(h - width) : 0) + (h + width < horizons ? Count(h + width) : 0);
                 }
 
-                if (h + w < errors.Length)
+                var filled = 0;
+                for (var k = Math.Max(0, h - width); k <= Math.Min(horizons - 1, h + width); k++)
                 {
-                    pooled.AddRange(errors[h + w]);
+                    foreach (var fold in folds)
+                    {
+                        fold.Of(k).CopyTo(pooled.AsSpan(filled));
+                        filled += fold.Count(k);
+                    }
                 }
+
+                rows[h] = OrderStatistics.TypeSevenQuantiles(pooled.AsSpan(0, filled), Probabilities);
             }
-
-            rows[h] = OrderStatistics.TypeSevenQuantiles([.. pooled], Probabilities);
+        }
+        finally
+        {
+            ArrayPool<double>.Shared.Return(pooled);
         }
 
         return rows;

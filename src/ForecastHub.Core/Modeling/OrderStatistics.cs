@@ -72,23 +72,30 @@ internal static class OrderStatistics
 
     /// <summary>R quantile type 7 of the sample at each probability. Type 7 reads the two order statistics around
     /// (n - 1) p: only those are put in place, not the whole sample sorted, and <paramref name="values"/> is reordered.</summary>
-    public static double[] TypeSevenQuantiles(double[] values, IReadOnlyList<double> probabilities)
+    public static double[] TypeSevenQuantiles(Span<double> values, IReadOnlyList<double> probabilities)
     {
-        var ranks = probabilities.Select(p => TypeSevenPosition(values.Length, p)).SelectMany(q => new[] { q.Lo, q.Hi })
+        var count = values.Length;
+        var ranks = probabilities.Select(p => TypeSevenPosition(count, p)).SelectMany(q => new[] { q.Lo, q.Hi })
             .Where(r => r >= 0).Distinct().Order().ToArray();
         Place(values, ranks);
-        return [.. probabilities.Select(p => SortedQuantile(values, p))];
+        var quantiles = new double[probabilities.Count];
+        for (var i = 0; i < quantiles.Length; i++)
+        {
+            quantiles[i] = SortedQuantile(values, probabilities[i]);
+        }
+
+        return quantiles;
     }
 
     /// <summary>R quantile type 7 of sorted values (or of values whose order statistics at its two ranks are in place).</summary>
-    public static double SortedQuantile(IReadOnlyList<double> sorted, double p)
+    public static double SortedQuantile(ReadOnlySpan<double> sorted, double p)
     {
-        if (sorted.Count == 0)
+        if (sorted.Length == 0)
         {
             return double.NaN;
         }
 
-        var (lo, hi, weight) = TypeSevenPosition(sorted.Count, p);
+        var (lo, hi, weight) = TypeSevenPosition(sorted.Length, p);
         return sorted[lo] + weight * (sorted[hi] - sorted[lo]);
     }
 
