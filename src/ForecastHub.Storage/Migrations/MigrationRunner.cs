@@ -73,7 +73,10 @@ public sealed class MigrationRunner(SqliteDatabase database, IReadOnlyList<Migra
             }
         }
         var target = targetVersion ?? LatestVersion;
-        foreach (var migration in migrations.Where(m => m.Version <= target))
+        // Read first, so a start on a current file opens no write transaction (a migration that turns foreign keys
+        // off checks every reading's key afterwards); each pending one is checked again inside its transaction.
+        var current = CurrentVersion();
+        foreach (var migration in migrations.Where(m => m.Version > current && m.Version <= target))
         {
             Func<SqliteConnection, SqliteTransaction, int> apply = (connection, transaction) =>
             {
