@@ -98,4 +98,28 @@ public sealed class ReadingStoreTests
         Assert.Equal(values, stored!.Select(r => r.ValueC));
         Assert.Equal([count / 2], stored!.Select((r, i) => (r, i)).Where(x => x.r.Flags == QualityFlags.OutOfRange).Select(x => x.i));
     }
+
+    [Fact]
+    public async Task GridRowsReadThroughTheNativeCallsEqualThoseReadThroughSafeHandles()
+    {
+        var (db, store) = await WithSite();
+        using var _ = db;
+        // A reading a minute over 2,000 minutes: more rows than the 1,024 the array starts with for 34 hours, so it
+        // grows; one reading above the site's limit (60 C) is flagged, so the flag column is read too.
+        const long Minute = 60_000;
+        var values = Enumerable.Range(0, 2000).Select(i => i == 1234 ? 61.0 : Math.Sin(i / 9.0) * 7 + 0.1 / 3).ToArray();
+        var readings = values.Select((v, i) => new IncomingReading(i, i * Minute, v, v, "C")).ToArray();
+        await store.IngestAsync("site-a", readings, ConflictPolicy.Reject, Received);
+        var key = db.Scalar<long>("SELECT key FROM sites WHERE id = 'site-a';");
+        Assert.True(SqliteRowCalls.Available);
+
+        using var connection = db.Database.Open();
+        var native = SqliteReadingStore.ReadGridRows(connection, key, 0, 2000 * Minute, nativeCalls: true);
+        var safe = SqliteReadingStore.ReadGridRows(connection, key, 0, 2000 * Minute, nativeCalls: false);
+
+        Assert.Equal(values, native.Select(r => r.ValueC));
+        Assert.Equal(Enumerable.Range(0, 2000).Select(i => DateTimeOffset.FromUnixTimeMilliseconds(i * Minute)), native.Select(r => r.Time));
+        Assert.Equal([1234], native.Select((r, i) => (r, i)).Where(x => x.r.Flagged).Select(x => x.i));
+        Assert.Equal(safe, native);
+    }
 }

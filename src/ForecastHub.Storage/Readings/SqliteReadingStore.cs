@@ -67,7 +67,7 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
             // A refit reads years of rows: the range is read in time slices side by side, on one snapshot.
             var slices = GridReadSlices(fromMs, toMs);
             var parts = database.ReadPartsOnSnapshot(connection, transaction, slices, (reader, _, i) =>
-                ReadGridRows(reader, site.Value.Key, SliceBound(fromMs, toMs, slices, i), SliceBound(fromMs, toMs, slices, i + 1)));
+                ReadGridRows(reader, site.Value.Key, SliceBound(fromMs, toMs, slices, i), SliceBound(fromMs, toMs, slices, i + 1), SqliteRowCalls.Available));
             return Concatenate(parts);
         }));
 
@@ -99,7 +99,9 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
     }
 
     // Straight on SQLite's statement API: a refit reads ten years of hourly rows, and the data reader's per-column checks cost more than the engine's scan.
-    private static ArraySegment<GridReading> ReadGridRows(SqliteConnection connection, long siteKey, long fromMs, long toMs)
+    /// <param name="nativeCalls">Step and read columns through <see cref="SqliteRowCalls"/> (when it is available), else
+    /// through SQLitePCL's safe handles; both give the same rows.</param>
+    internal static ArraySegment<GridReading> ReadGridRows(SqliteConnection connection, long siteKey, long fromMs, long toMs, bool nativeCalls)
     {
         var db = connection.Handle!;
         SqliteException.ThrowExceptionForRC(raw.sqlite3_prepare_v2(db,
@@ -114,15 +116,31 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
             var rows = GC.AllocateUninitializedArray<GridReading>((int)Math.Clamp(((toMs - fromMs) / 3_600_000) + 1, 1024, 1 << 17));
             var count = 0;
             int step;
-            while ((step = raw.sqlite3_step(statement)) == raw.SQLITE_ROW)
+            if (nativeCalls)
+            {
+                // The statement's handle stays alive to the using's end, so its pointer is valid for the loop.
+                var native = statement.DangerousGetHandle();
+                while ((step = SqliteRowCalls.Step(native)) == raw.SQLITE_ROW)
+                {
+                    Add(SqliteRowCalls.Int64(native, 0), SqliteRowCalls.Double(native, 1), SqliteRowCalls.Int64(native, 2));
+                }
+            }
+            else
+            {
+                while ((step = raw.sqlite3_step(statement)) == raw.SQLITE_ROW)
+                {
+                    Add(raw.sqlite3_column_int64(statement, 0), raw.sqlite3_column_double(statement, 1), raw.sqlite3_column_int64(statement, 2));
+                }
+            }
+
+            void Add(long timeMs, double valueC, long flags)
             {
                 if (count == rows.Length)
                 {
                     Array.Resize(ref rows, rows.Length * 2);
                 }
 
-                rows[count++] = new GridReading(DateTimeOffset.FromUnixTimeMilliseconds(raw.sqlite3_column_int64(statement, 0)),
-                    raw.sqlite3_column_double(statement, 1), raw.sqlite3_column_int64(statement, 2) != 0);
+                rows[count++] = new GridReading(DateTimeOffset.FromUnixTimeMilliseconds(timeMs), valueC, flags != 0);
             }
 
             if (step != raw.SQLITE_DONE)
