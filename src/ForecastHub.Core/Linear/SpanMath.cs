@@ -69,4 +69,43 @@ internal static class SpanMath
             y[i] += alpha * x[i];
         }
     }
+
+    /// <summary>
+    /// target_i += sum_c alpha_c columns_c[offset + i], the terms added in column order: the same operations on each
+    /// element as one <see cref="Axpy"/> per column, so the same result bit for bit, in one pass over the memory.
+    /// </summary>
+    public static void AddCombination(ReadOnlySpan<double> alphas, ReadOnlySpan<double[]> columns, int offset, Span<double> target)
+    {
+        var n = target.Length;
+        var i = 0;
+        if (Vector.IsHardwareAccelerated && n >= Vector<double>.Count)
+        {
+            var blocks = n / Vector<double>.Count;
+            var vt = MemoryMarshal.Cast<double, Vector<double>>(target)[..blocks];
+            for (var v = 0; v < blocks; v++)
+            {
+                var sum = vt[v];
+                var at = offset + (v * Vector<double>.Count);
+                for (var c = 0; c < alphas.Length; c++)
+                {
+                    sum += new Vector<double>(alphas[c]) * new Vector<double>(columns[c], at);
+                }
+
+                vt[v] = sum;
+            }
+
+            i = blocks * Vector<double>.Count;
+        }
+
+        for (; i < n; i++)
+        {
+            var sum = target[i];
+            for (var c = 0; c < alphas.Length; c++)
+            {
+                sum += alphas[c] * columns[c][offset + i];
+            }
+
+            target[i] = sum;
+        }
+    }
 }

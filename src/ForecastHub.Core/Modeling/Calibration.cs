@@ -262,19 +262,12 @@ public static class Calibration
         }
 
         var mean = new double[end - start];
-        var terms = fold.Climatology.Terms;
-        for (var c = 0; c < terms.Count; c++)
-        {
-            SpanMath.Axpy(terms[c].Coefficient, x[c].AsSpan(start, mean.Length), mean);
-        }
+        SpanMath.AddCombination([.. fold.Climatology.Terms.Select(t => t.Coefficient)], x, start, mean);
 
         var season = fold.VarianceSeason;
         var g = new double[end - start];
         var source = SiteModelFitter.VarianceColumns(fold.Climatology.Design, season.Design);
-        for (var c = 0; c < source.Length; c++)
-        {
-            SpanMath.Axpy(season.Coefficients[c], x[source[c]].AsSpan(start, g.Length), g);
-        }
+        SpanMath.AddCombination([.. season.Coefficients], [.. source.Select(c => x[c])], start, g);
 
         for (var i = 0; i < g.Length; i++)
         {

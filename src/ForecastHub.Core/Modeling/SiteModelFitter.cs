@@ -200,11 +200,7 @@ public static class SiteModelFitter
     {
         var r = into ?? new double[y.Length];
         y.CopyTo(r, 0);
-        for (var c = 0; c < beta.Length; c++)
-        {
-            SpanMath.Axpy(-beta[c], x[c].AsSpan(0, r.Length), r);
-        }
-
+        SpanMath.AddCombination([.. beta.Select(b => -b)], x, 0, r);
         return r;
     }
 
