@@ -18,8 +18,9 @@ namespace ForecastHub.Benchmarks;
 /// SQLite file) on the fit benchmark's 87,600 hourly points, shifted to end at the current hour so the
 /// whole series lies in the site's fit window (maxOrder 48, fitWindowDays 3660, default settings
 /// otherwise: pacf-aic, Burg, calibrated intervals). Times the whole request and prints the answer's
-/// <c>fitDurationMs</c> beside it; then, with the server stopped, times the steps of a refit one by one
-/// in process on the same file (rows, grid, fit without and with calibration, model JSON, store).
+/// <c>fitDurationMs</c> beside it; then the same with the site switched to Gaussian intervals (no calibration
+/// folds: the numerics R's comparison runs); then, with the server stopped, times the steps of a refit one by
+/// one in process on the same file (rows, grid, fit without and with calibration, model JSON, store).
 /// </summary>
 internal sealed class RefitHttpVerb : IBenchmarkVerb
 {
@@ -43,16 +44,18 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
         try
         {
             var databasePath = Path.Combine(folder.FullName, "refit.db");
-            var (request, fit) = await TimeRequestsAsync(apiDll, databasePath);
+            var (request, fit, gaussianRequest) = await TimeRequestsAsync(apiDll, databasePath);
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
                 $"refit over HTTP: median {request.Median:F1} ms per request (min {request.Min:F1}), fitDurationMs median {fit:F1}, outside the fit {request.Median - fit:F1} ms, over {TimedRefits} refits"));
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"refit over HTTP with intervalMethod gaussian (no calibration folds: the numerics R's comparison runs): median {gaussianRequest.Median:F1} ms per request (min {gaussianRequest.Min:F1})"));
             var stages = await TimeStagesAsync(databasePath);
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
                 $"stages in process (median of {TimedRefits}, same file, server stopped): read rows {stages.Read:F1} ms, grid {stages.Grid:F1} ms, " +
                 $"fit without calibration {stages.GaussianFit:F1} ms, calibration {stages.CalibratedFit - stages.GaussianFit:F1} ms, model JSON {stages.Json:F1} ms, store {stages.Store:F1} ms; " +
                 $"request minus these {request.Median - stages.Read - stages.Grid - stages.CalibratedFit - stages.Json - stages.Store:F1} ms (HTTP, answer, lock)"));
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"RESULT refit_ms={request.Median:F1} refit_fit_ms={fit:F1} read_ms={stages.Read:F1} grid_ms={stages.Grid:F1} fit_gaussian_ms={stages.GaussianFit:F1} fit_calibrated_ms={stages.CalibratedFit:F1} json_ms={stages.Json:F1} store_ms={stages.Store:F1}"));
+                $"RESULT refit_ms={request.Median:F1} refit_fit_ms={fit:F1} refit_gaussian_ms={gaussianRequest.Median:F1} read_ms={stages.Read:F1} grid_ms={stages.Grid:F1} fit_gaussian_ms={stages.GaussianFit:F1} fit_calibrated_ms={stages.CalibratedFit:F1} json_ms={stages.Json:F1} store_ms={stages.Store:F1}"));
             return 0;
         }
         finally
@@ -62,7 +65,7 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
         }
     }
 
-    private static async Task<((double Median, double Min) Request, double FitMs)> TimeRequestsAsync(string apiDll, string databasePath)
+    private static async Task<((double Median, double Min) Request, double FitMs, (double Median, double Min) GaussianRequest)> TimeRequestsAsync(string apiDll, string databasePath)
     {
         await using var server = ServerProcess.Start(apiDll, databasePath, "--RateLimiting:Enabled=false");
         await server.WaitReadyAsync(Stopwatch.StartNew(), TimeSpan.FromMinutes(2));
@@ -104,6 +107,30 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
         }
 
         // Each timed refit meets a service at rest: the work the last one set off (its forecast and alert evaluation) is done.
+        var runs = await TimeRefitsAsync(server, client);
+
+        // The same refits with Gaussian intervals: no calibration folds, so the numerics are those R's comparison runs.
+        using (var patch = new HttpRequestMessage(HttpMethod.Patch, new Uri($"/api/v1/sites/{SiteId}", UriKind.Relative))
+        {
+            Content = JsonContent.Create(new { model = new { maxOrder = 48, fitWindowDays = 3660, intervalMethod = "gaussian" } }),
+        })
+        using (var patched = await client.SendAsync(patch))
+        {
+            patched.EnsureSuccessStatusCode();
+        }
+
+        for (var i = 0; i < WarmupRefits; i++)
+        {
+            await RefitAsync(client);
+        }
+
+        var gaussianRuns = await TimeRefitsAsync(server, client);
+        return ((Median(runs.Select(r => r.RequestMs)), runs.Min(r => r.RequestMs)), Median(runs.Select(r => r.FitMs)),
+            (Median(gaussianRuns.Select(r => r.RequestMs)), gaussianRuns.Min(r => r.RequestMs)));
+    }
+
+    private static async Task<List<(double RequestMs, double FitMs)>> TimeRefitsAsync(ServerProcess server, HttpClient client)
+    {
         var runs = new List<(double RequestMs, double FitMs)>();
         for (var i = 0; i < TimedRefits; i++)
         {
@@ -111,7 +138,7 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
             runs.Add(await RefitAsync(client));
         }
 
-        return ((Median(runs.Select(r => r.RequestMs)), runs.Min(r => r.RequestMs)), Median(runs.Select(r => r.FitMs)));
+        return runs;
     }
 
     /// <summary>The steps of a refit (ModelService.RefitIfDueAsync) one by one on the file the server left, after as many
@@ -125,7 +152,9 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
         var loader = new SiteGridLoader(new SqliteReadingStore(database), new SqliteReadingSummaryStore(database));
         var models = new SqliteModelStore(database);
         var now = DateTimeOffset.UtcNow;
+        // The verb switched the site to Gaussian intervals last; both settings are timed here.
         var gaussian = site.Model with { IntervalMethod = IntervalMethod.Gaussian };
+        var calibrated = site.Model with { IntervalMethod = IntervalMethod.Calibrated };
         var times = new List<double[]>();
         for (var i = 0; i < WarmupRefits + TimedRefits; i++)
         {
@@ -140,7 +169,7 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
             SiteModelFitter.Fit(grid, gaussian);
             var gaussianMs = watch.Elapsed.TotalMilliseconds;
             watch.Restart();
-            var model = SiteModelFitter.Fit(grid, site.Model);
+            var model = SiteModelFitter.Fit(grid, calibrated);
             var calibratedMs = watch.Elapsed.TotalMilliseconds;
             watch.Restart();
             var json = ModelJson.Write(model);
