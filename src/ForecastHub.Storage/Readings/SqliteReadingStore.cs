@@ -74,8 +74,11 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
     /// <summary>Rows per slice of a grid read, at one reading an hour: below it, a second connection costs more than it saves.</summary>
     private const long RowsPerSlice = 8_760;
 
+    /// <summary>Whole hours in [from, to): at one reading an hour, the common logging rate, about the rows a grid read meets.</summary>
+    private static long HoursIn(long fromMs, long toMs) => (toMs - fromMs) / 3_600_000;
+
     private static int GridReadSlices(long fromMs, long toMs) =>
-        (int)Math.Clamp((toMs - fromMs) / 3_600_000 / RowsPerSlice, 1, Math.Min(Environment.ProcessorCount, 4));
+        (int)Math.Clamp(HoursIn(fromMs, toMs) / RowsPerSlice, 1, Math.Min(Environment.ProcessorCount, 4));
 
     private static long SliceBound(long fromMs, long toMs, int slices, int i) =>
         i == slices ? toMs : fromMs + ((toMs - fromMs) / slices * i);
@@ -98,7 +101,8 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
         return all;
     }
 
-    // Straight on SQLite's statement API: a refit reads ten years of hourly rows, and the data reader's per-column checks cost more than the engine's scan.
+    /// <summary>Straight on SQLite's statement API: a refit reads ten years of hourly rows, and the data reader's
+    /// per-column checks cost more than the engine's scan.</summary>
     /// <param name="nativeCalls">Step and read columns through <see cref="SqliteRowCalls"/> (when it is available), else
     /// through SQLitePCL's safe handles; both give the same rows.</param>
     internal static ArraySegment<GridReading> ReadGridRows(SqliteConnection connection, long siteKey, long fromMs, long toMs, bool nativeCalls)
@@ -111,9 +115,9 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
         {
             SqliteException.ThrowExceptionForRC(
                 raw.sqlite3_bind_int64(statement, 1, siteKey) | raw.sqlite3_bind_int64(statement, 2, fromMs) | raw.sqlite3_bind_int64(statement, 3, toMs), db);
-            // Sized for one reading an hour, the common logging rate, so ten years are read without growing and copying.
-            // Not zeroed first: only the rows read are handed out (a segment of exactly count), so the tail is never seen.
-            var rows = GC.AllocateUninitializedArray<GridReading>((int)Math.Clamp(((toMs - fromMs) / 3_600_000) + 1, 1024, 1 << 17));
+            // Sized for one reading an hour, so ten years are read without growing and copying. Not zeroed first: only the
+            // rows read are handed out (a segment of exactly count), so the tail is never seen.
+            var rows = GC.AllocateUninitializedArray<GridReading>((int)Math.Clamp(HoursIn(fromMs, toMs) + 1, 1024, 1 << 17));
             var count = 0;
             int step;
             if (nativeCalls)
