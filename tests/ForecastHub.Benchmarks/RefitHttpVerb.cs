@@ -18,9 +18,11 @@ namespace ForecastHub.Benchmarks;
 /// SQLite file) on the fit benchmark's 87,600 hourly points, shifted to end at the current hour so the
 /// whole series lies in the site's fit window (maxOrder 48, fitWindowDays 3660, default settings
 /// otherwise: pacf-aic, Burg, calibrated intervals). Times the whole request and prints the answer's
-/// <c>fitDurationMs</c> beside it; then the same with the site switched to Gaussian intervals (no calibration
-/// folds: the numerics R's comparison runs); then, with the server stopped, times the steps of a refit one by
-/// one in process on the same file (rows, grid, fit without and with calibration, model JSON, store).
+/// <c>fitDurationMs</c> beside it, three ways: as a logger's site meets it, each refit after one new hourly reading
+/// (the calibration table is carried, Calibration.CanCarry); with <c>Refit:CalibrationCarry</c> zero, so every refit
+/// rebuilds the table (two fold fits and 3,000 origins); and with the site switched to Gaussian intervals (no table:
+/// the numerics R's comparison runs). Then, with the server stopped, times the steps of a refit one by one in process
+/// on the same file (rows, grid, fit without calibration, with a carried and with a rebuilt table, model JSON, store).
 /// </summary>
 internal sealed class RefitHttpVerb : IBenchmarkVerb
 {
@@ -30,6 +32,7 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
     // optimised after 30 calls of quick code and 30 instrumented ones, hence 60 untimed refits first.
     private const int WarmupRefits = 60;
     private const int TimedRefits = 9;
+    private const string CarriedNote = "Interval calibration carried";
 
     public string Name => "refit-http";
 
@@ -44,19 +47,20 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
         try
         {
             var databasePath = Path.Combine(folder.FullName, "refit.db");
-            var (request, fit, gaussianRequest) = await TimeRequestsAsync(apiDll, databasePath);
+            var (carried, rebuilt, gaussian) = await TimeRequestsAsync(apiDll, databasePath);
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"refit over HTTP: median {request.Median:F1} ms per request (min {request.Min:F1}), fitDurationMs median {fit:F1}, outside the fit {request.Median - fit:F1} ms, over {TimedRefits} refits"));
+                $"refit over HTTP, each after one new hourly reading (default settings; {carried.Carried} of {TimedRefits} carried the calibration table): median {carried.Median:F1} ms per request (min {carried.Min:F1}), fitDurationMs median {carried.FitMs:F1}"));
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"refit over HTTP with intervalMethod gaussian (no calibration folds: the numerics R's comparison runs): median {gaussianRequest.Median:F1} ms per request (min {gaussianRequest.Min:F1})"));
+                $"refit over HTTP with Refit:CalibrationCarry 0 (every refit rebuilds the table; {rebuilt.Carried} of {TimedRefits} carried): median {rebuilt.Median:F1} ms per request (min {rebuilt.Min:F1}), fitDurationMs median {rebuilt.FitMs:F1}"));
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"refit over HTTP with intervalMethod gaussian (no table: the numerics R's comparison runs): median {gaussian.Median:F1} ms per request (min {gaussian.Min:F1})"));
             var stages = await TimeStagesAsync(databasePath);
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
                 $"stages in process (median of {TimedRefits}, same file, server stopped): read rows {stages.Read:F1} ms, grid {stages.Grid:F1} ms, " +
-                $"fit without calibration {stages.GaussianFit:F1} ms, calibration {stages.CalibratedFit - stages.GaussianFit:F1} ms, model JSON {stages.Json:F1} ms, store {stages.Store:F1} ms; " +
-                $"request minus these {request.Median - stages.Read - stages.Grid - stages.CalibratedFit - stages.Json - stages.Store:F1} ms (HTTP, answer, lock)"));
+                $"fit without calibration {stages.GaussianFit:F1} ms, with the table carried {stages.CarriedFit:F1} ms, with it rebuilt {stages.RebuiltFit:F1} ms, model JSON {stages.Json:F1} ms, store {stages.Store:F1} ms"));
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"RESULT refit_ms={request.Median:F1} refit_fit_ms={fit:F1} refit_gaussian_ms={gaussianRequest.Median:F1} read_ms={stages.Read:F1} grid_ms={stages.Grid:F1} fit_gaussian_ms={stages.GaussianFit:F1} fit_calibrated_ms={stages.CalibratedFit:F1} json_ms={stages.Json:F1} store_ms={stages.Store:F1}"));
-            return 0;
+                $"RESULT refit_ms={carried.Median:F1} refit_fit_ms={carried.FitMs:F1} refit_rebuild_ms={rebuilt.Median:F1} refit_gaussian_ms={gaussian.Median:F1} read_ms={stages.Read:F1} grid_ms={stages.Grid:F1} fit_gaussian_ms={stages.GaussianFit:F1} fit_carried_ms={stages.CarriedFit:F1} fit_rebuilt_ms={stages.RebuiltFit:F1} json_ms={stages.Json:F1} store_ms={stages.Store:F1}"));
+            return carried.Carried == TimedRefits && rebuilt.Carried == 0 ? 0 : 1;
         }
         finally
         {
@@ -65,60 +69,72 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
         }
     }
 
-    private static async Task<((double Median, double Min) Request, double FitMs, (double Median, double Min) GaussianRequest)> TimeRequestsAsync(string apiDll, string databasePath)
+    private sealed record Timings(double Median, double Min, double FitMs, int Carried);
+
+    private static async Task<(Timings Carried, Timings Rebuilt, Timings Gaussian)> TimeRequestsAsync(string apiDll, string databasePath)
     {
-        await using var server = ServerProcess.Start(apiDll, databasePath, "--RateLimiting:Enabled=false");
-        await server.WaitReadyAsync(Stopwatch.StartNew(), TimeSpan.FromMinutes(2));
-        var client = server.Client;
-
-        using (var created = await client.PostAsJsonAsync(new Uri("/api/v1/sites", UriKind.Relative), new
-        {
-            id = SiteId,
-            name = "Ten years hourly",
-            timeZone = "Europe/Berlin",
-            cadence = "hourly",
-            model = new { maxOrder = 48, fitWindowDays = 3660 },
-        }))
-        {
-            created.EnsureSuccessStatusCode();
-        }
-
         var grid = Series.SeasonalHourlyGrid(FitVerb.Hours, seed: 2026);
         var now = DateTimeOffset.UtcNow;
         var shift = new DateTimeOffset(now.Year, now.Month, now.Day, now.Hour, 0, 0, TimeSpan.Zero).AddHours(-1) - grid.Times[^1];
-        for (var start = 0; start < grid.Count; start += BatchSize)
+        string Reading(int i) => string.Create(CultureInfo.InvariantCulture,
+            $"{{\"time\":\"{(grid.Times[i] + shift).ToString("yyyy-MM-dd'T'HH:mm:ss'Z'", CultureInfo.InvariantCulture)}\",\"value\":{grid.Values[i].ToString("R", CultureInfo.InvariantCulture)}}}");
+
+        Timings carried;
+        await using (var server = ServerProcess.Start(apiDll, databasePath, "--RateLimiting:Enabled=false"))
         {
-            var body = new StringBuilder("{\"unit\":\"C\",\"readings\":[");
-            for (var i = start; i < Math.Min(grid.Count, start + BatchSize); i++)
+            await server.WaitReadyAsync(Stopwatch.StartNew(), TimeSpan.FromMinutes(2));
+            var client = server.Client;
+            using (var created = await client.PostAsJsonAsync(new Uri("/api/v1/sites", UriKind.Relative), new
             {
-                body.Append(i == start ? "" : ",").Append(CultureInfo.InvariantCulture,
-                    $"{{\"time\":\"{(grid.Times[i] + shift).ToString("yyyy-MM-dd'T'HH:mm:ss'Z'", CultureInfo.InvariantCulture)}\",\"value\":{grid.Values[i].ToString("R", CultureInfo.InvariantCulture)}}}");
+                id = SiteId,
+                name = "Ten years hourly",
+                timeZone = "Europe/Berlin",
+                cadence = "hourly",
+                model = new { maxOrder = 48, fitWindowDays = 3660 },
+            }))
+            {
+                created.EnsureSuccessStatusCode();
             }
 
-            using var content = new StringContent(body.Append("]}").ToString(), Encoding.UTF8, "application/json");
-            using var posted = await client.PostAsync(new Uri($"/api/v1/sites/{SiteId}/observations", UriKind.Relative), content);
-            posted.EnsureSuccessStatusCode();
+            // The newest hours are held back: each timed refit follows the post of the next one, as a logger's site meets it.
+            var seeded = grid.Count - TimedRefits;
+            for (var start = 0; start < seeded; start += BatchSize)
+            {
+                await PostAsync(client, Enumerable.Range(start, Math.Min(seeded, start + BatchSize) - start).Select(Reading));
+            }
+
+            var next = seeded;
+            carried = await TimeRefitsAsync(server, client, () => PostAsync(client, [Reading(next++)]));
         }
 
-        var runs = await TimeRefitsAsync(server, client);
+        // The same file and data, every refit rebuilding its table; then Gaussian intervals.
+        await using (var server = ServerProcess.Start(apiDll, databasePath, "--RateLimiting:Enabled=false", "--Refit:CalibrationCarry=00:00:00"))
+        {
+            await server.WaitReadyAsync(Stopwatch.StartNew(), TimeSpan.FromMinutes(2));
+            var client = server.Client;
+            var rebuilt = await TimeRefitsAsync(server, client, () => Task.CompletedTask);
+            using (var patch = new HttpRequestMessage(HttpMethod.Patch, new Uri($"/api/v1/sites/{SiteId}", UriKind.Relative))
+            {
+                Content = JsonContent.Create(new { model = new { maxOrder = 48, fitWindowDays = 3660, intervalMethod = "gaussian" } }),
+            })
+            using (var patched = await client.SendAsync(patch))
+            {
+                patched.EnsureSuccessStatusCode();
+            }
 
-        // The same refits with Gaussian intervals: no calibration folds, so the numerics are those R's comparison runs.
-        using (var patch = new HttpRequestMessage(HttpMethod.Patch, new Uri($"/api/v1/sites/{SiteId}", UriKind.Relative))
-        {
-            Content = JsonContent.Create(new { model = new { maxOrder = 48, fitWindowDays = 3660, intervalMethod = "gaussian" } }),
-        })
-        using (var patched = await client.SendAsync(patch))
-        {
-            patched.EnsureSuccessStatusCode();
+            return (carried, rebuilt, await TimeRefitsAsync(server, client, () => Task.CompletedTask));
         }
-
-        var gaussianRuns = await TimeRefitsAsync(server, client);
-        return ((Median(runs.Select(r => r.RequestMs)), runs.Min(r => r.RequestMs)), Median(runs.Select(r => r.FitMs)),
-            (Median(gaussianRuns.Select(r => r.RequestMs)), gaussianRuns.Min(r => r.RequestMs)));
     }
 
-    /// <summary>Untimed refits first, then the timed ones.</summary>
-    private static async Task<List<(double RequestMs, double FitMs)>> TimeRefitsAsync(ServerProcess server, HttpClient client)
+    private static async Task PostAsync(HttpClient client, IEnumerable<string> readings)
+    {
+        using var content = new StringContent("{\"unit\":\"C\",\"readings\":[" + string.Join(',', readings) + "]}", Encoding.UTF8, "application/json");
+        using var posted = await client.PostAsync(new Uri($"/api/v1/sites/{SiteId}/observations", UriKind.Relative), content);
+        posted.EnsureSuccessStatusCode();
+    }
+
+    /// <summary>Untimed refits first, then the timed ones, each after <paramref name="beforeTimed"/> (untimed).</summary>
+    private static async Task<Timings> TimeRefitsAsync(ServerProcess server, HttpClient client, Func<Task> beforeTimed)
     {
         // The first refits include the background fit queued by the posts or a settings change (the site lock serialises
         // them) and tier-up of the code.
@@ -128,21 +144,22 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
         }
 
         // Each timed refit meets a service at rest: the work the last one set off (its forecast and alert evaluation) is done.
-        var runs = new List<(double RequestMs, double FitMs)>();
+        var runs = new List<(double RequestMs, double FitMs, bool Carried)>();
         for (var i = 0; i < TimedRefits; i++)
         {
+            await beforeTimed();
             await ServerProcess.WaitUntilIdleAsync(server.Pid, TimeSpan.FromMilliseconds(250), 0.01, TimeSpan.FromSeconds(10));
             runs.Add(await RefitAsync(client));
         }
 
-        return runs;
+        return new Timings(Median(runs.Select(r => r.RequestMs)), runs.Min(r => r.RequestMs), Median(runs.Select(r => r.FitMs)), runs.Count(r => r.Carried));
     }
 
     /// <summary>The steps of a refit (ModelService.RefitIfDueAsync) one by one on the file the server left, after as many
     /// untimed rounds as the server had:
-    /// the window's rows in the service's pages, the grid, the core fit without and with the calibration
-    /// folds, the model JSON and the store's save.</summary>
-    private static async Task<(double Read, double Grid, double GaussianFit, double CalibratedFit, double Json, double Store)> TimeStagesAsync(string databasePath)
+    /// the window's rows in the service's pages, the grid, the core fit without a calibration table, with the table
+    /// carried from the round before and with it rebuilt (the calibration folds), the model JSON and the store's save.</summary>
+    private static async Task<(double Read, double Grid, double GaussianFit, double CarriedFit, double RebuiltFit, double Json, double Store)> TimeStagesAsync(string databasePath)
     {
         using var database = new SqliteDatabase(new StorageOptions { Path = databasePath });
         var site = (await new SqliteSiteStore(database, TimeProvider.System).GetAsync(SiteId))!;
@@ -167,25 +184,28 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
             var gaussianMs = watch.Elapsed.TotalMilliseconds;
             watch.Restart();
             var model = SiteModelFitter.Fit(grid, calibrated);
-            var calibratedMs = watch.Elapsed.TotalMilliseconds;
+            var rebuiltMs = watch.Elapsed.TotalMilliseconds;
+            watch.Restart();
+            SiteModelFitter.Fit(grid, calibrated, model, Calibration.DefaultCarryLimit);
+            var carriedMs = watch.Elapsed.TotalMilliseconds;
             watch.Restart();
             var json = ModelJson.Write(model);
             var jsonMs = watch.Elapsed.TotalMilliseconds;
             watch.Restart();
-            await models.SaveAsync(new StoredModel(site.Id, site.Key, now, calibratedMs, site.SettingsVersion, model.Window.To, grid.ObservedCount,
+            await models.SaveAsync(new StoredModel(site.Id, site.Key, now, rebuiltMs, site.SettingsVersion, model.Window.To, grid.ObservedCount,
                 model.Diagnostics.LjungBox?.PValue, json));
             var storeMs = watch.Elapsed.TotalMilliseconds;
             if (i >= WarmupRefits)
             {
-                times.Add([read, gridMs, gaussianMs, calibratedMs, jsonMs, storeMs]);
+                times.Add([read, gridMs, gaussianMs, carriedMs, rebuiltMs, jsonMs, storeMs]);
             }
         }
 
         double Stage(int k) => Median(times.Select(t => t[k]));
-        return (Stage(0), Stage(1), Stage(2), Stage(3), Stage(4), Stage(5));
+        return (Stage(0), Stage(1), Stage(2), Stage(3), Stage(4), Stage(5), Stage(6));
     }
 
-    private static async Task<(double RequestMs, double FitMs)> RefitAsync(HttpClient client)
+    private static async Task<(double RequestMs, double FitMs, bool Carried)> RefitAsync(HttpClient client)
     {
         var watch = Stopwatch.StartNew();
         using var response = await client.PostAsync(new Uri($"/api/v1/sites/{SiteId}/model/refit", UriKind.Relative), null);
@@ -193,7 +213,8 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
         watch.Stop();
         response.EnsureSuccessStatusCode();
         using var answer = JsonDocument.Parse(body);
-        return (watch.Elapsed.TotalMilliseconds, answer.RootElement.GetProperty("fitDurationMs").GetDouble());
+        var carried = answer.RootElement.GetProperty("notes").EnumerateArray().Any(n => n.GetString()!.StartsWith(CarriedNote, StringComparison.Ordinal));
+        return (watch.Elapsed.TotalMilliseconds, answer.RootElement.GetProperty("fitDurationMs").GetDouble(), carried);
     }
 
     private static double Median(IEnumerable<double> values)

@@ -18,9 +18,12 @@ public static class ModelJson
 public sealed record FittedSiteModel(SiteModel Model, string Json, double? ResidualPValue, DateTimeOffset DataEnd)
 {
     /// <summary>Fits the core's site model on <paramref name="grid"/> with the site's typed settings.</summary>
-    public static FittedSiteModel Fit(TimeGrid grid, ModelSettings settings)
+    public static FittedSiteModel Fit(TimeGrid grid, ModelSettings settings) => Fit(grid, settings, previous: null, TimeSpan.Zero);
+
+    /// <summary>As <see cref="Fit(TimeGrid, ModelSettings)"/>, keeping <paramref name="previous"/>'s calibration table where <see cref="Calibration.CanCarry"/> allows.</summary>
+    public static FittedSiteModel Fit(TimeGrid grid, ModelSettings settings, SiteModel? previous, TimeSpan carryLimit)
     {
-        var model = SiteModelFitter.Fit(grid, settings);
+        var model = SiteModelFitter.Fit(grid, settings, previous, carryLimit);
         return new FittedSiteModel(model, ModelJson.Write(model), model.Diagnostics.LjungBox?.PValue, model.Window.To);
     }
 }

@@ -189,7 +189,7 @@ public sealed partial class ModelService(
         FittedSiteModel fitted;
         try
         {
-            fitted = FittedSiteModel.Fit(grid, site.Model);
+            fitted = FittedSiteModel.Fit(grid, site.Model, await CurrentModelAsync(site, cancellationToken), refitOptions.Value.CalibrationCarry);
         }
 #pragma warning disable CA1031 // A fit may fail in any way on odd data; the failure is recorded and the old model keeps serving.
         catch (Exception error)
@@ -228,6 +228,19 @@ public sealed partial class ModelService(
         metrics.FitDuration.Observe(watch.Elapsed.TotalSeconds);
         LogFitted(logger, site.Id, reason, stored.FitDurationMs, grid.ObservedCount);
         return new RefitOutcome(serving, null, NotEnoughData: false);
+    }
+
+    /// <summary>The model a refit replaces, for its calibration table: the copy in memory (the refit decision dropped it if another
+    /// fit has been stored since), else the stored one when readable. Unlike <see cref="GetAsync"/> it keeps and queues nothing.</summary>
+    private async Task<Core.Modeling.SiteModel?> CurrentModelAsync(SiteRecord site, CancellationToken cancellationToken)
+    {
+        if (loaded.TryGetValue(site.Id, out var held) && held.Stored.SiteKey == site.Key)
+        {
+            return held.Model;
+        }
+
+        var stored = await store.GetAsync(site.Id, cancellationToken);
+        return stored is not null && stored.SiteKey == site.Key ? ModelJson.TryRead(stored.ModelJson, out _) : null;
     }
 
     private void MakeRoom()

@@ -23,6 +23,10 @@ public sealed class RefitOptions
     /// <summary>How often every site is checked (model age, day-ahead archive, live scores).</summary>
     public TimeSpan SweepInterval { get; set; } = TimeSpan.FromHours(1);
 
+    /// <summary>How far past the data end of the fit that built a site's calibration table later refits may keep that table
+    /// (Calibration.CanCarry); zero rebuilds it at every refit.</summary>
+    public TimeSpan CalibrationCarry { get; set; } = Core.Modeling.Calibration.DefaultCarryLimit;
+
     /// <summary>Parsed models kept in memory; beyond this an arbitrary one is dropped and read again from storage when next used.</summary>
     public int MaxLoadedModels { get; set; } = 500;
 
@@ -42,6 +46,11 @@ public sealed class RefitOptions
         if (MaxLoadedModels is < 1 or > 1_000_000)
         {
             throw new ArgumentException("Refit:MaxLoadedModels must be between 1 and 1000000.", nameof(MaxLoadedModels));
+        }
+
+        if (CalibrationCarry < TimeSpan.Zero || CalibrationCarry > TimeSpan.FromDays(366))
+        {
+            throw new ArgumentException("Refit:CalibrationCarry must be between 0 and 366 days.", nameof(CalibrationCarry));
         }
 
         if (ModelMaxAge <= TimeSpan.Zero || SweepInterval <= TimeSpan.Zero)

@@ -1,4 +1,5 @@
 using System.Buffers;
+using System.Globalization;
 using ForecastHub.Core.Climatology;
 using ForecastHub.Core.Forecasting;
 using ForecastHub.Core.Grid;
@@ -36,7 +37,38 @@ public static class Calibration
     private static readonly double CellsPerUnitScore = SegmentCells / (Scores[^2] - Scores[1]);
     private static readonly byte[] CellSegments = BuildCellSegments();
 
+    /// <summary>How far a table may be carried: the backtest's refit interval (<see cref="Verification.BacktestOptions.RefitEveryDays"/>),
+    /// so a carried table is no older than the tables behind the documented coverage figures.</summary>
+    public static readonly TimeSpan DefaultCarryLimit = TimeSpan.FromDays(7);
+
+    /// <summary>A table is rebuilt once the window's point count has moved this fraction from the count it was built on (common practice, no source).</summary>
+    public const double CarryPointsTolerance = 0.05;
+
     public static int Horizons(GridCadence cadence) => cadence == GridCadence.Hourly ? 48 : 7;
+
+    /// <summary>
+    /// Whether a new fit on a window ending at <paramref name="windowEnd"/> with <paramref name="windowPoints"/> points keeps <paramref name="previous"/>'s table instead of rebuilding it:
+    /// the table records the window it was built from, the settings and harmonic design are the same, the new window ends
+    /// no earlier than that one and at most <paramref name="carryLimit"/> later (zero: never carry), and its point count is
+    /// within <see cref="CarryPointsTolerance"/> of that one's. The folds of a rebuilt table would rest on almost the same errors.
+    /// </summary>
+    public static bool CanCarry(SiteModel? previous, DateTimeOffset windowEnd, int windowPoints, HarmonicDesign design, ModelSettings settings, TimeSpan carryLimit)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        if (previous?.Calibration?.BuiltOn is not { } built || settings.IntervalMethod != IntervalMethod.Calibrated || carryLimit <= TimeSpan.Zero)
+        {
+            return false;
+        }
+
+        var newer = windowEnd - built.To;
+        return previous.Settings == settings && previous.Climatology.Design == design
+            && newer >= TimeSpan.Zero && newer <= carryLimit
+            && Math.Abs(windowPoints - built.Points) <= CarryPointsTolerance * built.Points;
+    }
+
+    /// <summary>The note of a model whose table was carried.</summary>
+    internal static string CarriedNote(CalibrationTable table, TimeSpan carryLimit) => string.Create(CultureInfo.InvariantCulture,
+        $"Interval calibration carried from the fit of the window ending {table.BuiltOn!.To:O} ({table.Errors} out-of-sample errors); rebuilt once the data end moves more than {carryLimit.TotalDays:0.##} days past that, the points change by more than {CarryPointsTolerance * 100:0}% or the settings change.");
 
     /// <summary>The interval at a level for horizon h: mean + sd x quantile of the standardised errors.</summary>
     public static PredictionInterval Interval(CalibrationTable table, int horizon, double mean, double sd, double level)

@@ -34,7 +34,12 @@ public sealed record VarianceSeason(HarmonicDesign Design, IReadOnlyList<double>
 /// of standardised out-of-sample errors z = (observed - mean) / sd. Beyond the last row the last
 /// row is used.
 /// </summary>
-public sealed record CalibrationTable(IReadOnlyList<double> Probabilities, IReadOnlyList<double[]> Quantiles, int Errors, int Origins, int Folds);
+public sealed record CalibrationTable(IReadOnlyList<double> Probabilities, IReadOnlyList<double[]> Quantiles, int Errors, int Origins, int Folds)
+{
+    /// <summary>The fit window the table was built from; a later fit may carry the table (see <see cref="Calibration.CanCarry"/>).
+    /// Null in tables stored before this was recorded: those are never carried.</summary>
+    public FitWindow? BuiltOn { get; init; }
+}
 
 /// <summary>Residual checks of the final AR fit; LjungBox is null when too few residuals exist for the lag count.</summary>
 public sealed record ResidualDiagnostics(LjungBoxResult? LjungBox, JarqueBeraResult? JarqueBera, ResidualSummary Summary);

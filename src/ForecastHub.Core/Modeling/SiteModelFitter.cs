@@ -23,7 +23,11 @@ public static class SiteModelFitter
 {
     public const int MinimumPoints = 10;
 
-    public static SiteModel Fit(TimeGrid grid, ModelSettings settings)
+    public static SiteModel Fit(TimeGrid grid, ModelSettings settings) => Fit(grid, settings, previous: null, TimeSpan.Zero);
+
+    /// <summary>As <see cref="Fit(TimeGrid, ModelSettings)"/>, but keeps <paramref name="previous"/>'s calibration table instead
+    /// of building one when <see cref="Calibration.CanCarry"/> allows it for <paramref name="carryLimit"/>: a refit then costs one fit, not three.</summary>
+    public static SiteModel Fit(TimeGrid grid, ModelSettings settings, SiteModel? previous, TimeSpan carryLimit)
     {
         ArgumentNullException.ThrowIfNull(grid);
         ArgumentNullException.ThrowIfNull(settings);
@@ -45,6 +49,12 @@ public static class SiteModelFitter
             var notes = new List<string>();
             var design = ResolveDesign(window, grid.Cadence, grid.TimeZone, settings.Seasonality, notes);
             x = design.Columns == 1 ? null : PooledDesign.Rent(design, window.Times);
+            if (previous?.Calibration is { } table && Calibration.CanCarry(previous, window.Times[^1], window.Count, design, settings, carryLimit))
+            {
+                var model = FitCore(window, settings, design, x, notes, diagnostics: true);
+                return model with { Calibration = table, Notes = [.. model.Notes, Calibration.CarriedNote(table, carryLimit)] };
+            }
+
             return FitWithDesign(window, settings, design, x, notes);
         }
         finally
@@ -81,7 +91,7 @@ public static class SiteModelFitter
             ExceptionDispatchInfo.Throw(error.InnerExceptions.FirstOrDefault(e => e is SeriesException) ?? error.InnerExceptions[0]);
         }
 
-        return model! with { Calibration = table, Notes = [.. model.Notes, .. calibrationNotes] };
+        return model! with { Calibration = table is null ? null : table with { BuiltOn = model.Window }, Notes = [.. model.Notes, .. calibrationNotes] };
     }
 
     /// <summary>Annual terms need a year of data; diurnal terms an hourly grid (DESIGN.md section 3).</summary>

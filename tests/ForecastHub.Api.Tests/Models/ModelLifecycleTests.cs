@@ -90,6 +90,41 @@ public sealed class ModelLifecycleTests
     }
 
     [Fact]
+    public async Task ARefitAfterADayOfNewReadingsKeepsTheCalibrationTableAndASettingsChangeRebuildsIt()
+    {
+        await using var factory = new ApiFactory();
+        using var client = factory.CreateAdminClient();
+        await client.CreateHourlySiteAsync("carrier");
+        var history = ModelScenario.History(factory, days: 40);
+        var lastDay = history[^24].Time;
+        await factory.IngestAsync("carrier", history.Where(r => r.Time < lastDay));
+        var first = await client.RefitAsync("carrier");
+        // A background fit of the same readings may have built the table first: either way it rests on this window.
+        var builtThrough = first.GetProperty("window").GetProperty("to").GetDateTimeOffset();
+
+        await factory.IngestAsync("carrier", history.Where(r => r.Time >= lastDay));
+        var second = await client.RefitAsync("carrier");
+
+        Assert.Equal(builtThrough.AddHours(24), second.GetProperty("window").GetProperty("to").GetDateTimeOffset());
+        Assert.Equal(first.GetProperty("intervals").GetRawText(), second.GetProperty("intervals").GetRawText());
+        Assert.Contains(Notes(second), n => n.StartsWith($"Interval calibration carried from the fit of the window ending {builtThrough:O} (", StringComparison.Ordinal));
+
+        var third = await factory.NextFitAsync("carrier", async () =>
+        {
+            using var patch = await client.PatchAsJsonAsync(new Uri("/api/v1/sites/carrier", UriKind.Relative), new { model = new { maxOrder = 12 } });
+            Assert.Equal(HttpStatusCode.OK, patch.StatusCode);
+        });
+
+        Assert.True(third.Succeeded, third.Error);
+        var rebuilt = third.Model!.Model;
+        Assert.Equal(12, rebuilt.Settings.MaxOrder);
+        Assert.Equal(rebuilt.Window, rebuilt.Calibration!.BuiltOn);
+        Assert.DoesNotContain(rebuilt.Notes, n => n.StartsWith("Interval calibration carried", StringComparison.Ordinal));
+    }
+
+    private static string[] Notes(JsonElement model) => [.. model.GetProperty("notes").EnumerateArray().Select(n => n.GetString()!)];
+
+    [Fact]
     public async Task FailingFitKeepsTheOldModelServingAndShowsInHealth()
     {
         await using var factory = new ApiFactory();
