@@ -2,6 +2,7 @@ using System.Collections.Concurrent;
 using System.Diagnostics;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Core.Health;
+using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Models;
 using ForecastHub.Storage.Sites;
 using Microsoft.Extensions.Options;
@@ -27,6 +28,7 @@ public sealed record RefitOutcome(ServingModel? Model, string? Error, bool NotEn
 /// </summary>
 public sealed partial class ModelService(
     IModelStore store,
+    IReadingSummaryStore readingSummaries,
     SiteGridLoader grids,
     SiteVersions versions,
     RefitQueue refits,
@@ -140,11 +142,6 @@ public sealed partial class ModelService(
             var now = clock.GetUtcNow();
             // Counted back from the newest reading, so a site holding only an old archive is fitted on it.
             var from = await grids.WindowStartAsync(site, site.Model.FitWindowDays, now, cancellationToken);
-            var grid = await grids.LoadAsync(site, from, now, cancellationToken);
-            if (grid is null)
-            {
-                return (null, null);
-            }
 
             // The decision reads the stored model's bookkeeping, not the copy in memory: another node may have fitted the site since.
             var current = await store.GetSummaryAsync(site.Id, cancellationToken);
@@ -159,13 +156,14 @@ public sealed partial class ModelService(
                 return (null, null);
             }
 
-            var lastIndex = grid.LastValueIndex;
-            var facts = new RefitFacts(
-                site.IsDaily, grid.ObservedCount, MinPoints(site), site.SettingsVersion,
-                current?.FittedAt, current?.SettingsVersion, current?.DataPoints, current?.DataEnd,
-                lastIndex >= 0 ? grid.Times[lastIndex] : null, now);
-            var reason = force ? RefitReason.Requested : RefitPolicy.Decide(facts, refitOptions.Value);
+            var reason = force ? RefitReason.Requested : await DecideAsync(site, from, current, now, cancellationToken);
             if (reason is null)
+            {
+                return (null, null);
+            }
+
+            var grid = await grids.LoadAsync(site, from, now, cancellationToken);
+            if (grid is null)
             {
                 return (null, null);
             }
@@ -181,6 +179,18 @@ public sealed partial class ModelService(
         {
             gate.Release();
         }
+    }
+
+    /// <summary>The background refit decision. It needs counts and a last time only, answered from the reading index
+    /// (the grid's observed steps and its newest one), so a site that is not due costs no read of its rows.</summary>
+    private async Task<RefitReason?> DecideAsync(SiteRecord site, DateTimeOffset from, ModelSummary? current, DateTimeOffset now, CancellationToken cancellationToken)
+    {
+        var steps = await readingSummaries.StepsWithDataAsync(site, from, cancellationToken);
+        var facts = new RefitFacts(
+            site.IsDaily, steps.Count, MinPoints(site), site.SettingsVersion,
+            current?.FittedAt, current?.SettingsVersion, current?.DataPoints, current?.DataEnd,
+            steps.LastAt is { } last ? SiteGridLoader.AlignDown(site, last) : null, now);
+        return RefitPolicy.Decide(facts, refitOptions.Value);
     }
 
     private async Task<RefitOutcome> FitAsync(SiteRecord site, Core.Grid.TimeGrid grid, RefitReason reason, DateTimeOffset now, CancellationToken cancellationToken)
