@@ -178,6 +178,7 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
             var read = watch.Elapsed.TotalMilliseconds;
             watch.Restart();
             var grid = SiteGridLoader.Build(site, readings, from, now);
+            SiteGridLoader.Release(readings);
             var gridMs = watch.Elapsed.TotalMilliseconds;
             watch.Restart();
             SiteModelFitter.Fit(grid, gaussian);

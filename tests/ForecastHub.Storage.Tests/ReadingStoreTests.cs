@@ -122,4 +122,27 @@ public sealed class ReadingStoreTests
         Assert.Equal([1234], native.Select((r, i) => (r, i)).Where(x => x.r.Flagged).Select(x => x.i));
         Assert.Equal(safe, native);
     }
+
+    [Fact]
+    public async Task AGridReadGivenBackToThePoolCannotBeReadAgainAndTheNextReadInTheSameMemoryGivesTheSameRows()
+    {
+        var (db, store) = await WithSite();
+        using var _ = db;
+        // Two years of hourly readings: read in time slices, joined into one pooled array.
+        const long Hour = 3_600_000;
+        var readings = Enumerable.Range(0, 2 * 8_760).Select(i => new IncomingReading(i, i * Hour, Math.Cos(i / 24.0) * 9, Math.Cos(i / 24.0) * 9, "C")).ToArray();
+        await store.IngestAsync("site-a", readings, ConflictPolicy.Reject, Received);
+
+        var first = (await store.ReadGridAsync("site-a", 0, 2 * 8_760 * Hour))!;
+        var copy = first.ToArray();
+        var pooled = Assert.IsType<PooledGridRows>(first);
+        pooled.Dispose();
+        var again = (await store.ReadGridAsync("site-a", 0, 2 * 8_760 * Hour))!;
+
+        Assert.Throws<ObjectDisposedException>(() => pooled[0]);
+        Assert.Equal(readings.Select(r => r.ValueC), copy.Select(r => r.ValueC));
+        Assert.Equal(copy, again);
+        ((IDisposable)again).Dispose();
+        ((IDisposable)again).Dispose();
+    }
 }

@@ -121,6 +121,7 @@ public sealed class ForecastService(
         // An archive that ended before the recent window: forecast from its last data, every missing step counted.
         if (readings.Count == 0 && await grids.NewestAsync(site, cancellationToken) is { } newest && newest < from)
         {
+            SiteGridLoader.Release(readings);
             from = newest - recentWindow;
             readings = await grids.ReadAsync(site, from, to, cancellationToken) ?? [];
         }
@@ -128,6 +129,7 @@ public sealed class ForecastService(
         // The grid runs up to now, so steps with no data at its end are seen: the core forecasts from
         // the last value, counts horizons from there (wider intervals) and reports the missing steps.
         var grid = SiteGridLoader.Build(site, readings, from, to);
+        SiteGridLoader.Release(readings);
         return grid.LastValueIndex < 0 ? null : grid;
     }
 

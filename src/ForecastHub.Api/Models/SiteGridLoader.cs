@@ -16,8 +16,19 @@ public sealed class SiteGridLoader(IReadingStore readings, IReadingSummaryStore 
     public async Task<TimeGrid?> LoadAsync(SiteRecord site, DateTimeOffset from, DateTimeOffset to, CancellationToken cancellationToken)
     {
         var all = await ReadAsync(site, from, to, cancellationToken);
-        return all is null ? null : Build(site, all, from, to);
+        try
+        {
+            return all is null ? null : Build(site, all, from, to);
+        }
+        finally
+        {
+            Release(all);
+        }
     }
+
+    /// <summary>Gives back the memory of rows read by <see cref="ReadAsync"/> once the caller is done with them (a store may
+    /// hand out rows in pooled memory, <see cref="IReadingStore.ReadGridAsync"/>); rows never released are left to the collector.</summary>
+    public static void Release(IReadOnlyList<GridReading>? rows) => (rows as IDisposable)?.Dispose();
 
     /// <summary>The time of the site's newest stored reading; null when it has none (or does not exist).</summary>
     public async Task<DateTimeOffset?> NewestAsync(SiteRecord site, CancellationToken cancellationToken)

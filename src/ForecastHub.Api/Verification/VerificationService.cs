@@ -65,6 +65,7 @@ public sealed class VerificationService(
                 Thresholds = thresholds,
                 Night = site.Risk.Night,
             }), thresholds);
+            SiteGridLoader.Release(readings);
             backtests[site.Id] = (site.Key, model.Stored.FittedAt, site.Risk.Key, backtest);
         }
 

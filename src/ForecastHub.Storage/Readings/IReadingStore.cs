@@ -19,7 +19,9 @@ public interface IReadingStore
         CancellationToken cancellationToken = default);
 
     /// <summary>Every reading in [<paramref name="fromMs"/>, <paramref name="toMs"/>) in time order, with only what a
-    /// grid needs (time, value in °C, whether QC flagged it), read in one snapshot. Null when the site does not exist.</summary>
+    /// grid needs (time, value in °C, whether QC flagged it), read in one snapshot. Null when the site does not exist.
+    /// The list may hold pooled memory and be <see cref="IDisposable"/>: a caller done with it disposes it (reading it
+    /// afterwards throws); one that does not leaves it to the collector.</summary>
     Task<IReadOnlyList<GridReading>?> ReadGridAsync(string siteId, long fromMs, long toMs, CancellationToken cancellationToken = default);
 
     /// <summary>First and last reading times; null when the site has no readings or does not exist.</summary>

@@ -68,7 +68,7 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
             var slices = GridReadSlices(fromMs, toMs);
             var parts = database.ReadPartsOnSnapshot(connection, transaction, slices, (reader, _, i) =>
                 ReadGridRows(reader, site.Value.Key, SliceBound(fromMs, toMs, slices, i), SliceBound(fromMs, toMs, slices, i + 1), SqliteRowCalls.Available));
-            return Concatenate(parts);
+            return PooledGridRows.Join(parts);
         }));
 
     /// <summary>Rows per slice of a grid read, at one reading an hour: below it, a second connection costs more than it saves.</summary>
@@ -82,24 +82,6 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
 
     private static long SliceBound(long fromMs, long toMs, int slices, int i) =>
         i == slices ? toMs : fromMs + ((toMs - fromMs) / slices * i);
-
-    private static IReadOnlyList<GridReading> Concatenate(ArraySegment<GridReading>[] parts)
-    {
-        if (parts.Length == 1)
-        {
-            return parts[0];
-        }
-
-        var all = GC.AllocateUninitializedArray<GridReading>(parts.Sum(p => p.Count));
-        var at = 0;
-        foreach (var part in parts)
-        {
-            part.CopyTo(all, at);
-            at += part.Count;
-        }
-
-        return all;
-    }
 
     /// <summary>Straight on SQLite's statement API: a refit reads ten years of hourly rows, and the data reader's
     /// per-column checks cost more than the engine's scan.</summary>
@@ -115,9 +97,9 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
         {
             SqliteException.ThrowExceptionForRC(
                 raw.sqlite3_bind_int64(statement, 1, siteKey) | raw.sqlite3_bind_int64(statement, 2, fromMs) | raw.sqlite3_bind_int64(statement, 3, toMs), db);
-            // Sized for one reading an hour, so ten years are read without growing and copying. Not zeroed first: only the
-            // rows read are handed out (a segment of exactly count), so the tail is never seen.
-            var rows = GC.AllocateUninitializedArray<GridReading>((int)Math.Clamp(HoursIn(fromMs, toMs) + 1, 1024, 1 << 17));
+            // Sized for one reading an hour, so ten years are read without growing and copying; rented, so a refit's rows
+            // land in memory already paged in. Not cleared: only the rows read are handed out, so the tail is never seen.
+            var rows = PooledGridRows.Rent((int)Math.Clamp(HoursIn(fromMs, toMs) + 1, 1024, 1 << 17));
             var count = 0;
             int step;
             if (nativeCalls)
@@ -141,7 +123,10 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
             {
                 if (count == rows.Length)
                 {
-                    Array.Resize(ref rows, rows.Length * 2);
+                    var larger = PooledGridRows.Rent(rows.Length * 2);
+                    rows.AsSpan().CopyTo(larger);
+                    PooledGridRows.Return(rows);
+                    rows = larger;
                 }
 
                 rows[count++] = new GridReading(DateTimeOffset.FromUnixTimeMilliseconds(timeMs), valueC, flags != 0);
