@@ -35,9 +35,6 @@ public sealed class PooledGridRows : IReadOnlyList<GridReading>, IDisposable
         }
     }
 
-    /// <summary>The rows as a span, valid until <see cref="Dispose"/>.</summary>
-    public ReadOnlySpan<GridReading> Span => Rows.AsSpan(0, Count);
-
     private GridReading[] Rows => rows ?? throw new ObjectDisposedException(nameof(PooledGridRows));
 
     /// <summary>An array of at least <paramref name="length"/> rows from the pool; not cleared.</summary>
