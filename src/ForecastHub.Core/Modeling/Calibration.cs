@@ -37,9 +37,9 @@ public static class Calibration
     private static readonly double CellsPerUnitScore = SegmentCells / (Scores[^2] - Scores[1]);
     private static readonly byte[] CellSegments = BuildCellSegments();
 
-    /// <summary>How far a table may be carried: the backtest's refit interval (<see cref="Verification.BacktestOptions.RefitEveryDays"/>),
+    /// <summary>How far a table may be carried: the backtest's refit interval (<see cref="Verification.BacktestOptions.DefaultRefitEveryDays"/>),
     /// so a carried table is no older than the tables behind the documented coverage figures.</summary>
-    public static readonly TimeSpan DefaultCarryLimit = TimeSpan.FromDays(7);
+    public static readonly TimeSpan DefaultCarryLimit = TimeSpan.FromDays(Verification.BacktestOptions.DefaultRefitEveryDays);
 
     /// <summary>A table is rebuilt once the window's point count has moved this fraction from the count it was built on (common practice, no source).</summary>
     public const double CarryPointsTolerance = 0.05;

@@ -14,7 +14,10 @@ public sealed record BacktestOptions
 
     public required int Days { get; init; }
 
-    public int RefitEveryDays { get; init; } = 7;
+    /// <summary>The refit interval when none is given; also how far a service refit may carry a calibration table.</summary>
+    public const int DefaultRefitEveryDays = 7;
+
+    public int RefitEveryDays { get; init; } = DefaultRefitEveryDays;
 
     public IReadOnlyList<double> Levels { get; init; } = [0.8, 0.95];
 
