@@ -113,6 +113,23 @@ public abstract class ReadingStoreContract : StorageContract
     }
 
     [Fact]
+    public async Task AnIngestNamesTheEarliestTimeItWroteIncludingAStoredNeighbourItFlagged()
+    {
+        await CreateSiteAsync();
+        var first = await Backend.Readings.IngestAsync("site-a", Hourly(Start.AddHours(1), 10.5, 40), ConflictPolicy.Reject, Start);
+        Assert.Equal(Ms(Start.AddHours(1)), first!.EarliestChangeMs);
+
+        // An earlier reading is written; the next one makes the stored 40 a spike, so that row is the earliest written.
+        Assert.Equal(Ms(Start), (await Backend.Readings.IngestAsync("site-a", Hourly(Start, 10), ConflictPolicy.Reject, Start))!.EarliestChangeMs);
+        Assert.Equal(Ms(Start.AddHours(2)), (await Backend.Readings.IngestAsync("site-a", Hourly(Start.AddHours(3), 11), ConflictPolicy.Reject, Start))!.EarliestChangeMs);
+
+        // A duplicate and a refused conflict write nothing; a replacement writes its own time.
+        Assert.Null((await Backend.Readings.IngestAsync("site-a", Hourly(Start, 10), ConflictPolicy.Reject, Start))!.EarliestChangeMs);
+        Assert.Null((await Backend.Readings.IngestAsync("site-a", Hourly(Start, 12), ConflictPolicy.Reject, Start))!.EarliestChangeMs);
+        Assert.Equal(Ms(Start.AddHours(1)), (await Backend.Readings.IngestAsync("site-a", Hourly(Start.AddHours(1), 10.25), ConflictPolicy.Replace, Start))!.EarliestChangeMs);
+    }
+
+    [Fact]
     public async Task AFlatLineIsFlaggedOnEveryReadingOfTheRun()
     {
         await CreateSiteAsync();

@@ -10,7 +10,7 @@ namespace ForecastHub.Api.Cluster;
 /// (heard as a <see cref="ChangeNotice"/>) reaches it: the site records, the parsed models, the
 /// versions cached forecasts are keyed on, and verified API keys.
 /// </summary>
-public sealed class NodeCaches(SiteVersions versions, ModelService models, ApiKeyCache keys)
+public sealed class NodeCaches(SiteVersions versions, ModelService models, ApiKeyCache keys, WindowRowCache fitWindows)
 {
     /// <summary>Set when the site store is decorated with its cache.</summary>
     public CachedSiteStore? Sites { get; set; }
@@ -22,10 +22,12 @@ public sealed class NodeCaches(SiteVersions versions, ModelService models, ApiKe
             case ChangeKind.Site:
                 Sites?.Forget(notice.Id);
                 models.Forget(notice.Id);
+                fitWindows.Forget(notice.Id);
                 versions.DataChanged(notice.Id);
                 versions.ModelChanged(notice.Id);
                 break;
             case ChangeKind.Data:
+                fitWindows.Forget(notice.Id);
                 versions.DataChanged(notice.Id);
                 break;
             case ChangeKind.Model:
@@ -43,6 +45,7 @@ public sealed class NodeCaches(SiteVersions versions, ModelService models, ApiKe
     {
         Sites?.Forget(null);
         models.Forget(null);
+        fitWindows.Forget(null);
         versions.AllChanged();
         keys.Clear();
     }

@@ -162,7 +162,7 @@ public sealed partial class ModelService(
                 return (null, null);
             }
 
-            var grid = await grids.LoadAsync(site, from, now, cancellationToken);
+            var grid = await grids.LoadFitWindowAsync(site, from, now, cancellationToken);
             if (grid is null)
             {
                 return (null, null);

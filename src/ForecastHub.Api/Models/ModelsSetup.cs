@@ -1,6 +1,7 @@
 using ForecastHub.Api.Hosting;
 using ForecastHub.Api.Metrics;
 using ForecastHub.Core.Health;
+using ForecastHub.Storage;
 using ForecastHub.Storage.Health;
 using ForecastHub.Storage.Readings;
 using ForecastHub.Storage.Sites;
@@ -24,13 +25,17 @@ public static class ModelsSetup
 
         services.AddSingleton<SiteVersions>();
         services.AddSingleton<RefitQueue>();
+        // Off on PostgreSQL: other nodes' writes are heard of only after they commit (WindowRowCache).
+        services.AddSingleton(sp => new WindowRowCache(sp.GetRequiredService<IOptions<StorageOptions>>().Value.IsPostgres
+            ? 0 : sp.GetRequiredService<IOptions<RefitOptions>>().Value.WindowCacheMegabytes * 1024L * 1024L));
         services.Decorate<IReadingStore>((sp, inner) => new NotifyingReadingStore(inner,
-            sp.GetRequiredService<SiteVersions>(), sp.GetRequiredService<RefitQueue>(), sp.GetRequiredService<ServiceMetrics>()));
+            sp.GetRequiredService<SiteVersions>(), sp.GetRequiredService<RefitQueue>(), sp.GetRequiredService<ServiceMetrics>(), sp.GetRequiredService<WindowRowCache>()));
         services.Decorate<ISiteStore>((sp, inner) => new NotifyingSiteStore(inner,
-            sp.GetRequiredService<SiteVersions>(), sp.GetRequiredService<RefitQueue>(), sp.GetRequiredService<ModelService>()));
+            sp.GetRequiredService<SiteVersions>(), sp.GetRequiredService<RefitQueue>(), sp.GetRequiredService<ModelService>(), sp.GetRequiredService<WindowRowCache>()));
 
         // The grid loader and model service read through the decorated stores; reads pass straight through.
-        services.AddSingleton(sp => new SiteGridLoader(sp.GetRequiredService<IReadingStore>(), sp.GetRequiredService<IReadingSummaryStore>()));
+        services.AddSingleton(sp => new SiteGridLoader(sp.GetRequiredService<IReadingStore>(), sp.GetRequiredService<IReadingSummaryStore>(),
+            sp.GetRequiredService<WindowRowCache>()));
         services.AddSingleton<ModelService>();
         services.AddSingleton<RefitWorker>();
         services.AddHostedService(sp => sp.GetRequiredService<RefitWorker>());

@@ -9,13 +9,26 @@ namespace ForecastHub.Api.Models;
 /// <summary>
 /// The reading store as the service sees it: after readings are durable it bumps the site's data
 /// version, counts the outcomes, and asks the refit queue to look at the site (never waiting for a fit).
+/// The window row cache hears of the write before it starts and of what it wrote when it ends.
 /// </summary>
-public sealed class NotifyingReadingStore(IReadingStore inner, SiteVersions versions, RefitQueue queue, ServiceMetrics metrics) : IReadingStore
+public sealed class NotifyingReadingStore(IReadingStore inner, SiteVersions versions, RefitQueue queue, ServiceMetrics metrics, WindowRowCache fitWindows) : IReadingStore
 {
     public async Task<IngestResult?> IngestAsync(string siteId, IReadOnlyList<IncomingReading> readings, ConflictPolicy policy,
         DateTimeOffset receivedAt, long? siteKey = null, CancellationToken cancellationToken = default)
     {
-        var result = await inner.IngestAsync(siteId, readings, policy, receivedAt, siteKey, cancellationToken);
+        IngestResult? result = null;
+        var failed = true;
+        fitWindows.WriteStarting(siteId);
+        try
+        {
+            result = await inner.IngestAsync(siteId, readings, policy, receivedAt, siteKey, cancellationToken);
+            failed = false;
+        }
+        finally
+        {
+            fitWindows.WriteEnded(siteId, result?.EarliestChangeMs, failed);
+        }
+
         if (result is null)
         {
             return null;
@@ -55,7 +68,7 @@ public sealed class NotifyingReadingStore(IReadingStore inner, SiteVersions vers
 }
 
 /// <summary>The site store as the service sees it: a settings change queues a refit; a deletion invalidates cached answers.</summary>
-public sealed class NotifyingSiteStore(ISiteStore inner, SiteVersions versions, RefitQueue queue, ModelService models) : ISiteStore
+public sealed class NotifyingSiteStore(ISiteStore inner, SiteVersions versions, RefitQueue queue, ModelService models, WindowRowCache fitWindows) : ISiteStore
 {
     public Task<bool> CreateAsync(SiteRecord site, CancellationToken cancellationToken = default) => inner.CreateAsync(site, cancellationToken);
 
@@ -84,6 +97,7 @@ public sealed class NotifyingSiteStore(ISiteStore inner, SiteVersions versions, 
         {
             // Bumping (not forgetting) keeps a re-created site with the same id from meeting old cached answers.
             models.Forget(id);
+            fitWindows.Forget(id);
             versions.DataChanged(id);
             versions.ModelChanged(id);
         }

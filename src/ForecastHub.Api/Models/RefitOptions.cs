@@ -30,6 +30,10 @@ public sealed class RefitOptions
     /// <summary>Parsed models kept in memory; beyond this an arbitrary one is dropped and read again from storage when next used.</summary>
     public int MaxLoadedModels { get; set; } = 500;
 
+    /// <summary>Memory for the rows of recently fitted windows (WindowRowCache), so a refit after new readings reads only the newer
+    /// rows; 32 MiB holds about eleven ten-year hourly windows. Zero turns the cache off; it is always off on PostgreSQL.</summary>
+    public int WindowCacheMegabytes { get; set; } = 32;
+
     /// <summary>Throws naming the first setting out of range; called at start.</summary>
     public void Validate()
     {
@@ -51,6 +55,11 @@ public sealed class RefitOptions
         if (CalibrationCarry < TimeSpan.Zero || CalibrationCarry > TimeSpan.FromDays(366))
         {
             throw new ArgumentException("Refit:CalibrationCarry must be between 0 and 366 days.", nameof(CalibrationCarry));
+        }
+
+        if (WindowCacheMegabytes is < 0 or > 65_536)
+        {
+            throw new ArgumentException("Refit:WindowCacheMegabytes must be between 0 and 65536.", nameof(WindowCacheMegabytes));
         }
 
         if (ModelMaxAge <= TimeSpan.Zero || SweepInterval <= TimeSpan.Zero)

@@ -6,16 +6,31 @@ using ForecastHub.Storage.Sites;
 namespace ForecastHub.Api.Models;
 
 /// <summary>Reads a site's stored readings and turns them into its regular grid.</summary>
-public sealed class SiteGridLoader(IReadingStore readings, IReadingSummaryStore summaries)
+public sealed class SiteGridLoader(IReadingStore readings, IReadingSummaryStore summaries, WindowRowCache? fitWindows = null)
 {
     /// <summary>
     /// The grid over [<paramref name="from"/>, <paramref name="to"/>): steps after the newest reading
     /// up to <paramref name="to"/> are present and missing, so a caller sees a missing tail.
     /// Null when the site does not exist.
     /// </summary>
-    public async Task<TimeGrid?> LoadAsync(SiteRecord site, DateTimeOffset from, DateTimeOffset to, CancellationToken cancellationToken)
+    public Task<TimeGrid?> LoadAsync(SiteRecord site, DateTimeOffset from, DateTimeOffset to, CancellationToken cancellationToken) =>
+        BuildAsync(site, from, to, ReadAsync(site, from, to, cancellationToken));
+
+    /// <summary>As <see cref="LoadAsync"/>, for a refit's fit window: the rows come through the <see cref="WindowRowCache"/>, so a
+    /// refit after new readings reads only the rows newer than the ones it holds.</summary>
+    public Task<TimeGrid?> LoadFitWindowAsync(SiteRecord site, DateTimeOffset from, DateTimeOffset to, CancellationToken cancellationToken)
     {
-        var all = await ReadAsync(site, from, to, cancellationToken);
+        ArgumentNullException.ThrowIfNull(site);
+        var rows = fitWindows is null
+            ? ReadAsync(site, from, to, cancellationToken)
+            : fitWindows.ReadAsync(site, from.ToUnixTimeMilliseconds(), to.ToUnixTimeMilliseconds(),
+                (fromMs, toMs, ct) => readings.ReadGridAsync(site.Id, fromMs, toMs, ct), cancellationToken);
+        return BuildAsync(site, from, to, rows);
+    }
+
+    private static async Task<TimeGrid?> BuildAsync(SiteRecord site, DateTimeOffset from, DateTimeOffset to, Task<IReadOnlyList<GridReading>?> rows)
+    {
+        var all = await rows;
         try
         {
             return all is null ? null : Build(site, all, from, to);

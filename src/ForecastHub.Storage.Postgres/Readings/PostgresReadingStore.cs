@@ -42,7 +42,7 @@ public sealed class PostgresReadingStore(PostgresDatabase database) : IReadingSt
             {
                 await new ChangeNotice(ChangeKind.Data, siteId).SendAsync(connection, transaction, cancellationToken).ConfigureAwait(false);
             }
-            return new IngestResult(plan.Outcomes);
+            return plan.Result();
         }, cancellationToken);
     }
 

@@ -181,4 +181,11 @@ public static class IngestPlanner
 /// <summary>Rows to insert, stored rows to rewrite (new value or new flags), and the outcome of each
 /// incoming reading.</summary>
 public sealed record IngestPlan(IReadOnlyList<StoredReading> Inserts, IReadOnlyList<StoredReading> Updates,
-    IReadOnlyList<ReadingOutcome> Outcomes);
+    IReadOnlyList<ReadingOutcome> Outcomes)
+{
+    /// <summary>The result once the plan is written: its outcomes and the earliest time it writes.</summary>
+    public IngestResult Result() => new(Outcomes)
+    {
+        EarliestChangeMs = Inserts.Concat(Updates).Select(r => (long?)r.TimeMs).Min(),
+    };
+}

@@ -32,4 +32,9 @@ public enum ReadingOutcomeKind
 public readonly record struct ReadingOutcome(ReadingOutcomeKind Kind, QualityFlags Flags, double? StoredValueC);
 
 /// <summary>Outcomes in the order of the incoming readings.</summary>
-public sealed record IngestResult(IReadOnlyList<ReadingOutcome> Outcomes);
+public sealed record IngestResult(IReadOnlyList<ReadingOutcome> Outcomes)
+{
+    /// <summary>The earliest reading time the ingest wrote: a new or replaced reading, or a stored neighbour given a
+    /// spike or flat-line flag by it. Null when nothing was written. Rows before it are as they were.</summary>
+    public long? EarliestChangeMs { get; init; }
+}

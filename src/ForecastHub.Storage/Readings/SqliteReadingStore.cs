@@ -30,7 +30,7 @@ public sealed class SqliteReadingStore(SqliteDatabase database) : IReadingStore
             var plan = IngestPlanner.Plan(stored, readings, policy, limits);
             Insert(connection, key, plan.Inserts, receivedAt.ToUnixTimeMilliseconds());
             Update(connection, transaction, key, plan.Updates, receivedAt.ToUnixTimeMilliseconds());
-            return new IngestResult(plan.Outcomes);
+            return plan.Result();
         }, cancellationToken);
     }
 

@@ -21,8 +21,8 @@ public sealed class RefitDecisionTests
         var reads = new ConcurrentQueue<(long FromMs, long ToMs)>();
         await using var factory = new ApiFactory
         {
-            // No background worker: the checks below are the only refit decisions.
-            Settings = new Dictionary<string, string?> { ["Refit:Enabled"] = "false" },
+            // No background worker: the checks below are the only refit decisions. No window row cache: every fit reads its window.
+            Settings = new Dictionary<string, string?> { ["Refit:Enabled"] = "false", ["Refit:WindowCacheMegabytes"] = "0" },
             TestServices = services => services.AddSingleton<IReadingStore>(sp =>
                 new RecordingReadingStore(sp.GetRequiredKeyedService<IReadingStore>(StorageOptions.Sqlite), reads)),
         };
