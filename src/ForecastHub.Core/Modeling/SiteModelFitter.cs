@@ -79,19 +79,25 @@ public static class SiteModelFitter
         SiteModel? model = null;
         CalibrationTable? table = null;
         var calibrationNotes = new List<string>();
+        Together(
+            () => model = FitCore(window, settings, design, x, notes, diagnostics: true),
+            () => table = Calibration.Build(window, design, settings, x, calibrationNotes));
+
+        return model! with { Calibration = table is null ? null : table with { BuiltOn = model.Window }, Notes = [.. model.Notes, .. calibrationNotes] };
+    }
+
+    /// <summary>Runs two independent steps side by side; the caller sees a step's problem (too few points, say) as when they ran
+    /// one after the other.</summary>
+    private static void Together(Action first, Action second)
+    {
         try
         {
-            Parallel.Invoke(
-                () => model = FitCore(window, settings, design, x, notes, diagnostics: true),
-                () => table = Calibration.Build(window, design, settings, x, calibrationNotes));
+            Parallel.Invoke(first, second);
         }
         catch (AggregateException error)
         {
-            // The caller sees the main fit's problem (too few points, say) as when the steps ran one after the other.
             ExceptionDispatchInfo.Throw(error.InnerExceptions.FirstOrDefault(e => e is SeriesException) ?? error.InnerExceptions[0]);
         }
-
-        return model! with { Calibration = table is null ? null : table with { BuiltOn = model.Window }, Notes = [.. model.Notes, .. calibrationNotes] };
     }
 
     /// <summary>Annual terms need a year of data; diurnal terms an hourly grid (DESIGN.md section 3).</summary>
@@ -195,12 +201,23 @@ public static class SiteModelFitter
             n);
         var anomalySegments = window.Split(anomalies);
         var residuals = ArFit.Residuals(ar, anomalySegments);
-        var varianceSeason = FitVarianceSeason(window, residuals, ar.Order, design, x);
-        var residualDiagnostics = diagnostics ? Diagnose(residuals, ar.Order, cadence) : new ResidualDiagnostics(null, null, ResidualSummary.Of(residuals));
-        var acfLags = Math.Min(Math.Max(selection.MaxOrder, 1), n - 1);
-        var acf = diagnostics ? Autocorrelation.Acf(anomalySegments, acfLags).Skip(1).Select((r, k) => new LagValue(k + 1, r)).ToArray() : [];
+        VarianceSeason? varianceSeason = null;
+        var residualDiagnostics = new ResidualDiagnostics(null, null, ResidualSummary.Of(residuals));
+        LagValue[] acf = [];
+        // The variance season and the diagnostics read the same residuals and nothing of each other: side by side.
+        Together(
+            () => varianceSeason = FitVarianceSeason(window, residuals, ar.Order, design, x),
+            () =>
+            {
+                if (diagnostics)
+                {
+                    residualDiagnostics = Diagnose(residuals, ar.Order, cadence);
+                    var acfLags = Math.Min(Math.Max(selection.MaxOrder, 1), n - 1);
+                    acf = [.. Autocorrelation.Acf(anomalySegments, acfLags).Skip(1).Select((r, k) => new LagValue(k + 1, r))];
+                }
+            });
         var fitWindow = new FitWindow(window.Times[0], window.Times[^1], n, window.Interpolated.AsSpan().Count(true), window.Segments.Length);
-        return new SiteModel(cadence, design.TimeZone, settings, fitWindow, climatology, ar, selection, varianceSeason, null, residualDiagnostics, acf, [.. notes]);
+        return new SiteModel(cadence, design.TimeZone, settings, fitWindow, climatology, ar, selection, varianceSeason!, null, residualDiagnostics, acf, [.. notes]);
     }
 
     private static OrderSelectionResult Select(SeriesWindow window, double[] anomalies, ModelSettings settings) =>
