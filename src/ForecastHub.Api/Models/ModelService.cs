@@ -139,7 +139,9 @@ public sealed partial class ModelService(
         await gate.WaitAsync(cancellationToken);
         try
         {
-            var now = clock.GetUtcNow();
+            // Whole milliseconds, as stored: the model kept in memory then has the stored model's time, so a later check
+            // does not take it for one another node stored and drop it.
+            var now = DateTimeOffset.FromUnixTimeMilliseconds(clock.GetUtcNow().ToUnixTimeMilliseconds());
             // Counted back from the newest reading, so a site holding only an old archive is fitted on it.
             var from = await grids.WindowStartAsync(site, site.Model.FitWindowDays, now, cancellationToken);
 

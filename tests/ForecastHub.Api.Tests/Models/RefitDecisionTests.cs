@@ -50,6 +50,26 @@ public sealed class RefitDecisionTests
         Assert.Single(reads, r => r.ToMs - r.FromMs >= WindowLongMs);
     }
 
+    [Fact]
+    public async Task ACheckAfterARefitKeepsTheModelInMemoryOnAClockFinerThanAMillisecond()
+    {
+        await using var factory = new ApiFactory { Settings = new Dictionary<string, string?> { ["Refit:Enabled"] = "false" } };
+        using var client = factory.CreateAdminClient();
+        await client.CreateHourlySiteAsync("checked");
+        await factory.IngestAsync("checked", ModelScenario.History(factory, days: 20));
+        // The system clock has ticks below a millisecond; the store keeps whole milliseconds.
+        factory.Clock.Advance(TimeSpan.FromTicks(1234));
+        await client.RefitAsync("checked");
+        var models = factory.Services.GetRequiredService<ModelService>();
+        var site = (await factory.Services.GetRequiredService<ISiteStore>().GetAsync("checked"))!;
+        Assert.True(models.IsLoaded("checked"));
+
+        var (reason, _) = await models.RefitIfDueAsync(site, force: false, CancellationToken.None);
+
+        Assert.Null(reason);
+        Assert.True(models.IsLoaded("checked"));
+    }
+
     /// <summary>The real store, with the ranges of its grid reads written down.</summary>
     private sealed class RecordingReadingStore(IReadingStore inner, ConcurrentQueue<(long FromMs, long ToMs)> reads) : IReadingStore
     {
