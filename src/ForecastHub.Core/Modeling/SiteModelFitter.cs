@@ -202,22 +202,19 @@ public static class SiteModelFitter
         var anomalySegments = window.Split(anomalies);
         var residuals = ArFit.Residuals(ar, anomalySegments);
         VarianceSeason? varianceSeason = null;
-        var residualDiagnostics = new ResidualDiagnostics(null, null, ResidualSummary.Of(residuals));
+        ResidualDiagnostics? residualDiagnostics = null;
         LagValue[] acf = [];
+        var acfLags = Math.Min(Math.Max(selection.MaxOrder, 1), n - 1);
         // The variance season and the diagnostics read the same residuals and nothing of each other: side by side.
         Together(
             () => varianceSeason = FitVarianceSeason(window, residuals, ar.Order, design, x),
             () =>
             {
-                if (diagnostics)
-                {
-                    residualDiagnostics = Diagnose(residuals, ar.Order, cadence);
-                    var acfLags = Math.Min(Math.Max(selection.MaxOrder, 1), n - 1);
-                    acf = [.. Autocorrelation.Acf(anomalySegments, acfLags).Skip(1).Select((r, k) => new LagValue(k + 1, r))];
-                }
+                residualDiagnostics = diagnostics ? Diagnose(residuals, ar.Order, cadence) : new ResidualDiagnostics(null, null, ResidualSummary.Of(residuals));
+                acf = diagnostics ? [.. Autocorrelation.Acf(anomalySegments, acfLags).Skip(1).Select((r, k) => new LagValue(k + 1, r))] : [];
             });
         var fitWindow = new FitWindow(window.Times[0], window.Times[^1], n, window.Interpolated.AsSpan().Count(true), window.Segments.Length);
-        return new SiteModel(cadence, design.TimeZone, settings, fitWindow, climatology, ar, selection, varianceSeason!, null, residualDiagnostics, acf, [.. notes]);
+        return new SiteModel(cadence, design.TimeZone, settings, fitWindow, climatology, ar, selection, varianceSeason!, null, residualDiagnostics!, acf, [.. notes]);
     }
 
     private static OrderSelectionResult Select(SeriesWindow window, double[] anomalies, ModelSettings settings) =>
