@@ -1,4 +1,3 @@
-using System.Runtime.ExceptionServices;
 using ForecastHub.Core.Autoregression;
 using ForecastHub.Core.Climatology;
 using ForecastHub.Core.Correlation;
@@ -79,25 +78,11 @@ public static class SiteModelFitter
         SiteModel? model = null;
         CalibrationTable? table = null;
         var calibrationNotes = new List<string>();
-        Together(
+        SideBySide.Run(
             () => model = FitCore(window, settings, design, x, notes, diagnostics: true),
             () => table = Calibration.Build(window, design, settings, x, calibrationNotes));
 
         return model! with { Calibration = table is null ? null : table with { BuiltOn = model.Window }, Notes = [.. model.Notes, .. calibrationNotes] };
-    }
-
-    /// <summary>Runs two independent steps side by side; the caller sees a step's problem (too few points, say) as when they ran
-    /// one after the other.</summary>
-    private static void Together(Action first, Action second)
-    {
-        try
-        {
-            Parallel.Invoke(first, second);
-        }
-        catch (AggregateException error)
-        {
-            ExceptionDispatchInfo.Throw(error.InnerExceptions.FirstOrDefault(e => e is SeriesException) ?? error.InnerExceptions[0]);
-        }
     }
 
     /// <summary>Annual terms need a year of data; diurnal terms an hourly grid (DESIGN.md section 3).</summary>
@@ -138,15 +123,18 @@ public static class SiteModelFitter
         }
 
         var y = window.Values;
+        var constant = true;
         for (var i = 0; i < n; i++)
         {
             if (!double.IsFinite(y[i]))
             {
                 throw new SeriesException(SeriesProblem.NonFinite, $"Grid value at {window.Times[i]:O} is not finite.");
             }
+
+            constant &= y[i] == y[0];
         }
 
-        if (y.All(v => v == y[0]))
+        if (constant)
         {
             throw new SeriesException(SeriesProblem.Constant, "Every grid value is the same; no anomaly model can be fitted.");
         }
@@ -187,7 +175,7 @@ public static class SiteModelFitter
                 anomalies = Residuals(x!, y, gls.Coefficients, into: anomalies);
                 ar = ArFit.Fit(window.Split(anomalies), selection.ChosenOrder, settings.Method);
                 (coefficients, stdErrors, estimation) = (gls.Coefficients, gls.StdErrors, "gls");
-                residualSd = Math.Sqrt(anomalies.Sum(a => a * a) / (n - design.Columns));
+                residualSd = Math.Sqrt(SumOfSquares(anomalies) / (n - design.Columns));
             }
         }
 
@@ -205,20 +193,32 @@ public static class SiteModelFitter
         ResidualDiagnostics? residualDiagnostics = null;
         LagValue[] acf = [];
         var acfLags = Math.Min(Math.Max(selection.MaxOrder, 1), n - 1);
-        // The variance season and the diagnostics read the same residuals and nothing of each other: side by side.
-        Together(
-            () => varianceSeason = FitVarianceSeason(window, residuals, ar.Order, design, x),
+        // The variance season, the anomalies' ACF and the residual diagnostics need nothing of each other: side by side.
+        SideBySide.Run(
             () =>
             {
-                residualDiagnostics = diagnostics ? Diagnose(residuals, ar.Order, cadence) : new ResidualDiagnostics(null, null, ResidualSummary.Of(residuals));
+                varianceSeason = FitVarianceSeason(window, residuals, ar.Order, design, x);
                 acf = diagnostics ? [.. Autocorrelation.Acf(anomalySegments, acfLags).Skip(1).Select((r, k) => new LagValue(k + 1, r))] : [];
-            });
+            },
+            () => residualDiagnostics = diagnostics ? Diagnose(residuals, ar.Order, cadence) : new ResidualDiagnostics(null, null, ResidualSummary.Of(residuals)));
         var fitWindow = new FitWindow(window.Times[0], window.Times[^1], n, window.Interpolated.AsSpan().Count(true), window.Segments.Length);
         return new SiteModel(cadence, design.TimeZone, settings, fitWindow, climatology, ar, selection, varianceSeason!, null, residualDiagnostics!, acf, [.. notes]);
     }
 
     private static OrderSelectionResult Select(SeriesWindow window, double[] anomalies, ModelSettings settings) =>
         OrderSelection.Select(window.Split(anomalies), settings.Method, settings.OrderPolicy, settings.MaxOrder);
+
+    /// <summary>sum a_i^2 in index order (as Enumerable.Sum would add them).</summary>
+    private static double SumOfSquares(double[] a)
+    {
+        var sum = 0.0;
+        foreach (var v in a)
+        {
+            sum += v * v;
+        }
+
+        return sum;
+    }
 
     private static double[] Residuals(double[][] x, double[] y, double[] beta, double[]? into = null)
     {

@@ -30,13 +30,15 @@ internal sealed class Candidates
         ArMethod method,
         int maxOrder,
         BurgVariance burgVariance,
-        LevinsonPath sample,
-        double[] autocovariances)
+        LevinsonPath? sample,
+        double[]? autocovariances)
     {
         var n = summary.Count;
         switch (method)
         {
             case ArMethod.YuleWalker:
+                ArgumentNullException.ThrowIfNull(sample);
+                ArgumentNullException.ThrowIfNull(autocovariances);
                 return FromVariances(sample.Variances, n, CriteriaSample.AllPoints, order => YuleWalkerEstimator.Model(summary, sample, autocovariances, order));
             case ArMethod.Burg:
                 var burg = BurgEstimator.Path(summary, maxOrder, burgVariance);

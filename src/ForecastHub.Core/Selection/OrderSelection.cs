@@ -38,20 +38,30 @@ public static class OrderSelection
         }
 
         var band = Autocorrelation.Band(n, alpha);
-        var autocovariances = Autocorrelation.Autocovariance(summary, maxOrder);
-        var sample = DurbinLevinson.Run(autocovariances, maxOrder);
+        double[] autocovariances = [];
+        LevinsonPath? sample = null;
+        Candidates? candidates = null;
+        // The sample PACF (the band's cutoff) and the candidates of every method but Yule-Walker, which is built on that
+        // sample, need nothing of each other: side by side.
+        SideBySide.Run(
+            () =>
+            {
+                autocovariances = Autocorrelation.Autocovariance(summary, maxOrder);
+                sample = DurbinLevinson.Run(autocovariances, maxOrder);
+            },
+            () => candidates = method == ArMethod.YuleWalker ? null : Candidates.For(summary, method, maxOrder, burgVariance, sample: null, autocovariances: null));
+        candidates ??= Candidates.For(summary, method, maxOrder, burgVariance, sample, autocovariances);
         var pacf = new LagValue[maxOrder];
         var cutoff = 0;
         for (var k = 1; k <= maxOrder; k++)
         {
-            pacf[k - 1] = new LagValue(k, sample.Partials[k - 1]);
+            pacf[k - 1] = new LagValue(k, sample!.Partials[k - 1]);
             if (Math.Abs(sample.Partials[k - 1]) > band)
             {
                 cutoff = k;
             }
         }
 
-        var candidates = Candidates.For(summary, method, maxOrder, burgVariance, sample, autocovariances);
         var chosen = policy switch
         {
             OrderPolicy.PacfAic => ArgMin(candidates.Criteria, cutoff, c => c.Aic),
