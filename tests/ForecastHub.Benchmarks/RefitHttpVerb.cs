@@ -157,7 +157,7 @@ internal sealed class RefitHttpVerb : IBenchmarkVerb
 
     /// <summary>The steps of a refit (ModelService.RefitIfDueAsync) one by one on the file the server left, after as many
     /// untimed rounds as the server had:
-    /// the window's rows in the service's pages, the same rows through the window row cache (held after the first round), the grid, the core fit without a calibration table, with the table
+    /// the window's rows in the service's pages, the same rows through the window row cache (held from the third round on: kept on a site's second miss), the grid, the core fit without a calibration table, with the table
     /// carried from the round before and with it rebuilt (the calibration folds), the model JSON and the store's save.</summary>
     private static async Task<(double Read, double Grid, double GaussianFit, double CarriedFit, double RebuiltFit, double Json, double Store, double HeldRead)> TimeStagesAsync(string databasePath)
     {

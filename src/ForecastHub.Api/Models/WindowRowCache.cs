@@ -10,6 +10,7 @@ namespace ForecastHub.Api.Models;
 /// An entry holds every stored row of its site from its start to its last row. It is dropped when a write may have
 /// changed a row at or before that last row (<see cref="WriteEnded"/>), when the site is deleted or changed by another
 /// node (<see cref="Forget"/>), and least recently used first beyond the size limit (<c>Refit:WindowCacheMegabytes</c>).
+/// A window read from storage is kept the second time its site misses: a sweep that fits every site once copies nothing.
 /// A read that overlaps a write on this node is served from storage alone: the write may commit between the check
 /// and the read of the newer rows. Writes from other nodes are seen only after they commit, so the cache is off on
 /// PostgreSQL (docs/service.md, "Window row cache").
@@ -22,6 +23,9 @@ public sealed class WindowRowCache(long maxBytes)
     private readonly Dictionary<string, Entry> entries = new(StringComparer.Ordinal);
     private readonly Dictionary<string, int> writesInProgress = new(StringComparer.Ordinal);
     private readonly List<Watch> watches = [];
+    // Sites whose window was read from storage once and not kept; bounded, as a sweep meets every site.
+    private readonly HashSet<string> missedOnce = new(StringComparer.Ordinal);
+    private const int MaxMissesRemembered = 100_000;
     private long bytes;
     private long clock;
 
@@ -108,6 +112,15 @@ public sealed class WindowRowCache(long maxBytes)
                     watch.Disturbed = true;
                 }
             }
+
+            if (siteId is null)
+            {
+                missedOnce.Clear();
+            }
+            else
+            {
+                missedOnce.Remove(siteId);
+            }
         }
     }
 
@@ -149,7 +162,7 @@ public sealed class WindowRowCache(long maxBytes)
             }
 
             var stored = await read(fromMs, toMs, cancellationToken);
-            if (stored is not null)
+            if (stored is not null && MissedBefore(site.Id))
             {
                 Keep(site.Id, Entry.Copy(site.Key, fromMs, stored), watch);
             }
@@ -183,6 +196,26 @@ public sealed class WindowRowCache(long maxBytes)
         finally
         {
             SiteGridLoader.Release(newer);
+        }
+    }
+
+    /// <summary>True when the site's window was read from storage before (and not kept); else remembers this read.</summary>
+    private bool MissedBefore(string siteId)
+    {
+        lock (gate)
+        {
+            if (missedOnce.Remove(siteId))
+            {
+                return true;
+            }
+
+            if (missedOnce.Count >= MaxMissesRemembered)
+            {
+                missedOnce.Clear();
+            }
+
+            missedOnce.Add(siteId);
+            return false;
         }
     }
 

@@ -11,9 +11,10 @@ using Microsoft.Extensions.DependencyInjection;
 namespace ForecastHub.Api.Tests.Models;
 
 /// <summary>
-/// The fit window's rows held between refits (WindowRowCache), on the service's real SQLite file: a refit after new
-/// readings reads only the newer rows and builds the very grid a read of the whole window gives; a write at or before
-/// the rows held, a write overlapping the read, a deleted site and the size limit each send the next read to storage.
+/// The fit window's rows held between refits (WindowRowCache), on the service's real SQLite file: kept the second time a
+/// site's window is read from storage, then a refit after new readings reads only the newer rows and builds the very grid
+/// a read of the whole window gives; a write at or before the rows held, a write overlapping the read, a deleted site and
+/// the size limit each send the next read to storage.
 /// </summary>
 public sealed class WindowRowCacheTests
 {
@@ -63,6 +64,13 @@ public sealed class WindowRowCacheTests
             return (cached, stored, longReads);
         }
 
+        /// <summary>Loads the window twice: the first read from storage is not kept, the second is.</summary>
+        public async Task HoldAsync(SiteRecord site, int windowDays = 30)
+        {
+            await LoadBothAsync(site, windowDays);
+            await LoadBothAsync(site, windowDays);
+        }
+
         public ValueTask DisposeAsync() => Factory.DisposeAsync();
     }
 
@@ -82,6 +90,10 @@ public sealed class WindowRowCacheTests
         var (first, stored, longReads) = await scenario.LoadBothAsync(site);
         AssertSameGrid(stored, first);
         Assert.Equal(1, longReads);
+        // A sweep meets each site once: the first window read is not kept, the second is.
+        Assert.Equal(0, scenario.Cache.Count);
+        Assert.Equal(1, (await scenario.LoadBothAsync(site)).LongReads);
+        Assert.Equal(1, scenario.Cache.Count);
 
         // A day later, a day of readings more: the window moved on and grew at its end.
         scenario.Factory.Clock.Advance(TimeSpan.FromDays(1));
@@ -99,7 +111,7 @@ public sealed class WindowRowCacheTests
     {
         await using var scenario = new Scenario();
         var site = await scenario.SiteWithHistoryAsync("orchard", days: 20);
-        await scenario.LoadBothAsync(site);
+        await scenario.HoldAsync(site);
         var store = scenario.Factory.Services.GetRequiredService<IReadingStore>();
         var older = scenario.Now.AddDays(-3).ToUnixTimeMilliseconds() / 3_600_000 * 3_600_000;
 
@@ -116,6 +128,7 @@ public sealed class WindowRowCacheTests
         var hour = last.Time.ToUnixTimeMilliseconds();
         await store.IngestAsync("orchard", [new IncomingReading(0, hour + 3_600_000, last.ValueC + 25, last.ValueC + 25, "C")], ConflictPolicy.Reject, scenario.Now);
         await scenario.LoadBothAsync(site);
+        Assert.Equal(1, scenario.Cache.Count);
         var spike = await store.IngestAsync("orchard", [new IncomingReading(0, hour + 7_200_000, last.ValueC, last.ValueC, "C")], ConflictPolicy.Reject, scenario.Now);
         Assert.Equal(hour + 3_600_000, spike!.EarliestChangeMs);
         var (flagged, storedFlagged, longReadsFlagged) = await scenario.LoadBothAsync(site);
@@ -147,10 +160,13 @@ public sealed class WindowRowCacheTests
             return raw.ReadGridAsync(site.Id, f, t, ct);
         };
 
+        // Read from storage once (not kept), then again with a write starting meanwhile: still nothing kept.
+        Assert.NotNull(await cache.ReadAsync(site, from, to, plain, CancellationToken.None));
         Assert.NotNull(await cache.ReadAsync(site, from, to, writing, CancellationToken.None));
         Assert.Equal(0, cache.Count);
 
         // Held, then disturbed while its newer rows are read: the read starts again from storage, whole.
+        Assert.NotNull(await cache.ReadAsync(site, from, to, plain, CancellationToken.None));
         Assert.NotNull(await cache.ReadAsync(site, from, to, plain, CancellationToken.None));
         Assert.Equal(1, cache.Count);
         calls.Clear();
@@ -173,7 +189,7 @@ public sealed class WindowRowCacheTests
     {
         await using var scenario = new Scenario();
         var site = await scenario.SiteWithHistoryAsync("orchard", days: 20);
-        await scenario.LoadBothAsync(site);
+        await scenario.HoldAsync(site);
         Assert.Equal(1, scenario.Cache.Count);
 
         using (var client = scenario.Factory.CreateAdminClient())
@@ -187,6 +203,8 @@ public sealed class WindowRowCacheTests
         var (cached, stored, longReads) = await scenario.LoadBothAsync(renewed);
         Assert.Equal(1, longReads);
         AssertSameGrid(stored, cached);
+        Assert.Equal(1, (await scenario.LoadBothAsync(renewed)).LongReads);
+        Assert.Equal(1, scenario.Cache.Count);
 
         scenario.Cache.Forget(null);
         Assert.Equal(0, scenario.Cache.Count);
@@ -201,19 +219,22 @@ public sealed class WindowRowCacheTests
             // Two sites of 650 days hourly, each window more than half of the 1 MiB allowed.
             var a = await scenario.SiteWithHistoryAsync("a", days: 650);
             var b = await scenario.SiteWithHistoryAsync("b", days: 650);
-            await scenario.LoadBothAsync(a, windowDays: 700);
+            await scenario.HoldAsync(a, windowDays: 700);
             Assert.True(scenario.Cache.HeldBytes > 512 * 1024, $"{scenario.Cache.HeldBytes} bytes held");
-            await scenario.LoadBothAsync(b, windowDays: 700);
+            await scenario.HoldAsync(b, windowDays: 700);
             Assert.Equal(1, scenario.Cache.Count);
 
             Assert.Equal(0, (await scenario.LoadBothAsync(b, windowDays: 700)).LongReads);
+            // a went for b: read from storage once more (remembered), then kept, and b goes.
             Assert.Equal(1, (await scenario.LoadBothAsync(a, windowDays: 700)).LongReads);
+            Assert.Equal(1, (await scenario.LoadBothAsync(a, windowDays: 700)).LongReads);
+            Assert.Equal(0, (await scenario.LoadBothAsync(a, windowDays: 700)).LongReads);
             Assert.Equal(1, (await scenario.LoadBothAsync(b, windowDays: 700)).LongReads);
         }
 
         await using var off = new Scenario(cacheMegabytes: "0");
         var site = await off.SiteWithHistoryAsync("a", days: 20);
-        await off.LoadBothAsync(site);
+        await off.HoldAsync(site);
         Assert.Equal(0, off.Cache.Count);
         Assert.Equal(1, (await off.LoadBothAsync(site)).LongReads);
     }
