@@ -83,18 +83,12 @@ internal static class BurgEstimator
                 var u = forward[s];
                 var v = backward[s];
                 var n = segments[s].Length;
-
-                // Chunks from the top down: after a chunk [lo, hi] is updated, v[lo..hi] and u[lo+1..hi+1] are final
-                // (v[hi+1] from the chunk above), so the next order's sums over [lo+1, hi+1] can be taken while in cache.
-                for (var hi = n - 1; hi >= p; hi -= ChunkRows)
-                {
-                    var lo = Math.Max(p, hi - ChunkRows + 1);
-                    errorSum += Update(u, v, lo, hi, phi, withEnergy);
-                    var (num, den) = Sums(v, u, lo + 1, Math.Min(hi + 2, n));
-                    numerator += num;
-                    denominator += den;
-                }
-
+                var (err, num, den) = n >= 2 * MinRowsPerHalf
+                    ? SweepInTwo(u, v, p, n, phi, withEnergy)
+                    : Sweep(u, v, p, n - 1, n, phi, withEnergy);
+                errorSum += err;
+                numerator += num;
+                denominator += den;
                 rows += Math.Max(0, n - p);
             }
 
@@ -109,6 +103,62 @@ internal static class BurgEstimator
         }
 
         return new LevinsonPath(coefficients, withEnergy ? energy : recursion, partials);
+    }
+
+    /// <summary>Rows per half below which one thread sweeps a segment alone (common practice, no source: a half must carry more
+    /// work than handing it to another thread costs, about 10 microseconds an order).</summary>
+    internal const int MinRowsPerHalf = 16_384;
+
+    /// <summary>
+    /// The order-p update of t = hi down to lo in chunks from the top down, and the next order's sums over
+    /// [chunk lo + 1, min(chunk hi + 2, sumsTo)). After a chunk [lo, hi] is updated, v[lo..hi] and u[lo+1..hi+1] are final
+    /// (v[hi+1] from the chunk above), so the sums over it are taken while it is in cache.
+    /// </summary>
+    private static (double Error, double Numerator, double Denominator) Sweep(double[] u, double[] v, int lo, int hi, int sumsTo, double phi, bool withEnergy)
+    {
+        double error = 0, numerator = 0, denominator = 0;
+        for (; hi >= lo; hi -= ChunkRows)
+        {
+            var chunkLo = Math.Max(lo, hi - ChunkRows + 1);
+            error += Update(u, v, chunkLo, hi, phi, withEnergy);
+            var (num, den) = Sums(v, u, chunkLo + 1, Math.Min(hi + 2, sumsTo));
+            numerator += num;
+            denominator += den;
+        }
+
+        return (error, numerator, denominator);
+    }
+
+    /// <summary>
+    /// <see cref="Sweep"/> of a long segment as two halves side by side, split at m: the upper half updates t in [m, n), the lower
+    /// one t in [p, m). The update of t writes u[t + 1], which the update of t + 1 reads first, so the lower half holds its write
+    /// of u[m] back until the upper one has read u[m]; the sum term of t = m, which needs both halves, is added last. Each half's
+    /// u and v fit one core's cache. The halves' sums are added in a fixed order, so any machine gives the same bits (not those
+    /// of one sweep, whose terms are added in another order).
+    /// </summary>
+    private static (double Error, double Numerator, double Denominator) SweepInTwo(double[] u, double[] v, int p, int n, double phi, bool withEnergy)
+    {
+        var m = n / 2;
+        (double Error, double Numerator, double Denominator) lower = default, upper = default;
+        var heldU = 0.0;
+        Parallel.Invoke(
+            () => upper = Sweep(u, v, m, n - 1, n, phi, withEnergy),
+            () =>
+            {
+                // t = m - 1 by hand, its u[m] held back; then the rest of the lower half, whose sums stop below m.
+                var a = u[m - 1];
+                var b = v[m - 1];
+                heldU = a - (phi * b);
+                var vNew = b - (phi * a);
+                v[m - 1] = vNew;
+                var (error, num, den) = Sweep(u, v, p, m - 2, m, phi, withEnergy);
+                lower = (withEnergy ? error + ((vNew * vNew) + (heldU * heldU)) : 0, num, den);
+            });
+        u[m] = heldU;
+        return (
+            lower.Error + upper.Error,
+            lower.Numerator + upper.Numerator + (v[m] * u[m]),
+            lower.Denominator + upper.Denominator + ((v[m] * v[m]) + (u[m] * u[m])));
     }
 
     /// <summary>Order update for t = hi down to lo (see the storage remark); returns sum of the new squared errors when asked.</summary>
