@@ -34,7 +34,7 @@ public sealed class WindowRowCache(long maxBytes)
 
     public bool Enabled => maxBytes > 0;
 
-    /// <summary>Sites held now (for tests and metrics).</summary>
+    /// <summary>Sites held now.</summary>
     public int Count
     {
         get
@@ -46,7 +46,7 @@ public sealed class WindowRowCache(long maxBytes)
         }
     }
 
-    /// <summary>Memory the rows held take now (for tests and metrics).</summary>
+    /// <summary>Memory the rows held take now.</summary>
     public long HeldBytes
     {
         get
@@ -61,6 +61,11 @@ public sealed class WindowRowCache(long maxBytes)
     /// <summary>Called before a write of the site's readings starts; reads until it ends go to storage.</summary>
     public void WriteStarting(string siteId)
     {
+        if (!Enabled)
+        {
+            return;
+        }
+
         lock (gate)
         {
             writesInProgress[siteId] = writesInProgress.GetValueOrDefault(siteId) + 1;
@@ -72,6 +77,11 @@ public sealed class WindowRowCache(long maxBytes)
     /// when it threw, so what it wrote is unknown and the entry goes.</summary>
     public void WriteEnded(string siteId, long? earliestChangeMs, bool failed)
     {
+        if (!Enabled)
+        {
+            return;
+        }
+
         lock (gate)
         {
             var left = writesInProgress.GetValueOrDefault(siteId) - 1;

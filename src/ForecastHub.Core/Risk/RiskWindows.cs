@@ -10,7 +10,8 @@ public sealed record WindowPlan(RiskWindow Window, int FirstHorizon, int LastHor
 
 /// <summary>
 /// The risk windows of a site and the chance of crossing a threshold in each (DESIGN section 10).
-/// Hourly sites: <c>night</c> (the night holding <c>now</c> until its end, else the coming one) and
+/// Hourly sites: <c>night</c> (the night holding <c>now</c> until its end while a forecast step falls in it, else the
+/// coming one) and
 /// <c>next24h</c> (the 24 hourly steps after the newest value). Daily sites: <c>next24h</c> is the next
 /// local day that starts after <c>now</c>, and there is no night. Only forecast steps count: hours of
 /// the window already observed are not reassessed.
@@ -47,6 +48,13 @@ public static class RiskWindows
 
         var (from, to) = NightAround(zone, night, now);
         var nightPlan = Overlap(new RiskWindow(RiskWindow.Night, from, to), times);
+        if (nightPlan is null && from == now)
+        {
+            // The last of the night holds no forecast step (say 08:15, steps from 09:00, the night ending at 09:00): the coming night.
+            (from, to) = NightAround(zone, night, to);
+            nightPlan = Overlap(new RiskWindow(RiskWindow.Night, from, to), times);
+        }
+
         if (nightPlan is not null)
         {
             plans.Add(nightPlan);

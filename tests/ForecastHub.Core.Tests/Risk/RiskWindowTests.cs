@@ -75,6 +75,25 @@ public sealed class RiskWindowTests
     }
 
     [Fact]
+    public void InTheLastHourOfANightThatNoForecastStepReachesTheNightWindowIsTheComingNight()
+    {
+        // 08:15 in Berlin, the night ending at 09:00, the first forecast step starting at 09:00.
+        var now = new DateTimeOffset(2024, 3, 5, 8, 15, 0, TimeSpan.FromHours(1));
+        var times = Enumerable.Range(0, 48).Select(k => new DateTimeOffset(2024, 3, 5, 9, 0, 0, TimeSpan.FromHours(1)).AddHours(k)).ToArray();
+
+        var night = Assert.Single(RiskWindows.Plan(GridCadence.Hourly, Zone, NightHours.Default, now, times), p => p.Window.Name == RiskWindow.Night);
+
+        Assert.Equal(new DateTimeOffset(2024, 3, 5, 18, 0, 0, TimeSpan.FromHours(1)), night.Window.From);
+        Assert.Equal(new DateTimeOffset(2024, 3, 6, 9, 0, 0, TimeSpan.FromHours(1)), night.Window.To);
+        Assert.Equal((10, 24), (night.FirstHorizon, night.LastHorizon));
+
+        // A step still inside the night (from 08:00) keeps the current night, until its end.
+        var fromEight = times.Select(t => t.AddHours(-1)).ToArray();
+        var current = Assert.Single(RiskWindows.Plan(GridCadence.Hourly, Zone, NightHours.Default, now, fromEight), p => p.Window.Name == RiskWindow.Night);
+        Assert.Equal((now, new DateTimeOffset(2024, 3, 5, 9, 0, 0, TimeSpan.FromHours(1))), (current.Window.From, current.Window.To));
+    }
+
+    [Fact]
     public void StepProbabilitiesAreTheGaussianCdfForAGaussianModelAndRiskIsEmptyWithoutThresholds()
     {
         var (grid, model) = Berlin.Value;
