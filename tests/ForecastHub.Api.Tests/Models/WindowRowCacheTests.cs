@@ -1,6 +1,7 @@
 using System.Collections.Concurrent;
 using ForecastHub.Api.Models;
 using ForecastHub.Api.Tests.Infrastructure;
+using ForecastHub.Api.Tests.TestSupport;
 using ForecastHub.Core.Grid;
 using ForecastHub.Storage;
 using ForecastHub.Storage.Readings;
@@ -237,24 +238,5 @@ public sealed class WindowRowCacheTests
         await off.HoldAsync(site);
         Assert.Equal(0, off.Cache.Count);
         Assert.Equal(1, (await off.LoadBothAsync(site)).LongReads);
-    }
-
-    /// <summary>The real store, with the ranges of its grid reads written down.</summary>
-    private sealed class RecordingReadingStore(IReadingStore inner, ConcurrentQueue<(long FromMs, long ToMs)> reads) : IReadingStore
-    {
-        public Task<IngestResult?> IngestAsync(string siteId, IReadOnlyList<IncomingReading> readings, ConflictPolicy policy,
-            DateTimeOffset receivedAt, long? siteKey = null, CancellationToken cancellationToken = default) =>
-            inner.IngestAsync(siteId, readings, policy, receivedAt, siteKey, cancellationToken);
-
-        public Task<IReadOnlyList<StoredReading>?> ReadAsync(string siteId, long fromMs, long toMs, long? afterMs, int limit, CancellationToken cancellationToken = default) =>
-            inner.ReadAsync(siteId, fromMs, toMs, afterMs, limit, cancellationToken);
-
-        public Task<IReadOnlyList<GridReading>?> ReadGridAsync(string siteId, long fromMs, long toMs, CancellationToken cancellationToken = default)
-        {
-            reads.Enqueue((fromMs, toMs));
-            return inner.ReadGridAsync(siteId, fromMs, toMs, cancellationToken);
-        }
-
-        public Task<ReadingSpan?> SpanAsync(string siteId, CancellationToken cancellationToken = default) => inner.SpanAsync(siteId, cancellationToken);
     }
 }
