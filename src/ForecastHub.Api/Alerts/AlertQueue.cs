@@ -9,12 +9,46 @@ public sealed class AlertQueue
 {
     private readonly Channel<string> channel = Channel.CreateUnbounded<string>(new UnboundedChannelOptions { SingleReader = true });
     private readonly ConcurrentDictionary<string, byte> waiting = new(StringComparer.Ordinal);
+    private readonly Lock gate = new();
+
+    // Sites written to the channel and not yet evaluated; idle completes when it falls to zero.
+    private int unfinished;
+    private TaskCompletionSource idle = Completed();
 
     public void Enqueue(string siteId)
     {
         if (waiting.TryAdd(siteId, 0))
         {
+            lock (gate)
+            {
+                if (unfinished++ == 0)
+                {
+                    idle = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
+                }
+            }
+
             channel.Writer.TryWrite(siteId);
+        }
+    }
+
+    /// <summary>Called by the worker when it is done with a site it read (whatever came of it).</summary>
+    public void Finished()
+    {
+        lock (gate)
+        {
+            if (--unfinished == 0)
+            {
+                idle.TrySetResult();
+            }
+        }
+    }
+
+    /// <summary>Completes when every site queued so far (and any queued meanwhile) has been evaluated.</summary>
+    public Task WhenIdleAsync()
+    {
+        lock (gate)
+        {
+            return idle.Task;
         }
     }
 
@@ -26,5 +60,12 @@ public sealed class AlertQueue
             waiting.TryRemove(siteId, out _);
             yield return siteId;
         }
+    }
+
+    private static TaskCompletionSource Completed()
+    {
+        var done = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
+        done.SetResult();
+        return done;
     }
 }

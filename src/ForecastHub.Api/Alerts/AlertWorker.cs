@@ -44,10 +44,17 @@ public sealed partial class AlertWorker(
     {
         await foreach (var siteId in queue.ReadAllAsync(stoppingToken))
         {
-            var site = await sites.GetAsync(siteId, stoppingToken);
-            if (site is not null)
+            try
             {
-                await EvaluateAsync(site, stoppingToken);
+                var site = await sites.GetAsync(siteId, stoppingToken);
+                if (site is not null)
+                {
+                    await EvaluateAsync(site, stoppingToken);
+                }
+            }
+            finally
+            {
+                queue.Finished();
             }
         }
     }

@@ -27,6 +27,9 @@ public sealed class LoadedModelCapTests
             before[sites[i]] = (await client.GetJsonAsync($"/api/v1/sites/{sites[i]}/model")).GetRawText();
         }
 
+        // The alert evaluations the ingests and refits queued load their site's model: done before the reads below.
+        await factory.Services.GetRequiredService<ForecastHub.Api.Alerts.AlertQueue>().WhenIdleAsync().WaitAsync(ModelScenario.Patience);
+
         // Each read evicts the one model held, so every later read goes back to storage.
         var models = factory.Services.GetRequiredService<ForecastHub.Api.Models.ModelService>();
         var held = sites[^1];
