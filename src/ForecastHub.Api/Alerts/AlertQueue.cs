@@ -1,5 +1,6 @@
 using System.Collections.Concurrent;
 using System.Threading.Channels;
+using ForecastHub.Api.Hosting;
 
 namespace ForecastHub.Api.Alerts;
 
@@ -9,48 +10,23 @@ public sealed class AlertQueue
 {
     private readonly Channel<string> channel = Channel.CreateUnbounded<string>(new UnboundedChannelOptions { SingleReader = true });
     private readonly ConcurrentDictionary<string, byte> waiting = new(StringComparer.Ordinal);
-    private readonly Lock gate = new();
-
-    // Sites written to the channel and not yet evaluated; idle completes when it falls to zero.
-    private int unfinished;
-    private TaskCompletionSource idle = Completed();
+    // Sites written to the channel and not yet evaluated.
+    private readonly PendingWork pending = new();
 
     public void Enqueue(string siteId)
     {
         if (waiting.TryAdd(siteId, 0))
         {
-            lock (gate)
-            {
-                if (unfinished++ == 0)
-                {
-                    idle = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
-                }
-            }
-
+            pending.Added();
             channel.Writer.TryWrite(siteId);
         }
     }
 
     /// <summary>Called by the worker when it is done with a site it read (whatever came of it).</summary>
-    public void Finished()
-    {
-        lock (gate)
-        {
-            if (--unfinished == 0)
-            {
-                idle.TrySetResult();
-            }
-        }
-    }
+    public void Finished() => pending.Finished();
 
     /// <summary>Completes when every site queued so far (and any queued meanwhile) has been evaluated.</summary>
-    public Task WhenIdleAsync()
-    {
-        lock (gate)
-        {
-            return idle.Task;
-        }
-    }
+    public Task WhenIdleAsync() => pending.WhenIdleAsync();
 
     /// <summary>The waiting sites, each taken off the waiting set as it is read, so new data after that queues it again.</summary>
     public async IAsyncEnumerable<string> ReadAllAsync([System.Runtime.CompilerServices.EnumeratorCancellation] CancellationToken cancellationToken)
@@ -60,12 +36,5 @@ public sealed class AlertQueue
             waiting.TryRemove(siteId, out _);
             yield return siteId;
         }
-    }
-
-    private static TaskCompletionSource Completed()
-    {
-        var done = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
-        done.SetResult();
-        return done;
     }
 }

@@ -1,5 +1,6 @@
 using System.Collections.Concurrent;
 using System.Threading.Channels;
+using ForecastHub.Api.Hosting;
 
 namespace ForecastHub.Api.Models;
 
@@ -17,11 +18,8 @@ public sealed class RefitQueue
 {
     private readonly Channel<RefitRequest> channel = Channel.CreateUnbounded<RefitRequest>(new UnboundedChannelOptions { SingleReader = false });
     private readonly ConcurrentDictionary<string, bool> waiting = new(StringComparer.Ordinal);
-    private readonly Lock gate = new();
-
-    // Requests written to the channel and not yet finished by a worker; idle completes when it falls to zero.
-    private int unfinished;
-    private TaskCompletionSource idle = Completed();
+    // Requests written to the channel and not yet finished by a worker.
+    private readonly PendingWork pending = new();
 
     public ChannelReader<RefitRequest> Reader => channel.Reader;
 
@@ -42,14 +40,7 @@ public sealed class RefitQueue
             return;
         }
 
-        lock (gate)
-        {
-            if (unfinished++ == 0)
-            {
-                idle = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
-            }
-        }
-
+        pending.Added();
         channel.Writer.TryWrite(new RefitRequest(siteId, force));
     }
 
@@ -58,30 +49,8 @@ public sealed class RefitQueue
         waiting.TryRemove(request.SiteId, out var force) ? request with { Force = force || request.Force } : request;
 
     /// <summary>Called by a worker when it is done with a request it read (whatever came of it).</summary>
-    public void Finished()
-    {
-        lock (gate)
-        {
-            if (--unfinished == 0)
-            {
-                idle.TrySetResult();
-            }
-        }
-    }
+    public void Finished() => pending.Finished();
 
     /// <summary>Completes when every request queued so far (and any queued meanwhile) has been worked off.</summary>
-    public Task WhenIdleAsync()
-    {
-        lock (gate)
-        {
-            return idle.Task;
-        }
-    }
-
-    private static TaskCompletionSource Completed()
-    {
-        var done = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
-        done.SetResult();
-        return done;
-    }
+    public Task WhenIdleAsync() => pending.WhenIdleAsync();
 }
